@@ -1,0 +1,112 @@
+package material
+
+import (
+	"math"
+	"math/cmplx"
+)
+
+// Test-only reference arithmetic: a complex128 twin of the 2×2 spectral
+// logarithm for complex-step first derivatives (Squire & Trapp 1998, SIAM
+// Review 40; Martins, Sturdza & Alonso 2003, ACM TOMS 29), and hyper-dual
+// numbers for exact second derivatives (Fike & Alonso 2011, AIAA 2011-886).
+// Both are written from the textbook eigen-decomposition, independently of
+// the invariant form in logstrain.go.
+
+// complexLogSpectral returns ½ ln C for complex components, from the explicit
+// eigenvalues λ₁,₂ = m ± r and the projection P₁ = (C − λ₂I)/(λ₁ − λ₂).
+func complexLogSpectral(c [4]complex128) [4]complex128 {
+	a, b, s := c[0], c[1], c[3]
+	m := (a + b) / 2
+	d := (a - b) / 2
+	r := cmplx.Sqrt(d*d + s*s)
+	l1, l2 := m+r, m-r
+	f1, f2 := cmplx.Log(l1)/2, cmplx.Log(l2)/2
+	p11 := (a - l2) / (2 * r)
+	p22 := (b - l2) / (2 * r)
+	p12 := s / (2 * r)
+	return [4]complex128{
+		f2 + (f1-f2)*p11,
+		f2 + (f1-f2)*p22,
+		cmplx.Log(c[2]) / 2,
+		(f1 - f2) * p12,
+	}
+}
+
+// complexLogInvariant is the complex twin of the invariant form (needed at
+// exactly equal eigenvalues, where the spectral projections do not exist and
+// a complex perturbation would meet the branch point of the square root).
+func complexLogInvariant(c [4]complex128) [4]complex128 {
+	a, b, s := c[0], c[1], c[3]
+	m := (a + b) / 2
+	d := (a - b) / 2
+	q := d*d + s*s
+	z := q / (m * m)
+	var h complex128
+	if cmplx.Abs(z) < 0.05 {
+		for k := 40; k >= 0; k-- {
+			h = h*z + complex(1/float64(2*k+1), 0)
+		}
+	} else {
+		x := cmplx.Sqrt(z)
+		h = cmplx.Atanh(x) / x
+	}
+	g := h / (2 * m)
+	phi := cmplx.Log(a*b-s*s) / 4
+	return [4]complex128{phi + g*d, phi - g*d, cmplx.Log(c[2]) / 2, g * s}
+}
+
+// hd is a hyper-dual number a + b ε₁ + c ε₂ + d ε₁ε₂ (ε₁² = ε₂² = 0).
+type hd struct{ a, b, c, d float64 }
+
+func hdc(x float64) hd          { return hd{a: x} }
+func (x hd) add(y hd) hd        { return hd{x.a + y.a, x.b + y.b, x.c + y.c, x.d + y.d} }
+func (x hd) sub(y hd) hd        { return hd{x.a - y.a, x.b - y.b, x.c - y.c, x.d - y.d} }
+func (x hd) scale(s float64) hd { return hd{s * x.a, s * x.b, s * x.c, s * x.d} }
+func (x hd) mul(y hd) hd {
+	return hd{x.a * y.a, x.a*y.b + x.b*y.a, x.a*y.c + x.c*y.a, x.a*y.d + x.b*y.c + x.c*y.b + x.d*y.a}
+}
+
+// fn applies a scalar function with value f0 and derivatives f1, f2 at x.a.
+func (x hd) fn(f0, f1, f2 float64) hd {
+	return hd{f0, f1 * x.b, f1 * x.c, f1*x.d + f2*x.b*x.c}
+}
+func (x hd) inv() hd     { return x.fn(1/x.a, -1/(x.a*x.a), 2/(x.a*x.a*x.a)) }
+func (x hd) div(y hd) hd { return x.mul(y.inv()) }
+func (x hd) sqrt() hd {
+	r := math.Sqrt(x.a)
+	return x.fn(r, 0.5/r, -0.25/(r*x.a))
+}
+func (x hd) log() hd { return x.fn(math.Log(x.a), 1/x.a, -1/(x.a*x.a)) }
+
+// hdLogSpectral is the hyper-dual twin of complexLogSpectral.
+func hdLogSpectral(c [4]hd) [4]hd {
+	a, b, s := c[0], c[1], c[3]
+	m := a.add(b).scale(0.5)
+	d := a.sub(b).scale(0.5)
+	r := d.mul(d).add(s.mul(s)).sqrt()
+	l1, l2 := m.add(r), m.sub(r)
+	f1, f2 := l1.log().scale(0.5), l2.log().scale(0.5)
+	r2 := r.scale(2)
+	p11 := a.sub(l2).div(r2)
+	p22 := b.sub(l2).div(r2)
+	p12 := s.div(r2)
+	df := f1.sub(f2)
+	return [4]hd{f2.add(df.mul(p11)), f2.add(df.mul(p22)), c[2].log().scale(0.5), df.mul(p12)}
+}
+
+// hdLogSeries is the hyper-dual twin of the invariant form with the series of
+// h, valid for q/m² < 0.05 (including exactly equal eigenvalues).
+func hdLogSeries(c [4]hd) [4]hd {
+	a, b, s := c[0], c[1], c[3]
+	m := a.add(b).scale(0.5)
+	d := a.sub(b).scale(0.5)
+	q := d.mul(d).add(s.mul(s))
+	z := q.div(m.mul(m))
+	var h hd
+	for k := 40; k >= 0; k-- {
+		h = h.mul(z).add(hdc(1 / float64(2*k+1)))
+	}
+	g := h.div(m.scale(2))
+	phi := a.mul(b).sub(s.mul(s)).log().scale(0.25)
+	return [4]hd{phi.add(g.mul(d)), phi.sub(g.mul(d)), c[2].log().scale(0.5), g.mul(s)}
+}
