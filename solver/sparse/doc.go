@@ -1,0 +1,34 @@
+// Package sparse holds tearline's sparse linear algebra: compressed sparse
+// row matrices with a fixed pattern for re-assembly, triplet (coordinate)
+// assembly, a fill-reducing ordering, a direct LU factorisation with
+// threshold partial pivoting, and Matrix Market input and output.
+//
+// A Newton run assembles the tangent into the same pattern hundreds of
+// times and factors it each time. The pattern is built once from a Triplet;
+// each iteration zeroes the values, adds element contributions through Pos,
+// and calls Factorize, which reuses the ordering and the symbolic analysis
+// of the first call:
+//
+//	t := sparse.NewTriplet(n, n)
+//	// ... t.Add(i, j, v) for every element entry ...
+//	a := t.CSR()
+//	var lu sparse.LU
+//	for iter := 0; iter < maxIter; iter++ {
+//		a.Zero()
+//		// ... a.Val[a.Pos(i, j)] += v ...
+//		if err := lu.Factorize(a); err != nil {
+//			return err
+//		}
+//		if err := lu.Solve(dx, r); err != nil {
+//			return err
+//		}
+//	}
+//
+// The factorisation is multifrontal (Duff & Reid 1983, ACM TOMS 9) on the
+// pattern of A+Aᵀ ordered by approximate minimum degree (Amestoy, Davis &
+// Duff 1996, SIAM J. Matrix Anal. Appl. 17). Each front is a dense matrix
+// factored with blocked kernels; pivots are chosen by threshold partial
+// pivoting inside the fully summed block, and a pivot that fails the
+// threshold is delayed to the parent front, so matrices with zero diagonal
+// blocks (saddle-point systems) factor without a special ordering.
+package sparse
