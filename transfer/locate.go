@@ -1,0 +1,294 @@
+package transfer
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"sync"
+
+	"github.com/tidwall/rtree"
+
+	"tearline/solver/fem"
+)
+
+// Locator finds the old triangle that contains a point. It indexes the
+// bounding boxes of the triangles' corner nodes in an R-tree; a mesh
+// change after NewLocator is not seen. Queries are safe for concurrent use.
+type Locator struct {
+	mesh *fem.Mesh
+	tree rtree.RTreeG[int]
+	tol  float64
+	size []float64 // longest edge of every triangle
+}
+
+// Hit is the result of locating one point.
+type Hit struct {
+	// Elem is the old triangle, or -1 when the point is not finite or the
+	// old mesh has no triangles.
+	Elem int
+	// L holds the area coordinates of the point in Elem (of the nearest
+	// point of Elem when the point lies outside it).
+	L [3]float64
+	// Inside reports that Elem contains the point (within the tolerance).
+	Inside bool
+	// Node is the old node of Elem at exactly the point's position, or -1
+	// (set by LocateNodes only).
+	Node int
+}
+
+// NewLocator indexes the triangles of m. Points outside every triangle by
+// at most tol × the nearest triangle's longest edge count as inside; tol
+// must lie in [0, 0.1).
+func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
+	if m == nil {
+		return nil, fmt.Errorf("transfer: locator: nil mesh")
+	}
+	if !(tol >= 0 && tol < 0.1) {
+		return nil, fmt.Errorf("transfer: locator: tolerance %g outside [0, 0.1)", tol)
+	}
+	if err := m.Check(); err != nil {
+		return nil, fmt.Errorf("transfer: locator: old mesh: %w", err)
+	}
+	lc := &Locator{mesh: m, tol: tol, size: make([]float64, len(m.Tri))}
+	for e, t := range m.Tri {
+		a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+		lo := [2]float64{math.Min(a[0], math.Min(b[0], c[0])), math.Min(a[1], math.Min(b[1], c[1]))}
+		hi := [2]float64{math.Max(a[0], math.Max(b[0], c[0])), math.Max(a[1], math.Max(b[1], c[1]))}
+		lc.tree.Insert(lo, hi, e)
+		lc.size[e] = math.Sqrt(math.Max(dist2(a, b), math.Max(dist2(b, c), dist2(c, a))))
+	}
+	return lc, nil
+}
+
+// Mesh returns the indexed mesh.
+func (lc *Locator) Mesh() *fem.Mesh { return lc.mesh }
+
+// Locate returns the old triangle that contains p with p's area
+// coordinates in it. When several triangles contain p (p on a shared edge or
+// vertex) the one in which p lies deepest wins, ties going to the lowest
+// index. When none does, it returns the nearest triangle with the clamped
+// area coordinates of the nearest point on it, and inside reports whether
+// that point is within the tolerance. elem is -1 for a non-finite p or an
+// empty mesh.
+func (lc *Locator) Locate(p [2]float64) (elem int, l [3]float64, inside bool) {
+	h := lc.locate(p, nil)
+	return h.Elem, h.L, h.Inside
+}
+
+// LocateAll locates every point with a bounded pool of workers (≤ 0 means
+// GOMAXPROCS) and returns the hits in the order of pts.
+func (lc *Locator) LocateAll(pts [][2]float64, workers int) []Hit {
+	hits := make([]Hit, len(pts))
+	parallel(len(pts), workers, func(lo, hi int) {
+		for i := lo; i < hi; i++ {
+			hits[i] = lc.locate(pts[i], nil)
+		}
+	})
+	return hits
+}
+
+// LocateNodes locates every node of the new mesh m. A node is located
+// towards the interior of the first new triangle that owns it, so that a
+// node on a crack face (where both faces share reference coordinates) lands
+// in the old triangle on its own side. Hit.Node is set when the node
+// coincides exactly with a node of the old triangle found. Nodes that no
+// triangle uses get Elem = -1.
+func (lc *Locator) LocateNodes(m *fem.Mesh, workers int) []Hit {
+	owner := make([]int32, len(m.X))
+	for i := range owner {
+		owner[i] = -1
+	}
+	for e, t := range m.Tri {
+		for _, n := range t {
+			if n >= 0 && n < len(owner) && owner[n] < 0 {
+				owner[n] = int32(e)
+			}
+		}
+	}
+	hits := make([]Hit, len(m.X))
+	parallel(len(m.X), workers, func(lo, hi int) {
+		for n := lo; n < hi; n++ {
+			if owner[n] < 0 {
+				hits[n] = Hit{Elem: -1, Node: -1}
+				continue
+			}
+			t := m.Tri[owner[n]]
+			a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+			p := m.X[n]
+			// A point a millionth of the way from the node to the new
+			// triangle's centroid decides between old triangles that
+			// contain the node equally well.
+			const s = 1e-6
+			toward := [2]float64{
+				p[0] + s*((a[0]+b[0]+c[0])/3-p[0]),
+				p[1] + s*((a[1]+b[1]+c[1])/3-p[1]),
+			}
+			h := lc.locate(p, &toward)
+			h.Node = -1
+			if h.Elem >= 0 {
+				for _, on := range lc.mesh.Tri[h.Elem] {
+					if lc.mesh.X[on] == p {
+						h.Node = on
+						break
+					}
+				}
+			}
+			hits[n] = h
+		}
+	})
+	return hits
+}
+
+// locate is Locate with an optional tie-break point: among several
+// triangles that contain p, the one containing toward (deepest) wins.
+func (lc *Locator) locate(p [2]float64, toward *[2]float64) Hit {
+	miss := Hit{Elem: -1, Node: -1}
+	if !finite(p[0]) || !finite(p[1]) || len(lc.mesh.Tri) == 0 {
+		return miss
+	}
+	best, bestDepth, bestTie := -1, math.Inf(-1), math.Inf(-1)
+	var bestL [3]float64
+	lc.tree.Search(p, p, func(_, _ [2]float64, e int) bool {
+		if !lc.contains(e, p) {
+			return true
+		}
+		l := lc.bary(e, p)
+		depth := math.Min(l[0], math.Min(l[1], l[2]))
+		tie := 0.0
+		if toward != nil {
+			lt := lc.bary(e, *toward)
+			tie = math.Min(lt[0], math.Min(lt[1], lt[2]))
+			depth, tie = tie, depth
+		}
+		if depth > bestDepth || (depth == bestDepth && (tie > bestTie || (tie == bestTie && e < best))) {
+			best, bestDepth, bestTie, bestL = e, depth, tie, l
+		}
+		return true
+	})
+	if best >= 0 {
+		return Hit{Elem: best, L: clampL(bestL), Inside: true, Node: -1}
+	}
+	// Nearest triangle: the R-tree returns items by increasing distance
+	// (box distance as the lower bound for nodes, the exact point–triangle
+	// distance for items).
+	near, nearD2 := -1, math.Inf(1)
+	var nearL [3]float64
+	lc.tree.Nearby(
+		rtree.BoxDist[float64, int](p, p, func(_, _ [2]float64, e int) float64 {
+			d2, _ := lc.nearest(e, p)
+			return d2
+		}),
+		func(_, _ [2]float64, e int, d2 float64) bool {
+			if near >= 0 && d2 > nearD2 {
+				return false
+			}
+			if near < 0 || e < near { // equal distances: lowest index
+				_, l := lc.nearest(e, p)
+				near, nearD2, nearL = e, d2, l
+			}
+			return true
+		})
+	if near < 0 {
+		return miss
+	}
+	return Hit{Elem: near, L: nearL, Inside: math.Sqrt(nearD2) <= lc.tol*lc.size[near], Node: -1}
+}
+
+// contains reports whether the closed straight-sided triangle e contains p,
+// by exact orientation signs (vertices are counter-clockwise).
+func (lc *Locator) contains(e int, p [2]float64) bool {
+	t := lc.mesh.Tri[e]
+	a, b, c := lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]]
+	return orient(a, b, p) >= 0 && orient(b, c, p) >= 0 && orient(c, a, p) >= 0
+}
+
+func (lc *Locator) bary(e int, p [2]float64) [3]float64 {
+	t := lc.mesh.Tri[e]
+	return fem.Barycentric(p, lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]])
+}
+
+// nearest returns the squared distance from p to triangle e and the area
+// coordinates of the nearest point of e (p itself when e contains it).
+func (lc *Locator) nearest(e int, p [2]float64) (float64, [3]float64) {
+	if lc.contains(e, p) {
+		return 0, clampL(lc.bary(e, p))
+	}
+	t := lc.mesh.Tri[e]
+	v := [3][2]float64{lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]]}
+	bestD2 := math.Inf(1)
+	var bestL [3]float64
+	for k := 0; k < 3; k++ {
+		a, b := v[k], v[(k+1)%3]
+		ab := [2]float64{b[0] - a[0], b[1] - a[1]}
+		s := ((p[0]-a[0])*ab[0] + (p[1]-a[1])*ab[1]) / (ab[0]*ab[0] + ab[1]*ab[1])
+		s = math.Max(0, math.Min(1, s))
+		q := [2]float64{a[0] + s*ab[0], a[1] + s*ab[1]}
+		if d2 := dist2(p, q); d2 < bestD2 {
+			bestD2 = d2
+			bestL = [3]float64{}
+			bestL[k], bestL[(k+1)%3] = 1-s, s
+		}
+	}
+	return bestD2, bestL
+}
+
+// clampL removes round-off negatives from area coordinates and renormalises
+// them to sum to one.
+func clampL(l [3]float64) [3]float64 {
+	if l[0] >= 0 && l[1] >= 0 && l[2] >= 0 {
+		return l
+	}
+	s := 0.0
+	for k := range l {
+		l[k] = math.Max(l[k], 0)
+		s += l[k]
+	}
+	for k := range l {
+		l[k] /= s
+	}
+	return l
+}
+
+func dist2(a, b [2]float64) float64 {
+	dx, dy := a[0]-b[0], a[1]-b[1]
+	return dx*dx + dy*dy
+}
+
+func finite(x float64) bool { return !math.IsInf(x, 0) && !math.IsNaN(x) }
+
+// parallel runs body over [0, n) split into chunks, on at most workers
+// goroutines (≤ 0 means GOMAXPROCS).
+func parallel(n, workers int, body func(lo, hi int)) {
+	parallelChunks(n, workers, 256, body)
+}
+
+// parallelChunks is parallel with chunks of at least minChunk items.
+func parallelChunks(n, workers, minChunk int, body func(lo, hi int)) {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	if workers > (n+minChunk-1)/minChunk {
+		workers = (n + minChunk - 1) / minChunk
+	}
+	if workers <= 1 {
+		body(0, n)
+		return
+	}
+	chunk := (n + 4*workers - 1) / (4 * workers)
+	next := make(chan int, workers)
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for lo := range next {
+				body(lo, min(lo+chunk, n))
+			}
+		}()
+	}
+	for lo := 0; lo < n; lo += chunk {
+		next <- lo
+	}
+	close(next)
+	wg.Wait()
+}

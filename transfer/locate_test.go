@@ -1,0 +1,253 @@
+package transfer
+
+import (
+	"math"
+	"testing"
+
+	"tearline/solver/fem"
+)
+
+// TestOrientNearDegenerate checks the orientation sign on the classic
+// near-collinear grid of Kettner, Mehlhorn, Pion, Schirra & Yap 2008
+// ("Classroom examples of robustness problems in geometric computations",
+// Comput. Geom. 40): p = (0.5 + i·2⁻⁵³, 0.5 + j·2⁻⁵³), q = (12, 12),
+// r = (24, 24). q and r lie on the line y = x, so p is left of q→r exactly
+// when its y exceeds its x (closed form): sign = sign(j − i).
+func TestOrientNearDegenerate(t *testing.T) {
+	q, r := [2]float64{12, 12}, [2]float64{24, 24}
+	naiveWrong := 0
+	for i := 0; i < 64; i++ {
+		for j := 0; j < 64; j++ {
+			p := [2]float64{0.5 + float64(i)*epsilon, 0.5 + float64(j)*epsilon}
+			// 0.5 + k·2⁻⁵³ is exact (the ulp of 0.5 is 2⁻⁵³); skip any that is not.
+			if p[0]-0.5 != float64(i)*epsilon || p[1]-0.5 != float64(j)*epsilon {
+				continue
+			}
+			want := sign(float64(j - i))
+			if got := sign(orient(p, q, r)); got != want {
+				t.Fatalf("orient(%v, q, r) sign %d, want %d", p, got, want)
+			}
+			naive := (q[0]-p[0])*(r[1]-p[1]) - (q[1]-p[1])*(r[0]-p[0])
+			if sign(naive) != want {
+				naiveWrong++
+			}
+		}
+	}
+	t.Logf("plain floating-point orientation wrong on %d of the grid points; robust one on none", naiveWrong)
+}
+
+func sign(x float64) int {
+	switch {
+	case x > 0:
+		return 1
+	case x < 0:
+		return -1
+	}
+	return 0
+}
+
+// bruteContains is the reference point-in-triangle test: exact orientation
+// over every triangle.
+func bruteContains(m *fem.Mesh, e int, p [2]float64) bool {
+	t := m.Tri[e]
+	a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+	return orientExact(a, b, p) >= 0 && orientExact(b, c, p) >= 0 && orientExact(c, a, p) >= 0
+}
+
+// bruteDistance is the reference distance from p to the mesh: the minimum
+// over all triangles and edges, by the projection onto each edge.
+func bruteDistance(m *fem.Mesh, p [2]float64) float64 {
+	d := math.Inf(1)
+	for e, t := range m.Tri {
+		if bruteContains(m, e, p) {
+			return 0
+		}
+		for k := 0; k < 3; k++ {
+			a, b := m.X[t[k]], m.X[t[(k+1)%3]]
+			s := ((p[0]-a[0])*(b[0]-a[0]) + (p[1]-a[1])*(b[1]-a[1])) / dist2(a, b)
+			s = math.Max(0, math.Min(1, s))
+			d = math.Min(d, math.Hypot(p[0]-a[0]-s*(b[0]-a[0]), p[1]-a[1]-s*(b[1]-a[1])))
+		}
+	}
+	return d
+}
+
+// pointAt maps area coordinates in triangle e to a position.
+func pointAt(m *fem.Mesh, e int, l [3]float64) [2]float64 {
+	t := m.Tri[e]
+	a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+	return [2]float64{l[0]*a[0] + l[1]*b[0] + l[2]*c[0], l[0]*a[1] + l[1]*b[1] + l[2]*c[1]}
+}
+
+// checkHit verifies a Locate result against the brute-force references.
+func checkHit(t *testing.T, m *fem.Mesh, p [2]float64, e int, l [3]float64, inside bool, tol float64) {
+	t.Helper()
+	if e < 0 || e >= len(m.Tri) {
+		t.Fatalf("Locate(%v): element %d of %d", p, e, len(m.Tri))
+	}
+	if s := l[0] + l[1] + l[2]; math.Abs(s-1) > 1e-12 || l[0] < 0 || l[1] < 0 || l[2] < 0 {
+		t.Fatalf("Locate(%v): area coordinates %v not in the triangle", p, l)
+	}
+	d := bruteDistance(m, p)
+	q := pointAt(m, e, l)
+	dq := math.Hypot(q[0]-p[0], q[1]-p[1])
+	scale := math.Max(1, math.Hypot(p[0], p[1]))
+	if d == 0 {
+		if !inside || !bruteContains(m, e, p) {
+			t.Fatalf("Locate(%v) = %d inside %v; brute force finds it inside the mesh, and in %d: %v", p, e, inside, e, bruteContains(m, e, p))
+		}
+		if dq > 1e-12*scale {
+			t.Fatalf("Locate(%v): area coordinates give %v", p, q)
+		}
+		return
+	}
+	// Outside: the nearest point, within round-off of the brute distance.
+	if math.Abs(dq-d) > 1e-12*scale {
+		t.Fatalf("Locate(%v) = %d: distance %g, brute-force nearest %g", p, e, dq, d)
+	}
+	size := 0.0
+	tr := m.Tri[e]
+	for k := 0; k < 3; k++ {
+		size = math.Max(size, math.Sqrt(dist2(m.X[tr[k]], m.X[tr[(k+1)%3]])))
+	}
+	if want := d <= tol*size; inside != want {
+		t.Fatalf("Locate(%v): inside %v at distance %g (tolerance %g × %g)", p, inside, d, tol, size)
+	}
+}
+
+// TestLocate checks points inside, on edges and vertices, just outside and
+// far outside a perturbed square mesh against brute-force search.
+func TestLocate(t *testing.T) {
+	m := squareMesh(6, 5, 0.3, 7)
+	lc, err := NewLocator(m, 1e-9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name string
+		p    [2]float64
+	}{
+		{"interior", [2]float64{0.31, 0.47}},
+		{"vertex", m.X[9]},
+		{"edge midpoint", m.X[m.NumCorners+4]},
+		{"corner of the square", [2]float64{1, 1}},
+		{"on the boundary", [2]float64{0.5, 0}},
+		{"just outside by 1e-12", [2]float64{0.5, -1e-12}},
+		{"outside by 1e-3", [2]float64{1.001, 0.3}},
+		{"far outside", [2]float64{-3, 7}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			e, l, in := lc.Locate(tc.p)
+			checkHit(t, m, tc.p, e, l, in, 1e-9)
+		})
+	}
+	if e, _, in := lc.Locate([2]float64{math.NaN(), 0}); e != -1 || in {
+		t.Errorf("Locate(NaN) = %d, %v; want -1, false", e, in)
+	}
+	if e, _, _ := lc.Locate([2]float64{math.Inf(1), 0}); e != -1 {
+		t.Errorf("Locate(+Inf) = %d; want -1", e)
+	}
+	// LocateAll agrees with Locate point by point.
+	pts := m.X
+	hits := lc.LocateAll(pts, 2)
+	for i, p := range pts {
+		e, l, in := lc.Locate(p)
+		if hits[i].Elem != e || hits[i].L != l || hits[i].Inside != in {
+			t.Fatalf("LocateAll[%d] = %+v, Locate = %d %v %v", i, hits[i], e, l, in)
+		}
+	}
+}
+
+// TestNewLocatorErrors checks bad input gives errors.
+func TestNewLocatorErrors(t *testing.T) {
+	bad := squareMesh(2, 2, 0, 0)
+	bad.Tri[0][1], bad.Tri[0][2] = bad.Tri[0][2], bad.Tri[0][1] // clockwise
+	for _, tc := range []struct {
+		name string
+		m    *fem.Mesh
+		tol  float64
+	}{
+		{"nil mesh", nil, 0},
+		{"negative tolerance", squareMesh(2, 2, 0, 0), -1},
+		{"NaN tolerance", squareMesh(2, 2, 0, 0), math.NaN()},
+		{"clockwise triangle", bad, 0},
+	} {
+		if _, err := NewLocator(tc.m, tc.tol); err == nil {
+			t.Errorf("%s: no error", tc.name)
+		}
+	}
+}
+
+// TestArcBoundary: a coarse mesh of an annular sector replaces the arc
+// r = 1 by chords; the new boundary vertices of a finer mesh lie on the arc,
+// outside the old chords, and must be handled by the nearest old triangle.
+// The distance from an arc point at angle φ to the chord of [θ₀, θ₁] is
+// cos(φ − θm) − cos(Δθ/2) in the chord's normal direction (θm the chord's
+// mid-angle) — closed form of circle geometry.
+func TestArcBoundary(t *testing.T) {
+	old := sectorMesh(3, 4, 0.5)
+	nw := sectorMesh(5, 7, 0.5)
+	lc, err := NewLocator(old, 1e-9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dth := 0.5 * math.Pi / 4
+	outside := 0
+	for n := 0; n < nw.NumCorners; n++ {
+		p := nw.X[n]
+		e, l, in := lc.Locate(p)
+		checkHit(t, old, p, e, l, in, 1e-9)
+		r := math.Hypot(p[0], p[1])
+		if math.Abs(r-1) > 1e-12 {
+			continue
+		}
+		phi := math.Atan2(p[1], p[0])
+		k := math.Min(math.Floor(phi/dth), 3)
+		want := math.Cos(phi-(k+0.5)*dth) - math.Cos(0.5*dth)
+		q := pointAt(old, e, l)
+		got := math.Hypot(q[0]-p[0], q[1]-p[1])
+		if math.Abs(got-want) > 1e-12 {
+			t.Errorf("arc vertex at %.4f rad: distance to the old mesh %g, chord geometry %g", phi, got, want)
+		}
+		if want > 1e-9 {
+			outside++
+			if in {
+				t.Errorf("arc vertex at %.4f rad, %g outside the chord, reported inside", phi, want)
+			}
+		}
+	}
+	if outside == 0 {
+		t.Fatal("no new arc vertex fell outside the old chords: the test checks nothing")
+	}
+}
+
+// FuzzLocate: any point gives either a containing triangle or the nearest
+// one, never a panic (checked against brute force).
+func FuzzLocate(f *testing.F) {
+	m := squareMesh(5, 4, 0.35, 3)
+	lc, err := NewLocator(m, 1e-9)
+	if err != nil {
+		f.Fatal(err)
+	}
+	for _, p := range [][2]float64{{0.5, 0.5}, {0, 0}, {1, 1}, {-0.1, 0.5}, {2, 2}, {0.2, 1e-300}, m.X[7], m.X[m.NumCorners+3]} {
+		f.Add(p[0], p[1])
+	}
+	f.Fuzz(func(t *testing.T, x, y float64) {
+		p := [2]float64{x, y}
+		e, l, in := lc.Locate(p)
+		if !finite(x) || !finite(y) {
+			if e != -1 {
+				t.Fatalf("Locate(%v) = %d, want -1", p, e)
+			}
+			return
+		}
+		if math.Abs(x) > 1e100 || math.Abs(y) > 1e100 {
+			// Distances overflow; only the range of the result is checked.
+			if e < 0 || e >= len(m.Tri) {
+				t.Fatalf("Locate(%v) = %d", p, e)
+			}
+			return
+		}
+		checkHit(t, m, p, e, l, in, 1e-9)
+	})
+}

@@ -1,0 +1,328 @@
+package transfer
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"tearline/solver/fem"
+)
+
+// gaussGeometry returns the position and the area weight (rule weight ×
+// Jacobian, no 2πr factor) of every Gauss point of m under the isoparametric
+// quadratic map, point i of triangle e at index e*r.Len()+i.
+func gaussGeometry(m *fem.Mesh, r fem.Rule, workers int) (x [][2]float64, da []float64) {
+	nq := r.Len()
+	x = make([][2]float64, len(m.Tri)*nq)
+	da = make([]float64, len(m.Tri)*nq)
+	parallel(len(m.Tri), workers, func(lo, hi int) {
+		for e := lo; e < hi; e++ {
+			t := m.Tri[e]
+			for q := 0; q < nq; q++ {
+				N := fem.ShapeP2(r.L[q])
+				dxi, deta := fem.ShapeP2Deriv(r.L[q])
+				var p [2]float64
+				var j00, j01, j10, j11 float64
+				for k, n := range t {
+					xn := m.X[n]
+					p[0] += N[k] * xn[0]
+					p[1] += N[k] * xn[1]
+					j00 += dxi[k] * xn[0]
+					j01 += deta[k] * xn[0]
+					j10 += dxi[k] * xn[1]
+					j11 += deta[k] * xn[1]
+				}
+				x[e*nq+q] = p
+				// The reference triangle (ξ, η) = (L1, L2) has area ½.
+				da[e*nq+q] = r.W[q] * 0.5 * (j00*j11 - j01*j10)
+			}
+		}
+	})
+	return x, da
+}
+
+// recovery holds the continuous linear fields recovered on the old corner
+// nodes: value c of corner node n at n*nc+c.
+type recovery struct {
+	nc    int
+	nodal []float64
+}
+
+// at evaluates the recovered fields at area coordinates l of old triangle t
+// into v (length nc).
+func (r *recovery) at(t [6]int, l [3]float64, v []float64) {
+	nc := r.nc
+	a, b, c := r.nodal[t[0]*nc:t[0]*nc+nc], r.nodal[t[1]*nc:t[1]*nc+nc], r.nodal[t[2]*nc:t[2]*nc+nc]
+	for k := range v {
+		v[k] = l[0]*a[k] + l[1]*b[k] + l[2]*c[k]
+	}
+}
+
+// cornerPatches returns, for every corner node, the triangles that share it
+// (CSR layout: the triangles of node n are elems[start[n]:start[n+1]]).
+func cornerPatches(m *fem.Mesh) (start, elems []int) {
+	start = make([]int, m.NumCorners+1)
+	for _, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			start[t[k]+1]++
+		}
+	}
+	for n := 0; n < m.NumCorners; n++ {
+		start[n+1] += start[n]
+	}
+	elems = make([]int, start[m.NumCorners])
+	fill := append([]int(nil), start[:m.NumCorners]...)
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			elems[fill[t[k]]] = e
+			fill[t[k]]++
+		}
+	}
+	return start, elems
+}
+
+// patchRecovery fits, for every corner node, a linear polynomial by least
+// squares to the Gauss-point values vals (nc per point) of the triangles
+// around it, using only the points with use[i] true (all of the patch's
+// points if none is usable), and takes its value at the node
+// (Zienkiewicz & Zhu 1992, IJNME 33). A patch whose normal equations are
+// singular (collinear points) falls back to the mean.
+func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int, use []bool, workers int) *recovery {
+	start, elems := cornerPatches(m)
+	rec := &recovery{nc: nc, nodal: make([]float64, m.NumCorners*nc)}
+	parallel(m.NumCorners, workers, func(lo, hi int) {
+		b := make([]float64, 3*nc)
+		for n := lo; n < hi; n++ {
+			patch := elems[start[n]:start[n+1]]
+			if len(patch) == 0 {
+				continue
+			}
+			any := false
+			for _, e := range patch {
+				for q := 0; q < nq; q++ {
+					any = any || use[e*nq+q]
+				}
+			}
+			xn := m.X[n]
+			h := 0.0
+			for _, e := range patch {
+				for q := 0; q < nq; q++ {
+					h = math.Max(h, dist2(gx[e*nq+q], xn))
+				}
+			}
+			h = math.Sqrt(h)
+			if !(h > 0) {
+				h = 1
+			}
+			var A [3][3]float64
+			clear(b)
+			cnt := 0
+			for _, e := range patch {
+				for q := 0; q < nq; q++ {
+					i := e*nq + q
+					if any && !use[i] {
+						continue
+					}
+					cnt++
+					phi := [3]float64{1, (gx[i][0] - xn[0]) / h, (gx[i][1] - xn[1]) / h}
+					v := vals[i*nc : i*nc+nc]
+					for r := 0; r < 3; r++ {
+						for s := 0; s < 3; s++ {
+							A[r][s] += phi[r] * phi[s]
+						}
+						br := b[r*nc : r*nc+nc]
+						for c, vc := range v {
+							br[c] += phi[r] * vc
+						}
+					}
+				}
+			}
+			out := rec.nodal[n*nc : n*nc+nc]
+			// Scaled coordinates lie in [-1, 1]: a determinant this small
+			// relative to cnt³ means the points are (nearly) collinear.
+			if inv, ok := inverse3(A); ok && det3(A) > 1e-10*float64(cnt*cnt*cnt) {
+				// Value at the node: the constant coefficient a0.
+				for c := 0; c < nc; c++ {
+					out[c] = inv[0][0]*b[c] + inv[0][1]*b[nc+c] + inv[0][2]*b[2*nc+c]
+				}
+			} else {
+				for c := 0; c < nc; c++ {
+					out[c] = b[c] / float64(cnt)
+				}
+			}
+		}
+	})
+	return rec
+}
+
+func det3(a [3][3]float64) float64 {
+	return a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) -
+		a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) +
+		a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
+}
+
+// inverse3 inverts a 3×3 matrix by cofactors.
+func inverse3(a [3][3]float64) ([3][3]float64, bool) {
+	d := det3(a)
+	if d == 0 || !finite(d) {
+		return [3][3]float64{}, false
+	}
+	var inv [3][3]float64
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			i1, i2 := (j+1)%3, (j+2)%3
+			j1, j2 := (i+1)%3, (i+2)%3
+			inv[i][j] = (a[i1][j1]*a[i2][j2] - a[i1][j2]*a[i2][j1]) / d
+		}
+	}
+	return inv, true
+}
+
+// l2Projection projects the Gauss-point values onto continuous P1 on the
+// corner nodes of m: M c = b with M_ij = ∫ N_i N_j dA and b_i = ∫ N_i g dA,
+// both by the element rule, solved per component by Jacobi-preconditioned
+// conjugate gradients (Hestenes & Stiefel 1952, J. Res. NBS 49).
+func l2Projection(m *fem.Mesh, r fem.Rule, da []float64, vals []float64, nc int, tol float64, maxIter, workers int) (*recovery, error) {
+	nq := r.Len()
+	nn := m.NumCorners
+	// Sparsity: corner neighbours through shared triangles.
+	rows := make([][]int, nn)
+	for _, t := range m.Tri {
+		for i := 0; i < 3; i++ {
+			for j := 0; j < 3; j++ {
+				rows[t[i]] = append(rows[t[i]], t[j])
+			}
+		}
+	}
+	ptr := make([]int, nn+1)
+	var col []int
+	for n := range rows {
+		rw := rows[n]
+		sort.Ints(rw)
+		k := 0
+		for i, c := range rw {
+			if i == 0 || c != rw[k-1] {
+				rw[k] = c
+				k++
+			}
+		}
+		if k == 0 { // unused corner node: identity row
+			rw = append(rw[:0], n)
+			k = 1
+		}
+		col = append(col, rw[:k]...)
+		ptr[n+1] = len(col)
+	}
+	val := make([]float64, len(col))
+	find := func(i, j int) int {
+		lo, hi := ptr[i], ptr[i+1]
+		return lo + sort.SearchInts(col[lo:hi], j)
+	}
+	b := make([]float64, nn*nc) // component c of node n at c*nn+n
+	for e, t := range m.Tri {
+		for q := 0; q < nq; q++ {
+			w := da[e*nq+q]
+			N := r.L[q]
+			g := vals[(e*nq+q)*nc : (e*nq+q)*nc+nc]
+			for i := 0; i < 3; i++ {
+				for j := 0; j < 3; j++ {
+					val[find(t[i], t[j])] += w * N[i] * N[j]
+				}
+				for c, gc := range g {
+					b[c*nn+t[i]] += w * N[i] * gc
+				}
+			}
+		}
+	}
+	for n := range rows {
+		if ptr[n+1]-ptr[n] == 1 && col[ptr[n]] == n && val[ptr[n]] == 0 {
+			val[ptr[n]] = 1
+		}
+	}
+	diag := make([]float64, nn)
+	for n := 0; n < nn; n++ {
+		diag[n] = val[find(n, n)]
+		if !(diag[n] > 0) {
+			return nil, fmt.Errorf("transfer: L2 projection: mass matrix diagonal %g at corner node %d is not positive", diag[n], n)
+		}
+	}
+	mul := func(y, x []float64) {
+		for i := 0; i < nn; i++ {
+			s := 0.0
+			for k := ptr[i]; k < ptr[i+1]; k++ {
+				s += val[k] * x[col[k]]
+			}
+			y[i] = s
+		}
+	}
+	sol := make([]float64, nn*nc)
+	errs := make([]error, nc)
+	parallelChunks(nc, workers, 1, func(lo, hi int) {
+		rr, z, p, ap := make([]float64, nn), make([]float64, nn), make([]float64, nn), make([]float64, nn)
+		for c := lo; c < hi; c++ {
+			errs[c] = pcg(mul, diag, b[c*nn:(c+1)*nn], sol[c*nn:(c+1)*nn], rr, z, p, ap, tol, maxIter)
+			if errs[c] != nil {
+				errs[c] = fmt.Errorf("transfer: L2 projection of component %d: %w", c, errs[c])
+			}
+		}
+	})
+	for _, err := range errs {
+		if err != nil {
+			return nil, err
+		}
+	}
+	rec := &recovery{nc: nc, nodal: make([]float64, nn*nc)}
+	for n := 0; n < nn; n++ {
+		for c := 0; c < nc; c++ {
+			rec.nodal[n*nc+c] = sol[c*nn+n]
+		}
+	}
+	return rec, nil
+}
+
+// pcg solves A x = b (A symmetric positive definite, applied by mul) with the
+// Jacobi preconditioner diag, from x = 0, to ‖r‖ ≤ tol ‖b‖.
+func pcg(mul func(y, x []float64), diag, b, x, r, z, p, ap []float64, tol float64, maxIter int) error {
+	clear(x)
+	copy(r, b)
+	bnorm := math.Sqrt(dot(b, b))
+	if bnorm == 0 {
+		return nil
+	}
+	for i := range z {
+		z[i] = r[i] / diag[i]
+	}
+	copy(p, z)
+	rz := dot(r, z)
+	for it := 0; it < maxIter; it++ {
+		mul(ap, p)
+		alpha := rz / dot(p, ap)
+		for i := range x {
+			x[i] += alpha * p[i]
+			r[i] -= alpha * ap[i]
+		}
+		if rn := math.Sqrt(dot(r, r)); rn <= tol*bnorm {
+			return nil
+		} else if !finite(rn) {
+			return fmt.Errorf("conjugate gradients diverged at iteration %d", it+1)
+		}
+		for i := range z {
+			z[i] = r[i] / diag[i]
+		}
+		rzNew := dot(r, z)
+		beta := rzNew / rz
+		rz = rzNew
+		for i := range p {
+			p[i] = z[i] + beta*p[i]
+		}
+	}
+	return fmt.Errorf("conjugate gradients did not reach relative residual %g in %d iterations", tol, maxIter)
+}
+
+func dot(a, b []float64) float64 {
+	s := 0.0
+	for i := range a {
+		s += a[i] * b[i]
+	}
+	return s
+}

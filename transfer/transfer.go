@@ -1,0 +1,483 @@
+package transfer
+
+import (
+	"fmt"
+	"math"
+	"time"
+
+	"tearline/solver/fem"
+	"tearline/solver/material"
+)
+
+// Method selects how Gauss-point state is recovered on the old mesh.
+type Method int
+
+const (
+	// PatchRecovery fits linear polynomials over the patch of old
+	// triangles around every old corner node (Zienkiewicz & Zhu 1992).
+	PatchRecovery Method = iota
+	// L2Projection solves the global L2 projection onto continuous P1.
+	L2Projection
+)
+
+// String returns the method's name.
+func (m Method) String() string {
+	switch m {
+	case PatchRecovery:
+		return "patch"
+	case L2Projection:
+		return "l2"
+	}
+	return fmt.Sprintf("Method(%d)", int(m))
+}
+
+// Options controls a transfer.
+type Options struct {
+	// Method is the recovery of Gauss-point state (default PatchRecovery).
+	Method Method
+	// F0 and FBreak bound the porosity of sound points: F0 ≤ f < FBreak.
+	// Pass the material's initial and breaking porosity.
+	F0, FBreak float64
+	// TraceFromPorosity resets tr Ep to ln((1−F0)/(1−f)) after the bounds
+	// are applied (growth-only GTN; wrong with nucleation).
+	TraceFromPorosity bool
+	// Axisymmetric weights the integrals of the Record with 2πr.
+	Axisymmetric bool
+	// Tol is the relative distance (to the old triangle's longest edge)
+	// within which a point outside every old triangle counts as inside.
+	Tol float64
+	// Workers bounds the worker pool; ≤ 0 means GOMAXPROCS.
+	Workers int
+	// CGTol and CGMaxIter control the conjugate gradients of L2Projection.
+	CGTol     float64
+	CGMaxIter int
+}
+
+// DefaultOptions returns patch recovery, porosity bounds [0, 1), a location
+// tolerance of 1e-9, and CG to a relative residual of 1e-13 in at most 2000
+// iterations.
+func DefaultOptions() Options {
+	return Options{Method: PatchRecovery, F0: 0, FBreak: 1, Tol: 1e-9, CGTol: 1e-13, CGMaxIter: 2000}
+}
+
+// Validate reports the first option outside its allowed range.
+func (o Options) Validate() error {
+	switch {
+	case o.Method != PatchRecovery && o.Method != L2Projection:
+		return fmt.Errorf("transfer: method %v: allowed are %v and %v", o.Method, PatchRecovery, L2Projection)
+	case !(o.F0 >= 0 && o.F0 < 1):
+		return fmt.Errorf("transfer: F0 = %g must lie in [0, 1)", o.F0)
+	case !(o.FBreak > o.F0 && o.FBreak <= 1):
+		return fmt.Errorf("transfer: FBreak = %g must lie in (F0 = %g, 1]", o.FBreak, o.F0)
+	case !(o.Tol >= 0 && o.Tol < 0.1):
+		return fmt.Errorf("transfer: Tol = %g must lie in [0, 0.1)", o.Tol)
+	case !(o.CGTol > 0 && o.CGTol < 1):
+		return fmt.Errorf("transfer: CGTol = %g must lie in (0, 1)", o.CGTol)
+	case o.CGMaxIter < 1:
+		return fmt.Errorf("transfer: CGMaxIter = %d must be ≥ 1", o.CGMaxIter)
+	}
+	return nil
+}
+
+// Fields is the mechanical state on a mesh.
+type Fields struct {
+	// U is the displacement of every node.
+	U [][2]float64
+	// Linear holds the corner-node fields (θ, P, ā, λ, …), each with one
+	// value per corner node.
+	Linear [][]float64
+	// State is the Gauss-point state: point i of triangle e at e*nq+i, nq
+	// the number of points of fem.ElementRule (the layout of
+	// fem.GaussPoints).
+	State []material.State
+	// History holds extra per-Gauss-point arrays (stress-work density W,
+	// …), each in the layout of State.
+	History [][]float64
+}
+
+// Check verifies that the field sizes fit mesh m.
+func (f *Fields) Check(m *fem.Mesh) error {
+	if f == nil {
+		return fmt.Errorf("transfer: nil fields")
+	}
+	if len(f.U) != len(m.X) {
+		return fmt.Errorf("transfer: displacement has %d values for %d nodes", len(f.U), len(m.X))
+	}
+	for k, l := range f.Linear {
+		if len(l) != m.NumCorners {
+			return fmt.Errorf("transfer: linear field %d has %d values for %d corner nodes", k, len(l), m.NumCorners)
+		}
+	}
+	np := len(m.Tri) * fem.ElementRule().Len()
+	if len(f.State) != np {
+		return fmt.Errorf("transfer: state has %d points for %d triangles × %d", len(f.State), len(m.Tri), fem.ElementRule().Len())
+	}
+	for k, h := range f.History {
+		if len(h) != np {
+			return fmt.Errorf("transfer: history %d has %d points, want %d", k, len(h), np)
+		}
+	}
+	return nil
+}
+
+// Measures are the integral figures of a Gauss-point state.
+type Measures struct {
+	// MaxF is the largest porosity of a sound (not broken) point.
+	MaxF float64
+	// IntP is ∫ p dV (dV = dA, or 2πr dA in axisymmetry).
+	IntP float64
+	// IntHistory is ∫ h dV of every history array.
+	IntHistory []float64
+	// Volume is ∫ dV.
+	Volume float64
+	// Broken counts the broken points.
+	Broken int
+}
+
+// Phases are wall times of the phases of a transfer.
+type Phases struct {
+	Index    time.Duration // building the R-tree of the old mesh
+	Nodes    time.Duration // locating and interpolating nodal fields
+	Locate   time.Duration // Gauss-point geometry, unchanged elements, location
+	Recover  time.Duration // patch recovery or L2 projection on the old mesh
+	Evaluate time.Duration // evaluation at the new points and bounds
+	Measure  time.Duration // the Measures before and after
+	Total    time.Duration
+}
+
+// Record says what a transfer did. Every new Gauss point is counted in
+// exactly one of Verbatim, Broken, Projected and Extrapolated.
+type Record struct {
+	Before, After Measures
+	// Verbatim points belong to unchanged triangles; Broken points took a
+	// broken old point's state; Projected points lie inside the old mesh;
+	// Extrapolated ones outside it (nearest triangle, clamped).
+	Verbatim, Broken, Projected, Extrapolated int
+	// UnchangedElements counts the new triangles found in the old mesh.
+	UnchangedElements int
+	// NodesCopied coincide with an old node; NodesInside and NodesOutside
+	// were interpolated inside the old mesh or at the nearest triangle.
+	NodesCopied, NodesInside, NodesOutside int
+	// ClampedF and ClampedP count the points whose projected f or p was
+	// outside its bounds.
+	ClampedF, ClampedP int
+	Wall               Phases
+}
+
+// Map transfers the state from on the old mesh onto the new mesh nw.
+func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Record, error) {
+	start := time.Now()
+	if err := opt.Validate(); err != nil {
+		return nil, nil, err
+	}
+	if old == nil || nw == nil {
+		return nil, nil, fmt.Errorf("transfer: nil mesh")
+	}
+	if len(old.Tri) == 0 {
+		return nil, nil, fmt.Errorf("transfer: the old mesh has no triangles")
+	}
+	if err := nw.Check(); err != nil {
+		return nil, nil, fmt.Errorf("transfer: new mesh: %w", err)
+	}
+	if err := from.Check(old); err != nil {
+		return nil, nil, fmt.Errorf("transfer: old fields: %w", err)
+	}
+	rec := &Record{}
+	w := opt.Workers
+	lap := time.Now()
+	tick := func(d *time.Duration) { now := time.Now(); *d = now.Sub(lap); lap = now }
+
+	lc, err := NewLocator(old, opt.Tol)
+	if err != nil {
+		return nil, nil, err
+	}
+	tick(&rec.Wall.Index)
+
+	// Nodal fields.
+	to := &Fields{U: make([][2]float64, len(nw.X)), Linear: make([][]float64, len(from.Linear))}
+	hits := lc.LocateNodes(nw, w)
+	if err := lc.InterpolateP2(to.U, hits, from.U); err != nil {
+		return nil, nil, err
+	}
+	for k, f := range from.Linear {
+		to.Linear[k] = make([]float64, nw.NumCorners)
+		if err := lc.InterpolateP1(to.Linear[k], hits, f); err != nil {
+			return nil, nil, fmt.Errorf("transfer: linear field %d: %w", k, err)
+		}
+	}
+	for _, h := range hits {
+		switch {
+		case h.Elem < 0:
+		case h.Node >= 0:
+			rec.NodesCopied++
+		case h.Inside:
+			rec.NodesInside++
+		default:
+			rec.NodesOutside++
+		}
+	}
+	tick(&rec.Wall.Nodes)
+
+	// Gauss points: geometry, unchanged triangles, location of the rest.
+	rule := fem.ElementRule()
+	nq := rule.Len()
+	oldX, oldDA := gaussGeometry(old, rule, w)
+	newX, newDA := gaussGeometry(nw, rule, w)
+	same, perm := unchanged(old, nw, rule)
+	ghits := make([]Hit, len(newX))
+	parallel(len(nw.Tri), w, func(lo, hi int) {
+		for e := lo; e < hi; e++ {
+			if same[e].elem >= 0 {
+				continue
+			}
+			for q := 0; q < nq; q++ {
+				ghits[e*nq+q] = lc.locate(newX[e*nq+q], nil)
+			}
+		}
+	})
+	for e := range nw.Tri {
+		if same[e].elem < 0 && ghits[e*nq].Elem < 0 {
+			return nil, nil, fmt.Errorf("transfer: Gauss point 0 of new triangle %d at %v could not be located", e, newX[e*nq])
+		}
+	}
+	tick(&rec.Wall.Locate)
+
+	// Recovery on the old mesh: Ep (4), p, f, history.
+	nh := len(from.History)
+	nc := 6 + nh
+	vals := make([]float64, len(from.State)*nc)
+	use := make([]bool, len(from.State))
+	for i, s := range from.State {
+		v := vals[i*nc : i*nc+nc]
+		copy(v, s.Ep[:])
+		v[4], v[5] = s.P, s.F
+		for k, h := range from.History {
+			v[6+k] = h[i]
+		}
+		use[i] = !s.Broken
+	}
+	var rc *recovery
+	switch opt.Method {
+	case PatchRecovery:
+		rc = patchRecovery(old, nq, oldX, vals, nc, use, w)
+	case L2Projection:
+		rc, err = l2Projection(old, rule, oldDA, vals, nc, opt.CGTol, opt.CGMaxIter, w)
+		if err != nil {
+			return nil, nil, err
+		}
+	}
+	tick(&rec.Wall.Recover)
+
+	// Evaluation at the new points, bounds, broken points.
+	to.State = make([]material.State, len(newX))
+	to.History = make([][]float64, nh)
+	for k := range to.History {
+		to.History[k] = make([]float64, len(newX))
+	}
+	fMax := math.Nextafter(opt.FBreak, math.Inf(-1))
+	kind := make([]uint8, len(newX))
+	const (
+		kVerbatim = iota
+		kBroken
+		kProjected
+		kExtrapolated
+	)
+	clampF := make([]bool, len(newX))
+	clampP := make([]bool, len(newX))
+	parallel(len(nw.Tri), w, func(lo, hi int) {
+		v := make([]float64, nc)
+		for e := lo; e < hi; e++ {
+			if oe := same[e].elem; oe >= 0 {
+				pm := perm[same[e].shift]
+				for q := 0; q < nq; q++ {
+					j := oe*nq + pm[q]
+					to.State[e*nq+q] = from.State[j]
+					for k := range to.History {
+						to.History[k][e*nq+q] = from.History[k][j]
+					}
+					kind[e*nq+q] = kVerbatim
+				}
+				continue
+			}
+			for q := 0; q < nq; q++ {
+				i := e*nq + q
+				h := ghits[i]
+				// The nearest old point in the old triangle decides
+				// whether the new point is broken.
+				near, nd := -1, math.Inf(1)
+				for j := h.Elem * nq; j < (h.Elem+1)*nq; j++ {
+					if d := dist2(oldX[j], newX[i]); d < nd {
+						near, nd = j, d
+					}
+				}
+				if from.State[near].Broken {
+					to.State[i] = from.State[near]
+					for k := range to.History {
+						to.History[k][i] = from.History[k][near]
+					}
+					kind[i] = kBroken
+					continue
+				}
+				rc.at(old.Tri[h.Elem], h.L, v)
+				s := material.State{Ep: material.Sym{v[0], v[1], v[2], v[3]}, P: v[4], F: v[5]}
+				if !(s.F >= opt.F0) {
+					s.F, clampF[i] = opt.F0, true
+				} else if s.F > fMax {
+					s.F, clampF[i] = fMax, true
+				}
+				if !(s.P >= 0) {
+					s.P, clampP[i] = 0, true
+				}
+				if opt.TraceFromPorosity {
+					d := (math.Log((1-opt.F0)/(1-s.F)) - s.Ep.Trace()) / 3
+					s.Ep[0] += d
+					s.Ep[1] += d
+					s.Ep[2] += d
+				}
+				to.State[i] = s
+				for k := range to.History {
+					to.History[k][i] = v[6+k]
+				}
+				if h.Inside {
+					kind[i] = kProjected
+				} else {
+					kind[i] = kExtrapolated
+				}
+			}
+		}
+	})
+	for i, k := range kind {
+		switch k {
+		case kVerbatim:
+			rec.Verbatim++
+		case kBroken:
+			rec.Broken++
+		case kProjected:
+			rec.Projected++
+		case kExtrapolated:
+			rec.Extrapolated++
+		}
+		if clampF[i] {
+			rec.ClampedF++
+		}
+		if clampP[i] {
+			rec.ClampedP++
+		}
+	}
+	for _, s := range same {
+		if s.elem >= 0 {
+			rec.UnchangedElements++
+		}
+	}
+	tick(&rec.Wall.Evaluate)
+
+	rec.Before = measure(from, oldX, oldDA, opt.Axisymmetric)
+	rec.After = measure(to, newX, newDA, opt.Axisymmetric)
+	tick(&rec.Wall.Measure)
+	rec.Wall.Total = time.Since(start)
+	return to, rec, nil
+}
+
+// Measure returns the integral figures of the Gauss-point state f on m.
+func Measure(m *fem.Mesh, f *Fields, axisymmetric bool) (Measures, error) {
+	if m == nil {
+		return Measures{}, fmt.Errorf("transfer: measure: nil mesh")
+	}
+	if err := f.Check(m); err != nil {
+		return Measures{}, fmt.Errorf("transfer: measure: %w", err)
+	}
+	x, da := gaussGeometry(m, fem.ElementRule(), 1)
+	return measure(f, x, da, axisymmetric), nil
+}
+
+func measure(f *Fields, x [][2]float64, da []float64, axisymmetric bool) Measures {
+	ms := Measures{IntHistory: make([]float64, len(f.History))}
+	for i, s := range f.State {
+		dv := da[i]
+		if axisymmetric {
+			dv *= 2 * math.Pi * x[i][0]
+		}
+		ms.Volume += dv
+		ms.IntP += s.P * dv
+		for k, h := range f.History {
+			ms.IntHistory[k] += h[i] * dv
+		}
+		if s.Broken {
+			ms.Broken++
+		} else if s.F > ms.MaxF {
+			ms.MaxF = s.F
+		}
+	}
+	return ms
+}
+
+// match is the old triangle an unchanged new triangle equals (elem = -1:
+// none) and the rotation shift: new vertex k is old vertex (k+shift) mod 3.
+type match struct{ elem, shift int }
+
+// unchanged finds the new triangles whose corner coordinates equal those of
+// an old triangle exactly, in some rotation, and the Gauss-point permutation
+// of each rotation: perm[s][q] is the old point at the new point q. A
+// rotation without an exact point permutation (a rule that is not
+// rotation-symmetric) disables verbatim copies for that rotation.
+func unchanged(old, nw *fem.Mesh, r fem.Rule) ([]match, [3][]int) {
+	var perm [3][]int
+	var ok [3]bool
+	for s := 0; s < 3; s++ {
+		perm[s] = make([]int, r.Len())
+		ok[s] = true
+		for q, lq := range r.L {
+			var lo [3]float64
+			for k := 0; k < 3; k++ {
+				lo[(k+s)%3] = lq[k]
+			}
+			perm[s][q] = -1
+			for j, lj := range r.L {
+				if lj == lo {
+					perm[s][q] = j
+					break
+				}
+			}
+			ok[s] = ok[s] && perm[s][q] >= 0
+		}
+	}
+	byKey := make(map[triKey]match, len(old.Tri))
+	for e := range old.Tri {
+		k, rot := canonical(old, e)
+		byKey[k] = match{elem: e, shift: rot}
+	}
+	same := make([]match, len(nw.Tri))
+	for e := range nw.Tri {
+		same[e] = match{elem: -1}
+		k, rot := canonical(nw, e)
+		if m, found := byKey[k]; found {
+			s := ((m.shift-rot)%3 + 3) % 3
+			if ok[s] {
+				same[e] = match{elem: m.elem, shift: s}
+			}
+		}
+	}
+	return same, perm
+}
+
+// triKey is a triangle's corner coordinates (bit patterns, −0 as +0),
+// starting at its lexicographically smallest vertex.
+type triKey [6]uint64
+
+func canonical(m *fem.Mesh, e int) (triKey, int) {
+	t := m.Tri[e]
+	v := [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
+	rot := 0
+	for k := 1; k < 3; k++ {
+		if v[k][0] < v[rot][0] || (v[k][0] == v[rot][0] && v[k][1] < v[rot][1]) {
+			rot = k
+		}
+	}
+	var key triKey
+	for j := 0; j < 3; j++ {
+		p := v[(j+rot)%3]
+		key[2*j] = math.Float64bits(p[0] + 0)
+		key[2*j+1] = math.Float64bits(p[1] + 0)
+	}
+	return key, rot
+}
