@@ -1,0 +1,295 @@
+package remesh
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"tearline/solver/fem"
+	"tearline/solver/material"
+)
+
+// structMesh builds a structured 6-node triangulation of the rectangle
+// [x0, x1] × [y0, y1] with nx × ny cells, each cut along its diagonal into
+// two counter-clockwise triangles; boundary labels "bottom", "right",
+// "top", "left"; corner nodes first. Named points: "origin" at (x0, y0).
+func structMesh(x0, y0, x1, y1 float64, nx, ny int) *fem.Mesh {
+	m := &fem.Mesh{Labels: []string{"bottom", "right", "top", "left"}, Points: map[string]int{}}
+	id := func(i, j int) int { return j*(nx+1) + i }
+	for j := 0; j <= ny; j++ {
+		for i := 0; i <= nx; i++ {
+			m.X = append(m.X, [2]float64{x0 + (x1-x0)*float64(i)/float64(nx), y0 + (y1-y0)*float64(j)/float64(ny)})
+		}
+	}
+	m.NumCorners = len(m.X)
+	mid := map[[2]int]int{}
+	midOf := func(a, b int) int {
+		k := [2]int{min(a, b), max(a, b)}
+		if n, ok := mid[k]; ok {
+			return n
+		}
+		pa, pb := m.X[a], m.X[b]
+		m.X = append(m.X, [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])})
+		mid[k] = len(m.X) - 1
+		return len(m.X) - 1
+	}
+	add := func(a, b, c int) {
+		m.Tri = append(m.Tri, [6]int{a, b, c, midOf(a, b), midOf(b, c), midOf(c, a)})
+	}
+	for j := 0; j < ny; j++ {
+		for i := 0; i < nx; i++ {
+			a, b, c, d := id(i, j), id(i+1, j), id(i+1, j+1), id(i, j+1)
+			add(a, b, c)
+			add(a, c, d)
+		}
+	}
+	// boundary edges: find each triangle edge on the rectangle's sides
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			pa, pb := m.X[a], m.X[b]
+			lab := -1
+			switch {
+			case pa[1] == y0 && pb[1] == y0:
+				lab = 0
+			case pa[0] == x1 && pb[0] == x1:
+				lab = 1
+			case pa[1] == y1 && pb[1] == y1:
+				lab = 2
+			case pa[0] == x0 && pb[0] == x0:
+				lab = 3
+			}
+			if lab >= 0 {
+				m.Boundary = append(m.Boundary, fem.Edge{A: a, B: b, Mid: t[3+k], Label: lab, Tri: e})
+			}
+		}
+	}
+	m.Points["origin"] = id(0, 0)
+	return m
+}
+
+// gaussPoints lays out ElementRule points on m with the virgin state f = f0.
+func gaussPoints(m *fem.Mesh, f0 float64) *fem.GaussPoints {
+	r := fem.ElementRule()
+	gp := &fem.GaussPoints{PerElement: r.Len()}
+	for _, t := range m.Tri {
+		for i := 0; i < r.Len(); i++ {
+			gp.Points = append(gp.Points, fem.GaussPoint{X: r.Point(i, m.X[t[0]], m.X[t[1]], m.X[t[2]]), State: material.State{F: f0}})
+		}
+	}
+	return gp
+}
+
+// nearestGP returns the index of the Gauss point nearest to x.
+func nearestGP(gp *fem.GaussPoints, x [2]float64) int {
+	best, bi := math.Inf(1), -1
+	for i := range gp.Points {
+		if d := math.Hypot(gp.Points[i].X[0]-x[0], gp.Points[i].X[1]-x[1]); d < best {
+			best, bi = d, i
+		}
+	}
+	return bi
+}
+
+// capsuleDepth is the depth of x inside the capsule of radius r around the
+// segment a–b (radius minus distance to the segment), from the definition.
+func capsuleDepth(x, a, b [2]float64, r float64) float64 {
+	dx, dy := b[0]-a[0], b[1]-a[1]
+	t := ((x[0]-a[0])*dx + (x[1]-a[1])*dy) / (dx*dx + dy*dy)
+	t = math.Max(0, math.Min(1, t))
+	return r - math.Hypot(x[0]-a[0]-t*dx, x[1]-a[1]-t*dy)
+}
+
+func TestNeedRemeshFront(t *testing.T) {
+	// Square 0..40 × -10..10 with ℓ = 1, 80×40 cells (h = 0.5, longest edge
+	// 0.707); tip at (10, 0) growing in +x; a capsule zone (Width = Spread
+	// = 3) from 8 to 16: its end is at x = 19, so with margin 2 the trigger
+	// line on the axis is x = 17 (capsule geometry, by definition).
+	m := structMesh(0, -10, 40, 10, 80, 40)
+	fo := DefaultFollowOptions(1, 4)
+	fo.Width, fo.Spread = 3, 3
+	tip := Tip{Name: "tip", X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
+	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := field.Zone()
+	to := DefaultTriggerOptions(1)
+	to.FAlert, to.PAlert = 0, 0 // this test checks the front alone
+	a, b := zone.Pieces[0].A, zone.Pieces[0].B
+	for _, c := range []struct {
+		name  string
+		front [2]float64
+	}{
+		{"front at tip", [2]float64{10.2, 0}},
+		{"front well inside", [2]float64{15.5, 0.3}},
+		{"front just before margin", [2]float64{16.6, 0}},
+		{"front just past margin", [2]float64{17.4, 0}},
+		{"front far past", [2]float64{21, 0}},
+		{"front off axis inside", [2]float64{13, 0.5}},
+		{"front off axis near side edge", [2]float64{13, 1.7}},
+		{"flank behind tip ignored", [2]float64{7, 2.8}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			gp := gaussPoints(m, 0.001)
+			k := nearestGP(gp, c.front)
+			gp.Points[k].State.F = 0.4
+			x := gp.Points[k].X
+			want := capsuleDepth(x, a, b, 3) < 2
+			if (x[0]-tip.X[0]) < -to.Wake { // more than Wake·ℓ behind the tip: flank
+				want = false
+			}
+			dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, 0, to)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if dec.Remesh != want {
+				t.Fatalf("front point (%g, %g), depth %g: remesh = %v (%s), want %v", x[0], x[1], capsuleDepth(x, a, b, 3), dec.Remesh, dec.Reason, want)
+			}
+			if want && dec.Cause != FrontNearEdge {
+				t.Fatalf("cause %v, want %v", dec.Cause, FrontNearEdge)
+			}
+		})
+	}
+	// the tip itself moving towards the end
+	for _, c := range []struct {
+		x    float64
+		want bool
+	}{{12, false}, {16.9, false}, {17.1, true}, {25, true}} {
+		gp := gaussPoints(m, 0.001)
+		cur := Tip{Name: "tip", X: [2]float64{c.x, 0}, Dir: [2]float64{1, 0}}
+		dec, err := NeedRemesh(m, gp, []Tip{cur}, &zone, 0, to)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if dec.Remesh != c.want || (c.want && dec.Cause != TipNearEdge) {
+			t.Errorf("tip at x = %g: %v %v (%s), want %v", c.x, dec.Remesh, dec.Cause, dec.Reason, c.want)
+		}
+	}
+}
+
+func TestNeedRemeshCoarseDamage(t *testing.T) {
+	// Element sizes (longest edge) of two structured meshes: 0.5·√2 and
+	// 4·√2 (by construction). Zone: h_fine = 0.5, h_wake = 2, so with the
+	// tolerance 1.5 the limits are 0.75 in the zone and 3 outside.
+	fine := structMesh(0, 0, 20, 12, 40, 24)
+	coarse := structMesh(0, 0, 20, 12, 5, 3)
+	fo := DefaultFollowOptions(1, 4)
+	tip := Tip{X: [2]float64{5, 5}, Dir: [2]float64{1, 0}}
+	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := field.Zone()
+	to := DefaultTriggerOptions(1)
+	for _, c := range []struct {
+		name  string
+		m     *fem.Mesh
+		at    [2]float64
+		f, p  float64
+		broke bool
+		want  bool
+	}{
+		{"damage outside zone, fine mesh", fine, [2]float64{15, 9}, 0.05, 0, false, false},
+		{"damage outside zone, coarse mesh", coarse, [2]float64{15, 9}, 0.05, 0, false, true},
+		{"plastic outside zone, coarse mesh", coarse, [2]float64{15, 9}, 0.001, 0.2, false, true},
+		{"below alert, coarse mesh", coarse, [2]float64{15, 9}, 0.01, 0.05, false, false},
+		{"broken point, coarse mesh", coarse, [2]float64{18, 1}, 0.001, 0, true, true},
+		{"damage inside zone, fine mesh", fine, [2]float64{6, 5}, 0.05, 0, false, false},
+		{"damage inside zone, coarse mesh", coarse, [2]float64{6, 5}, 0.05, 0, false, true},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			gp := gaussPoints(c.m, 0.001)
+			k := nearestGP(gp, c.at)
+			gp.Points[k].State.F, gp.Points[k].State.P, gp.Points[k].State.Broken = c.f, c.p, c.broke
+			// the size test uses the mesher's convention, the longest edge
+			e := k / gp.PerElement
+			h := LongestEdge(c.m, e)
+			dx := c.m.X[c.m.Tri[e][1]][0] - c.m.X[c.m.Tri[e][0]][0]
+			if math.Abs(h-math.Sqrt2*dx) > 1e-12 { // diagonal of a square cell
+				t.Fatalf("longest edge %g, want %g", h, math.Sqrt2*dx)
+			}
+			dec, err := NeedRemesh(c.m, gp, []Tip{tip}, &zone, 3, to)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if dec.Remesh != c.want {
+				t.Fatalf("remesh = %v (%s), want %v", dec.Remesh, dec.Reason, c.want)
+			}
+			if c.want && (dec.Cause != CoarseDamage || dec.Element != e) {
+				t.Fatalf("cause %v element %d, want %v element %d", dec.Cause, dec.Element, CoarseDamage, e)
+			}
+		})
+	}
+	// the limit turns a due remesh into a refusal with its own cause
+	gp := gaussPoints(coarse, 0.001)
+	gp.Points[nearestGP(gp, [2]float64{15, 9})].State.F = 0.05
+	to.MaxRemesh = 3
+	dec, err := NeedRemesh(coarse, gp, []Tip{tip}, &zone, 3, to)
+	if err != nil || dec.Remesh || dec.Cause != LimitReached {
+		t.Fatalf("at the limit: %+v, %v; want no remesh with cause %v", dec, err, LimitReached)
+	}
+}
+
+func TestNeedRemeshRareAfterRemesh(t *testing.T) {
+	// Right after a remesh (tip where the zone was built) the trigger is
+	// quiet, and it stays quiet while the tip grows by less than
+	// (Ahead + Spread − Margin)ℓ: remeshes are rare (DESIGN.md §4).
+	m := structMesh(0, -10, 40, 10, 80, 40)
+	fo := DefaultFollowOptions(1, 4)
+	tip := Tip{X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
+	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := field.Zone()
+	to := DefaultTriggerOptions(1)
+	grown := 0.0
+	for da := 0.0; da < 20; da += 0.25 {
+		cur := Tip{X: [2]float64{10 + da, 0}, Dir: [2]float64{1, 0}}
+		dec, err := NeedRemesh(m, gaussPoints(m, 0.001), []Tip{cur}, &zone, 0, to)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if dec.Remesh {
+			grown = da
+			break
+		}
+	}
+	// the exact trigger point of the tapered capsule lies between the
+	// capsule bounds with radius Width and Spread at the front end
+	lo, hi := fo.Ahead+fo.Width-to.Margin, fo.Ahead+fo.Spread-to.Margin
+	if grown < lo-0.25 || grown > hi+0.25 {
+		t.Fatalf("first remesh after Δa = %gℓ, want within [%g, %g]ℓ", grown, lo, hi)
+	}
+}
+
+func TestTriggerValidate(t *testing.T) {
+	m := structMesh(0, 0, 1, 1, 2, 2)
+	gp := gaussPoints(m, 0.001)
+	zone := FineZone{HFine: 0.1, HWake: 0.4}
+	for _, c := range []struct {
+		name string
+		mod  func(*TriggerOptions)
+		gp   *fem.GaussPoints
+		tips []Tip
+		want string
+	}{
+		{"zero length", func(o *TriggerOptions) { o.Length = 0 }, gp, nil, "Length"},
+		{"negative margin", func(o *TriggerOptions) { o.Margin = -1 }, gp, nil, "Margin"},
+		{"front level 1", func(o *TriggerOptions) { o.FrontLevel = 1 }, gp, nil, "FrontLevel"},
+		{"size tol < 1", func(o *TriggerOptions) { o.SizeTol = 0.5 }, gp, nil, "SizeTol"},
+		{"negative max", func(o *TriggerOptions) { o.MaxRemesh = -1 }, gp, nil, "MaxRemesh"},
+		{"gauss points mismatch", func(o *TriggerOptions) {}, &fem.GaussPoints{PerElement: 6, Points: gp.Points[:6]}, nil, "Gauss points"},
+		{"zero tip direction", func(o *TriggerOptions) {}, gp, []Tip{{Name: "t"}}, "direction"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			o := DefaultTriggerOptions(1)
+			c.mod(&o)
+			_, err := NeedRemesh(m, c.gp, c.tips, &zone, 0, o)
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v, want one naming %q", err, c.want)
+			}
+		})
+	}
+}

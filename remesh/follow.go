@@ -1,0 +1,261 @@
+package remesh
+
+import (
+	"fmt"
+	"math"
+)
+
+// Tip is a crack tip as the adaptive cycle sees it: where it is now and
+// which way it is growing. Name is the named point the tip carries in the
+// domain ("tip", "tip_left", …; empty when it carries none).
+type Tip struct {
+	Name string
+	X    [2]float64 // position, reference configuration
+	Dir  [2]float64 // growth direction; any non-zero length, normalised on use
+}
+
+// unitDir returns the tip's direction normalised, and false when it is zero
+// or not finite.
+func (t Tip) unitDir() ([2]float64, bool) {
+	n := math.Hypot(t.Dir[0], t.Dir[1])
+	if !(n > 0) || math.IsInf(n, 0) {
+		return [2]float64{}, false
+	}
+	return [2]float64{t.Dir[0] / n, t.Dir[1] / n}, true
+}
+
+// FollowOptions sets up the tip-following size field. Lengths other than
+// Length and HFar are in units of the internal length ℓ (Length), sizes in
+// units of h_fine = ℓ/κ.
+type FollowOptions struct {
+	// Length is the internal length ℓ (> 0). A local model (ℓ = 0) passes
+	// the length scale it wants the zone measured in, e.g. 2·h_fine.
+	Length float64
+	// Kappa sets h_fine = ℓ/κ; κ ≥ 2 (h ≤ ℓ/2, common practice for a
+	// converged J–Δa curve, DESIGN.md §1). The case key mesh.h_fine maps
+	// to κ = ℓ/h_fine.
+	Kappa float64
+	// HFar is the size far from every tip and damaged point (> h_fine).
+	HFar float64
+	// Ahead and Behind: the fine zone runs along the tip's direction from
+	// Behind·ℓ behind the tip to Ahead·ℓ ahead of it (Ahead > 0, Behind ≥ 0).
+	Ahead, Behind float64
+	// Width is the zone's half-width (ℓ) at its back end and Spread its
+	// half-width (ℓ) at its front end; Spread ≥ Width widens the zone ahead
+	// so that a path that turns stays inside (a turn of up to about
+	// atan(Spread/Ahead) before the next remesh).
+	Width, Spread float64
+	// Grade bounds the size gradient: |∇h| ≤ Grade everywhere the field
+	// itself sets the size (0 < Grade ≤ 1; 0.2–0.3 is common practice for
+	// a smooth Delaunay refinement).
+	Grade float64
+	// Wake is the size, in units of h_fine, given to damaged points
+	// outside the fine zone (the unloading wake): ≥ 1, and h_wake ≤ h_far.
+	Wake float64
+}
+
+// DefaultFollowOptions returns the defaults for internal length ell and far
+// size hFar: κ = 2, a zone from 2ℓ behind to 6ℓ ahead of the tip, 2ℓ wide
+// at the back and 4ℓ at the front, grade 0.25, wake 4·h_fine.
+func DefaultFollowOptions(ell, hFar float64) FollowOptions {
+	return FollowOptions{
+		Length: ell, Kappa: 2, HFar: hFar,
+		Ahead: 6, Behind: 2, Width: 2, Spread: 4,
+		Grade: 0.25, Wake: 4,
+	}
+}
+
+// HFine returns h_fine = ℓ/κ.
+func (o *FollowOptions) HFine() float64 { return o.Length / o.Kappa }
+
+// HWake returns the wake size Wake·h_fine.
+func (o *FollowOptions) HWake() float64 { return o.Wake * o.HFine() }
+
+// Validate checks the options and says which one is wrong and what is allowed.
+func (o *FollowOptions) Validate() error {
+	pos := func(name string, v float64) error {
+		if !(v > 0) || math.IsInf(v, 0) {
+			return fmt.Errorf("remesh: follow option %s = %g must be finite and > 0", name, v)
+		}
+		return nil
+	}
+	for _, c := range []struct {
+		n string
+		v float64
+	}{{"Length", o.Length}, {"Kappa", o.Kappa}, {"HFar", o.HFar}, {"Ahead", o.Ahead},
+		{"Width", o.Width}, {"Spread", o.Spread}, {"Grade", o.Grade}, {"Wake", o.Wake}} {
+		if err := pos(c.n, c.v); err != nil {
+			return err
+		}
+	}
+	if o.Kappa < 2 {
+		return fmt.Errorf("remesh: follow option Kappa = %g must be ≥ 2 (h_fine ≤ ℓ/2)", o.Kappa)
+	}
+	if !(o.Behind >= 0) || math.IsInf(o.Behind, 0) {
+		return fmt.Errorf("remesh: follow option Behind = %g must be finite and ≥ 0", o.Behind)
+	}
+	if o.Grade > 1 {
+		return fmt.Errorf("remesh: follow option Grade = %g must be ≤ 1", o.Grade)
+	}
+	if o.Wake < 1 {
+		return fmt.Errorf("remesh: follow option Wake = %g must be ≥ 1 (the wake is not finer than the zone)", o.Wake)
+	}
+	if o.HFar < o.HWake() {
+		return fmt.Errorf("remesh: follow option HFar = %g must be ≥ the wake size Wake·ℓ/κ = %g", o.HFar, o.HWake())
+	}
+	if math.Abs(o.Spread-o.Width) >= o.Ahead+o.Behind {
+		return fmt.Errorf("remesh: follow options |Spread − Width| = %g must be < Ahead + Behind = %g (the zone would not be a tapered capsule)",
+			math.Abs(o.Spread-o.Width), o.Ahead+o.Behind)
+	}
+	return nil
+}
+
+// ZonePiece is the fine zone of one tip: the union of the discs whose
+// centres run along the segment A→B and whose radii vary linearly from RA
+// at A to RB at B (a tapered capsule, the convex hull of the two end discs).
+type ZonePiece struct {
+	Tip    Tip
+	A, B   [2]float64
+	RA, RB float64
+}
+
+// Distance returns the signed distance-like function of the piece: the
+// distance from x to the zone outside it (exact), and minus the depth of x
+// in the deepest disc inside it (a lower bound of the depth below the
+// zone's edge, exact for RA = RB). It is 1-Lipschitz.
+func (z *ZonePiece) Distance(x [2]float64) float64 {
+	ux, uy := z.B[0]-z.A[0], z.B[1]-z.A[1]
+	L := math.Hypot(ux, uy)
+	if L == 0 {
+		return math.Hypot(x[0]-z.A[0], x[1]-z.A[1]) - math.Max(z.RA, z.RB)
+	}
+	ux, uy = ux/L, uy/L
+	dx, dy := x[0]-z.A[0], x[1]-z.A[1]
+	p := dx*ux + dy*uy             // along the axis
+	q := math.Abs(-dx*uy + dy*ux) // across it
+	k := (z.RB - z.RA) / L        // radius slope, |k| < 1
+	// Minimise |x − c(s)| − r(s) over s ∈ [0, L]: the stationary point of
+	// the convex function is s − p = k q / √(1 − k²); clamp to the segment.
+	s := p + k*q/math.Sqrt(1-k*k)
+	s = math.Max(0, math.Min(L, s))
+	return math.Hypot(p-s, q) - (z.RA + k*s)
+}
+
+// FineZone describes the fine zones of a size field, one piece per tip, as
+// the trigger needs them, together with the sizes the field promised.
+type FineZone struct {
+	Pieces []ZonePiece
+	HFine  float64 // size inside the zone
+	HWake  float64 // size at damaged points outside the zone
+}
+
+// Distance returns the smallest piece distance (negative inside the zone);
+// +Inf when the zone has no piece.
+func (z *FineZone) Distance(x [2]float64) float64 {
+	d := math.Inf(1)
+	for i := range z.Pieces {
+		d = math.Min(d, z.Pieces[i].Distance(x))
+	}
+	return d
+}
+
+// Depth returns how far x lies inside the zone, −Distance: positive inside,
+// negative outside.
+func (z *FineZone) Depth(x [2]float64) float64 { return -z.Distance(x) }
+
+// ZoneFor returns the zone piece that FollowOptions opt puts around tip t.
+func ZoneFor(t Tip, opt *FollowOptions) (ZonePiece, error) {
+	d, ok := t.unitDir()
+	if !ok {
+		return ZonePiece{}, fmt.Errorf("remesh: tip %q at (%g, %g): direction (%g, %g) must be finite and non-zero", t.Name, t.X[0], t.X[1], t.Dir[0], t.Dir[1])
+	}
+	if math.IsNaN(t.X[0]) || math.IsNaN(t.X[1]) || math.IsInf(t.X[0], 0) || math.IsInf(t.X[1], 0) {
+		return ZonePiece{}, fmt.Errorf("remesh: tip %q position (%g, %g) must be finite", t.Name, t.X[0], t.X[1])
+	}
+	l := opt.Length
+	return ZonePiece{
+		Tip: t,
+		A:   [2]float64{t.X[0] - opt.Behind*l*d[0], t.X[1] - opt.Behind*l*d[1]},
+		B:   [2]float64{t.X[0] + opt.Ahead*l*d[0], t.X[1] + opt.Ahead*l*d[1]},
+		RA:  opt.Width * l,
+		RB:  opt.Spread * l,
+	}, nil
+}
+
+// TipField is the tip-following size field of DESIGN.md §4:
+//
+//	h(x) = min( h_fine + g·dist(x, zone),          around and ahead of every tip
+//	            h_wake + g·dist(x, damaged points), the wake
+//	            feature(x),                          geometry features
+//	            h_far )
+//
+// with g = Grade, h_wake = Wake·h_fine. Each of the first two terms is
+// g-Lipschitz (a distance function is 1-Lipschitz) and so is their minimum
+// with a constant: the field grades at most at rate g wherever the feature
+// function does not set the size. The feature function is the caller's
+// (notch roots, load points, arcs); its own gradation is its business.
+type TipField struct {
+	opt     FollowOptions
+	zone    FineZone
+	wake    *kdPoints
+	feature func(x, y float64) float64
+	// reach is the distance beyond which a term exceeds h_far.
+	zoneReach, wakeReach float64
+}
+
+// NewTipField builds the size field for the given tips (several at once),
+// damaged points (see DamagedPoints) and an optional feature size function
+// (nil for none; it returns +Inf where it sets nothing).
+func NewTipField(tips []Tip, damaged [][2]float64, feature func(x, y float64) float64, opt FollowOptions) (*TipField, error) {
+	if err := opt.Validate(); err != nil {
+		return nil, err
+	}
+	f := &TipField{opt: opt, feature: feature}
+	f.zone = FineZone{HFine: opt.HFine(), HWake: opt.HWake()}
+	for i, t := range tips {
+		z, err := ZoneFor(t, &opt)
+		if err != nil {
+			return nil, fmt.Errorf("remesh: tip %d: %w", i, err)
+		}
+		f.zone.Pieces = append(f.zone.Pieces, z)
+	}
+	for i, p := range damaged {
+		if math.IsNaN(p[0]) || math.IsNaN(p[1]) || math.IsInf(p[0], 0) || math.IsInf(p[1], 0) {
+			return nil, fmt.Errorf("remesh: damaged point %d (%g, %g) must be finite", i, p[0], p[1])
+		}
+	}
+	f.wake = newKDPoints(damaged)
+	g := opt.Grade
+	f.zoneReach = (opt.HFar - f.zone.HFine) / g
+	f.wakeReach = (opt.HFar - f.zone.HWake) / g
+	return f, nil
+}
+
+// At returns the target element size at (x, y); it plugs into MeshDomain.
+func (f *TipField) At(x, y float64) float64 {
+	o := &f.opt
+	h := o.HFar
+	p := [2]float64{x, y}
+	if d := f.zone.Distance(p); d < f.zoneReach {
+		h = math.Min(h, f.zone.HFine+o.Grade*math.Max(0, d))
+	}
+	if d := f.wake.nearest(p, f.wakeReach); d < f.wakeReach {
+		h = math.Min(h, f.zone.HWake+o.Grade*d)
+	}
+	if f.feature != nil {
+		if v := f.feature(x, y); v > 0 && v < h {
+			h = v
+		}
+	}
+	return h
+}
+
+// Zone returns the fine zone's description for the trigger.
+func (f *TipField) Zone() FineZone {
+	z := f.zone
+	z.Pieces = append([]ZonePiece(nil), f.zone.Pieces...)
+	return z
+}
+
+// Options returns the options the field was built with.
+func (f *TipField) Options() FollowOptions { return f.opt }

@@ -1,0 +1,223 @@
+package remesh
+
+import (
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+// discsDistance is the distance-like function of a tapered capsule from its
+// definition, the minimum over its discs of |x − c(s)| − r(s), found by
+// ternary search of the convex function of s (a numerical reference for
+// the closed form of ZonePiece.Distance).
+func discsDistance(z *ZonePiece, x [2]float64) float64 {
+	g := func(s float64) float64 {
+		c := [2]float64{z.A[0] + s*(z.B[0]-z.A[0]), z.A[1] + s*(z.B[1]-z.A[1])}
+		return math.Hypot(x[0]-c[0], x[1]-c[1]) - (z.RA + s*(z.RB-z.RA))
+	}
+	lo, hi := 0.0, 1.0
+	for k := 0; k < 200; k++ {
+		a, b := lo+(hi-lo)/3, hi-(hi-lo)/3
+		if g(a) < g(b) {
+			hi = b
+		} else {
+			lo = a
+		}
+	}
+	return g(0.5 * (lo + hi))
+}
+
+func TestZonePieceDistance(t *testing.T) {
+	// Closed-form minimiser against the definition (union of discs).
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, z := range []ZonePiece{
+		{A: [2]float64{0, 0}, B: [2]float64{8, 0}, RA: 2, RB: 4},
+		{A: [2]float64{1, 2}, B: [2]float64{-3, 5}, RA: 3, RB: 1},
+		{A: [2]float64{0, 0}, B: [2]float64{0, 5}, RA: 2, RB: 2},
+	} {
+		for k := 0; k < 2000; k++ {
+			x := [2]float64{rng.Float64()*24 - 12, rng.Float64()*24 - 12}
+			got, want := z.Distance(x), discsDistance(&z, x)
+			if math.Abs(got-want) > 1e-12 {
+				t.Fatalf("zone %+v at %v: distance %g, from the discs %g", z, x, got, want)
+			}
+		}
+	}
+}
+
+func TestTipFieldSizes(t *testing.T) {
+	const ell = 0.2
+	o := DefaultFollowOptions(ell, 2)
+	hf, hw := o.HFine(), o.HWake()
+	tips := []Tip{
+		{Name: "right", X: [2]float64{3, 0}, Dir: [2]float64{1, 0}},
+		{Name: "left", X: [2]float64{-3, 0}, Dir: [2]float64{-1, 0}},
+		{Name: "turning", X: [2]float64{0, 4}, Dir: [2]float64{1, 1}},
+	}
+	// damaged points along the wake of the right tip, from x = 0 to 1.5 (the
+	// zone starts 2ℓ = 0.4 behind the tip, at x = 2.6)
+	var dmg [][2]float64
+	for x := 0.0; x <= 1.5; x += 0.05 {
+		dmg = append(dmg, [2]float64{x, 0.02})
+	}
+	feat := func(x, y float64) float64 {
+		if math.Hypot(x-5, y+5) < 0.1 { // a load point with its own size
+			return 0.01
+		}
+		return math.Inf(1)
+	}
+	f, err := NewTipField(tips, dmg, feat, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := f.Zone()
+	if len(zone.Pieces) != 3 || zone.HFine != hf || zone.HWake != hw {
+		t.Fatalf("zone %+v, want 3 pieces, h_fine %g, h_wake %g", zone, hf, hw)
+	}
+	for _, c := range []struct {
+		name string
+		x    [2]float64
+		want float64
+	}{
+		// in the zone: h_fine (by construction of the field, DESIGN.md §4)
+		{"at right tip", [2]float64{3, 0}, hf},
+		{"ahead of right tip", [2]float64{3 + 5.9*ell, 0.5 * ell}, hf},
+		{"beside right tip", [2]float64{3, 1.9 * ell}, hf},
+		{"at left tip", [2]float64{-3, 0}, hf},
+		{"ahead of left tip", [2]float64{-3 - 5*ell, 0}, hf},
+		{"along the turned direction", [2]float64{5 * ell * math.Sqrt2 / 2, 4 + 5*ell*math.Sqrt2/2}, hf},
+		// the wake: h_wake at the damaged points, coarser than the zone
+		{"wake at damaged point", [2]float64{0.5, 0.02}, hw},
+		// graded: h_wake + g·distance (distance 0.3 from (0.5, 0.02))
+		{"wake graded", [2]float64{0.5, 0.32}, hw + o.Grade*0.3},
+		// far away: h_far
+		{"far", [2]float64{0, -20}, o.HFar},
+		// the feature size wins where it is smaller
+		{"feature", [2]float64{5, -5}, 0.01},
+	} {
+		got := f.At(c.x[0], c.x[1])
+		if math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("%s at %v: h = %g, want %g", c.name, c.x, got, c.want)
+		}
+	}
+	if !(hw > hf) {
+		t.Errorf("wake size %g is not coarser than the zone's %g", hw, hf)
+	}
+}
+
+func TestTipFieldGradation(t *testing.T) {
+	// |∇h| ≤ g: sample |Δh|/|Δx| between grid neighbours and random pairs
+	// (a minimum of g-Lipschitz functions is g-Lipschitz; the bound of a
+	// graded size function, Persson 2006, Eng. Comput. 22).
+	for _, g := range []float64{0.2, 0.3} {
+		o := DefaultFollowOptions(0.1, 1)
+		o.Grade = g
+		tips := []Tip{
+			{X: [2]float64{0, 0}, Dir: [2]float64{1, 0.3}},
+			{X: [2]float64{1, 1}, Dir: [2]float64{-1, 0}},
+		}
+		var dmg [][2]float64
+		for s := 0.0; s < 1; s += 0.01 {
+			dmg = append(dmg, [2]float64{-s, 0.1 * math.Sin(5*s)})
+		}
+		f, err := NewTipField(tips, dmg, nil, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		const n, lo, hi = 300, -4.0, 4.0
+		dx := (hi - lo) / n
+		worst := 0.0
+		prev := make([]float64, n+1)
+		for j := 0; j <= n; j++ {
+			y := lo + float64(j)*dx
+			var left float64
+			for i := 0; i <= n; i++ {
+				x := lo + float64(i)*dx
+				h := f.At(x, y)
+				if i > 0 {
+					worst = math.Max(worst, math.Abs(h-left)/dx)
+				}
+				if j > 0 {
+					worst = math.Max(worst, math.Abs(h-prev[i])/dx)
+				}
+				left, prev[i] = h, h
+			}
+		}
+		rng := rand.New(rand.NewPCG(3, 4))
+		for k := 0; k < 20000; k++ {
+			p := [2]float64{lo + rng.Float64()*(hi-lo), lo + rng.Float64()*(hi-lo)}
+			q := [2]float64{p[0] + 0.05*rng.NormFloat64(), p[1] + 0.05*rng.NormFloat64()}
+			d := math.Hypot(p[0]-q[0], p[1]-q[1])
+			worst = math.Max(worst, math.Abs(f.At(p[0], p[1])-f.At(q[0], q[1]))/d)
+		}
+		if worst > g+1e-9 {
+			t.Errorf("grade %g: largest sampled |Δh|/|Δx| = %g", g, worst)
+		}
+		if worst < 0.9*g { // the bound is reached on the grading slopes
+			t.Errorf("grade %g: largest sampled |Δh|/|Δx| = %g, the field does not grade at its rate", g, worst)
+		}
+	}
+}
+
+func TestKDPointsNearest(t *testing.T) {
+	// against brute force
+	rng := rand.New(rand.NewPCG(5, 6))
+	pts := make([][2]float64, 500)
+	for i := range pts {
+		pts[i] = [2]float64{rng.Float64(), rng.Float64()}
+	}
+	kd := newKDPoints(pts)
+	for k := 0; k < 2000; k++ {
+		x := [2]float64{rng.Float64()*3 - 1, rng.Float64()*3 - 1}
+		want := math.Inf(1)
+		for _, p := range pts {
+			want = math.Min(want, math.Hypot(p[0]-x[0], p[1]-x[1]))
+		}
+		if got := kd.nearest(x, math.Inf(1)); math.Abs(got-want) > 1e-15*want {
+			t.Fatalf("nearest to %v: %g, brute force %g", x, got, want)
+		}
+		if got := kd.nearest(x, 0.5*want); got < 0.5*want {
+			t.Fatalf("cut-off query returned %g below the cut-off %g", got, 0.5*want)
+		}
+	}
+}
+
+func TestFollowValidate(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		mod  func(*FollowOptions)
+		want string
+	}{
+		{"zero length", func(o *FollowOptions) { o.Length = 0 }, "Length"},
+		{"kappa below 2", func(o *FollowOptions) { o.Kappa = 1.5 }, "Kappa"},
+		{"grade above 1", func(o *FollowOptions) { o.Grade = 1.5 }, "Grade"},
+		{"wake below 1", func(o *FollowOptions) { o.Wake = 0.5 }, "Wake"},
+		{"h_far below wake", func(o *FollowOptions) { o.HFar = 0.1 }, "HFar"},
+		{"negative behind", func(o *FollowOptions) { o.Behind = -1 }, "Behind"},
+		{"taper too steep", func(o *FollowOptions) { o.Spread = 20 }, "Spread"},
+		{"NaN ahead", func(o *FollowOptions) { o.Ahead = math.NaN() }, "Ahead"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			o := DefaultFollowOptions(1, 10)
+			c.mod(&o)
+			err := o.Validate()
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v, want one naming %q", err, c.want)
+			}
+			if _, err := NewTipField(nil, nil, nil, o); err == nil {
+				t.Fatal("NewTipField accepted invalid options")
+			}
+		})
+	}
+	o := DefaultFollowOptions(1, 10)
+	if err := o.Validate(); err != nil {
+		t.Fatalf("defaults rejected: %v", err)
+	}
+	if _, err := NewTipField([]Tip{{X: [2]float64{0, 0}}}, nil, nil, o); err == nil || !strings.Contains(err.Error(), "direction") {
+		t.Fatalf("zero tip direction: error %v", err)
+	}
+	if _, err := NewTipField(nil, [][2]float64{{math.NaN(), 0}}, nil, o); err == nil || !strings.Contains(err.Error(), "damaged point") {
+		t.Fatalf("NaN damaged point: error %v", err)
+	}
+}
