@@ -136,7 +136,7 @@ func TestNeedRemeshFront(t *testing.T) {
 			gp.Points[k].State.F = 0.4
 			x := gp.Points[k].X
 			want := capsuleDepth(x, a, b, 3) < 2
-			if (x[0]-tip.X[0]) < -to.Wake { // more than Wake·ℓ behind the tip: flank
+			if (x[0] - tip.X[0]) < -to.Wake { // more than Wake·ℓ behind the tip: flank
 				want = false
 			}
 			dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, 0, to)

@@ -131,7 +131,7 @@ func (z *ZonePiece) Distance(x [2]float64) float64 {
 	}
 	ux, uy = ux/L, uy/L
 	dx, dy := x[0]-z.A[0], x[1]-z.A[1]
-	p := dx*ux + dy*uy             // along the axis
+	p := dx*ux + dy*uy            // along the axis
 	q := math.Abs(-dx*uy + dy*ux) // across it
 	k := (z.RB - z.RA) / L        // radius slope, |k| < 1
 	// Minimise |x − c(s)| − r(s) over s ∈ [0, L]: the stationary point of
