@@ -1,0 +1,130 @@
+package criteria
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"tearline/solver/fem"
+)
+
+// TestDomainJWilliams evaluates the domain integral on the exact Williams
+// field sampled at the Gauss points of a cracked-disk mesh (F = I + ∇u,
+// P = small-strain stress, W = ½σ:ε) and checks J = K²(1−ν²)/E within 1%
+// on every ring (V4/V11: Williams 1957; Rice 1968, J. Appl. Mech. 35). The
+// superposed rigid rotation checks the finite-strain form: J is unchanged
+// by a rigid rotation of the deformed state (Rice 1968; frame indifference).
+func TestDomainJWilliams(t *testing.T) {
+	el := Elastic{E: 210e3, Nu: 0.3}
+	rings := []Ring{{0, 0.1}, {0.05, 0.3}, {0.2, 0.5}, {0.4, 0.8}, {0.1, 0.95}}
+	for _, tc := range []struct {
+		name      string
+		tip, dir  [2]float64
+		K, T, rot float64
+		nr, nth   int
+	}{
+		{"aligned", [2]float64{0, 0}, [2]float64{1, 0}, 60, 0, 0, 16, 32},
+		{"T-stress, turned tip", [2]float64{3, -2}, [2]float64{math.Cos(0.6), math.Sin(0.6)}, 40, 150, 0, 16, 32},
+		{"rigid rotation 30°", [2]float64{0, 0}, [2]float64{1, 0}, 60, 0, math.Pi / 6, 16, 32},
+	} {
+		m := crackedDisk(1, tc.nr, tc.nth, tc.tip, tc.dir)
+		if err := m.Check(); err != nil {
+			t.Fatalf("%s: test mesh: %v", tc.name, err)
+		}
+		k := KField{K: tc.K, T: tc.T, El: el, Tip: tc.tip, Dir: tc.dir}
+		gp := gaussFrom(m, williamsGauss(k, tc.rot))
+		J, err := DomainJ(m, gp, JOptions{Tip: tc.tip, Dir: tc.dir, Rings: rings, Cross: []string{"crack"}})
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		want := FarFieldJ(tc.K, el)
+		for i, j := range J {
+			rel := j/want - 1
+			t.Logf("%s ring %v: J = %.6g, K²(1−ν²)/E = %.6g, rel. error %.2e", tc.name, rings[i], j, want, rel)
+			if math.Abs(rel) > 0.01 {
+				t.Errorf("%s ring %v: J = %g, want %g within 1%%", tc.name, rings[i], j, want)
+			}
+		}
+	}
+}
+
+// TestDomainJSymmetric checks the half-model factor: the upper half of the
+// cracked disk with Symmetric gives the full J (mirror symmetry of mode I,
+// Williams 1957).
+func TestDomainJSymmetric(t *testing.T) {
+	el := Elastic{E: 70e3, Nu: 0.33}
+	full := crackedDisk(1, 12, 32, [2]float64{0, 0}, [2]float64{1, 0})
+	// keep the triangles of the upper half (centroid y > 0).
+	half := &fem.Mesh{X: full.X, NumCorners: full.NumCorners, Labels: full.Labels, Points: full.Points}
+	for _, tr := range full.Tri {
+		if full.X[tr[0]][1]+full.X[tr[1]][1]+full.X[tr[2]][1] > 0 {
+			half.Tri = append(half.Tri, tr)
+		}
+	}
+	k := KField{K: 25, El: el, Dir: [2]float64{1, 0}}
+	gp := gaussFrom(half, williamsGauss(k, 0))
+	rings := []Ring{{0.1, 0.4}, {0.3, 0.9}}
+	J, err := DomainJ(half, gp, JOptions{Dir: [2]float64{1, 0}, Rings: rings, Symmetric: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := FarFieldJ(25, el)
+	for i, j := range J {
+		if math.Abs(j/want-1) > 0.01 {
+			t.Errorf("half model ring %v: J = %g, want %g within 1%%", rings[i], j, want)
+		}
+	}
+}
+
+// TestDomainJUniform checks that a uniform field in a body without a crack
+// gives J = 0 (path independence: the closed-contour J of a regular field
+// vanishes, Rice 1968), for finite deformation and stress alike.
+func TestDomainJUniform(t *testing.T) {
+	m := gridMesh(-1, 1, -1, 1, 10, 10, true)
+	F := [5]float64{1.05, 0.02, -0.03, 0.97, 1}
+	P := [5]float64{300, 40, 35, -120, 50}
+	gp := gaussFrom(m, func(x [2]float64) ([5]float64, [5]float64, float64, float64) { return F, P, 12.5, 0 })
+	J, err := DomainJ(m, gp, JOptions{Tip: [2]float64{0.13, -0.07}, Dir: [2]float64{1, 0.4}, Rings: []Ring{{0.1, 0.5}, {0, 0.8}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// scale of one term: |P||H| area ~ 300·0.05·1
+	for i, j := range J {
+		if math.Abs(j) > 1e-11 {
+			t.Errorf("ring %d: J = %g, want 0 for a uniform field", i, j)
+		}
+	}
+}
+
+// TestDomainJBadInput checks that bad input gives clear errors.
+func TestDomainJBadInput(t *testing.T) {
+	m := crackedDisk(1, 4, 8, [2]float64{0, 0}, [2]float64{1, 0})
+	k := KField{K: 1, El: Elastic{E: 1, Nu: 0.3}, Dir: [2]float64{1, 0}}
+	gp := gaussFrom(m, williamsGauss(k, 0))
+	ok := JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.1, 0.5}}}
+	short := &fem.GaussPoints{PerElement: gp.PerElement, Points: gp.Points[:10]}
+	for _, tc := range []struct {
+		name string
+		m    *fem.Mesh
+		gp   *fem.GaussPoints
+		opt  JOptions
+		want string
+	}{
+		{"nil mesh", nil, gp, ok, "empty mesh"},
+		{"empty mesh", &fem.Mesh{}, gp, ok, "empty mesh"},
+		{"no Gauss data", m, nil, ok, "no Gauss-point data"},
+		{"short Gauss data", m, short, ok, "the mesh needs"},
+		{"inverted ring", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.5, 0.1}}}, "need 0 ≤ in < out"},
+		{"no rings", m, gp, JOptions{Dir: [2]float64{1, 0}}, "no rings"},
+		{"zero direction", m, gp, JOptions{Rings: ok.Rings}, "crack direction"},
+		{"axisymmetric", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: ok.Rings, Axisymmetric: true}, "axisymmetric"},
+		{"missing label", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: ok.Rings, Cross: []string{"flank"}}, `label "flank"`},
+		{"ring reaches outer boundary", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.5, 1.5}}, Cross: []string{"crack"}}, `boundary "outer"`},
+		{"ring outside the mesh", m, gp, JOptions{Tip: [2]float64{10, 10}, Dir: [2]float64{1, 0}, Rings: []Ring{{0.1, 0.5}}}, "holds no element"},
+	} {
+		_, err := DomainJ(tc.m, tc.gp, tc.opt)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want one containing %q", tc.name, err, tc.want)
+		}
+	}
+}
