@@ -1,0 +1,217 @@
+package tri
+
+import "math"
+
+// Robust geometric predicates.
+//
+// orient and inCircle follow the scheme of Shewchuk (1997), "Adaptive
+// precision floating-point arithmetic and fast robust geometric predicates",
+// Discrete Comput. Geom. 18: a floating-point evaluation whose sign is
+// accepted when the result exceeds a forward error bound, and an exact
+// evaluation with floating-point expansions otherwise. The intermediate
+// adaptive stages of the paper are skipped: the filter fails rarely, and the
+// exact stage is then computed directly. The implementation is our own.
+
+// eps is half the unit roundoff of float64 (2^-53), the ε of Shewchuk (1997).
+const eps = 1.0 / (1 << 53)
+
+// Error-bound coefficients of the floating-point filters (Shewchuk 1997, §4.2).
+const (
+	ccwErrBoundA = (3 + 16*eps) * eps
+	iccErrBoundA = (10 + 96*eps) * eps
+)
+
+// orient returns a positive value if a, b, c are in counter-clockwise order,
+// a negative value if clockwise and zero if they are collinear. The sign is
+// exact.
+func orient(a, b, c [2]float64) float64 {
+	detLeft := (a[0] - c[0]) * (b[1] - c[1])
+	detRight := (a[1] - c[1]) * (b[0] - c[0])
+	det := detLeft - detRight
+	detSum := math.Abs(detLeft) + math.Abs(detRight)
+	if math.Abs(det) > ccwErrBoundA*detSum {
+		return det
+	}
+	return orientExact(a, b, c)
+}
+
+// inCircle returns a positive value if d lies inside the circle through the
+// counter-clockwise triangle a, b, c, a negative value if outside and zero if
+// on it. The sign is exact.
+func inCircle(a, b, c, d [2]float64) float64 {
+	adx, ady := a[0]-d[0], a[1]-d[1]
+	bdx, bdy := b[0]-d[0], b[1]-d[1]
+	cdx, cdy := c[0]-d[0], c[1]-d[1]
+	bdxcdy, cdxbdy := bdx*cdy, cdx*bdy
+	cdxady, adxcdy := cdx*ady, adx*cdy
+	adxbdy, bdxady := adx*bdy, bdx*ady
+	alift := adx*adx + ady*ady
+	blift := bdx*bdx + bdy*bdy
+	clift := cdx*cdx + cdy*cdy
+	det := alift*(bdxcdy-cdxbdy) + blift*(cdxady-adxcdy) + clift*(adxbdy-bdxady)
+	perm := (math.Abs(bdxcdy)+math.Abs(cdxbdy))*alift +
+		(math.Abs(cdxady)+math.Abs(adxcdy))*blift +
+		(math.Abs(adxbdy)+math.Abs(bdxady))*clift
+	if math.Abs(det) > iccErrBoundA*perm {
+		return det
+	}
+	return inCircleExact(a, b, c, d)
+}
+
+// Expansion arithmetic (Shewchuk 1997, §2): a value is held as a sum of
+// non-overlapping float64 components in increasing magnitude; the sign of the
+// value is the sign of the last (largest) component.
+
+// twoSum returns x = fl(a+b) and the exact rounding error y (Knuth's
+// two-sum; Shewchuk 1997, Theorem 7).
+func twoSum(a, b float64) (x, y float64) {
+	x = a + b
+	bv := x - a
+	av := x - bv
+	y = (a - av) + (b - bv)
+	return
+}
+
+// twoProd returns x = fl(a·b) and the exact error y, using the fused
+// multiply-add (the product error is representable exactly).
+func twoProd(a, b float64) (x, y float64) {
+	x = a * b
+	y = math.FMA(a, b, -x)
+	return
+}
+
+// twoDiffExp returns a−b as an expansion (at most two components).
+func twoDiffExp(a, b float64, h []float64) []float64 {
+	x, y := twoSum(a, -b)
+	h = h[:0]
+	if y != 0 {
+		h = append(h, y)
+	}
+	if x != 0 || len(h) == 0 {
+		h = append(h, x)
+	}
+	return h
+}
+
+// expSum returns the expansion e+f appended to h[:0]: the components of e and
+// f merged by increasing magnitude and accumulated with two-sum (Shewchuk
+// 1997, Theorem 13, fast expansion sum, with zero elimination).
+func expSum(e, f, h []float64) []float64 {
+	h = h[:0]
+	i, j := 0, 0
+	next := func() float64 {
+		var g float64
+		if j >= len(f) || (i < len(e) && math.Abs(e[i]) <= math.Abs(f[j])) {
+			g = e[i]
+			i++
+		} else {
+			g = f[j]
+			j++
+		}
+		return g
+	}
+	n := len(e) + len(f)
+	if n == 0 {
+		return append(h, 0)
+	}
+	q := next()
+	for k := 1; k < n; k++ {
+		var hh float64
+		q, hh = twoSum(q, next())
+		if hh != 0 {
+			h = append(h, hh)
+		}
+	}
+	if q != 0 || len(h) == 0 {
+		h = append(h, q)
+	}
+	return h
+}
+
+// expScale returns e·b appended to h[:0] (Shewchuk 1997, Theorem 19, scale
+// expansion, with zero elimination).
+func expScale(e []float64, b float64, h []float64) []float64 {
+	h = h[:0]
+	q, hh := twoProd(e[0], b)
+	if hh != 0 {
+		h = append(h, hh)
+	}
+	for k := 1; k < len(e); k++ {
+		p1, p0 := twoProd(e[k], b)
+		var sum float64
+		sum, hh = twoSum(q, p0)
+		if hh != 0 {
+			h = append(h, hh)
+		}
+		q, hh = twoSum(p1, sum)
+		if hh != 0 {
+			h = append(h, hh)
+		}
+	}
+	if q != 0 || len(h) == 0 {
+		h = append(h, q)
+	}
+	return h
+}
+
+// expMul returns the exact product e·f as a new expansion.
+func expMul(e, f []float64) []float64 {
+	acc := []float64{0}
+	var tmp, sum []float64
+	for _, fk := range f {
+		if fk == 0 {
+			continue
+		}
+		tmp = expScale(e, fk, tmp)
+		sum = expSum(acc, tmp, sum)
+		acc, sum = sum, acc
+	}
+	return acc
+}
+
+func expNeg(e []float64) []float64 {
+	for k := range e {
+		e[k] = -e[k]
+	}
+	return e
+}
+
+func expSign(e []float64) float64 {
+	for k := len(e) - 1; k >= 0; k-- {
+		if e[k] != 0 {
+			return e[k]
+		}
+	}
+	return 0
+}
+
+func orientExact(a, b, c [2]float64) float64 {
+	var b1, b2, b3, b4 [2]float64
+	acx := twoDiffExp(a[0], c[0], b1[:])
+	bcy := twoDiffExp(b[1], c[1], b2[:])
+	acy := twoDiffExp(a[1], c[1], b3[:])
+	bcx := twoDiffExp(b[0], c[0], b4[:])
+	l := expMul(acx, bcy)
+	r := expNeg(expMul(acy, bcx))
+	return expSign(expSum(l, r, nil))
+}
+
+func inCircleExact(a, b, c, d [2]float64) float64 {
+	var b1, b2, b3, b4, b5, b6 [2]float64
+	adx := twoDiffExp(a[0], d[0], b1[:])
+	ady := twoDiffExp(a[1], d[1], b2[:])
+	bdx := twoDiffExp(b[0], d[0], b3[:])
+	bdy := twoDiffExp(b[1], d[1], b4[:])
+	cdx := twoDiffExp(c[0], d[0], b5[:])
+	cdy := twoDiffExp(c[1], d[1], b6[:])
+	minor := func(px, py, qx, qy []float64) []float64 { // px·qy − qx·py
+		return expSum(expMul(px, qy), expNeg(expMul(qx, py)), nil)
+	}
+	lift := func(px, py []float64) []float64 {
+		return expSum(expMul(px, px), expMul(py, py), nil)
+	}
+	ta := expMul(lift(adx, ady), minor(bdx, bdy, cdx, cdy))
+	tb := expMul(lift(bdx, bdy), minor(cdx, cdy, adx, ady))
+	tc := expMul(lift(cdx, cdy), minor(adx, ady, bdx, bdy))
+	return expSign(expSum(expSum(ta, tb, nil), tc, nil))
+}

@@ -1,0 +1,446 @@
+package tri
+
+import (
+	"fmt"
+	"math"
+)
+
+// refiner carries out Delaunay refinement (Ruppert 1995, J. Algorithms 18;
+// Shewchuk 2002, Comput. Geom. 22) on a carved CDT.
+type refiner struct {
+	m      *tmesh
+	size   func(x, y float64) float64
+	split  func(mark int, a, b [2]float64) [2]float64
+	sin2   float64 // sin² of the minimum angle
+	maxPts int
+	inSegs [][2]int // input segments (for the small-angle rule)
+
+	segQ    []segItem
+	segHead int
+	triQ    []triItem
+	triHead int
+	enc     []int32
+	added   int
+	err     error
+}
+
+type segItem struct{ s, a, b int32 }
+type triItem struct{ t, a, b, c int32 }
+
+func newRefiner(m *tmesh, in *Input, opt *Options) *refiner {
+	r := &refiner{m: m, maxPts: DefaultMaxPoints, inSegs: in.Segments}
+	theta := float64(DefaultMinAngle)
+	if opt != nil {
+		r.size, r.split = opt.Size, opt.Split
+		if opt.MinAngle > 0 {
+			theta = opt.MinAngle
+		}
+		if opt.MaxPoints > 0 {
+			r.maxPts = opt.MaxPoints
+		}
+	}
+	s := math.Sin(theta * math.Pi / 180)
+	r.sin2 = s * s
+	return r
+}
+
+func (r *refiner) run() error {
+	m := r.m
+	for s := range m.sa {
+		if m.sa[s] < 0 {
+			continue
+		}
+		e := m.findEdge(m.sa[s], m.sb[s])
+		if r.segEncroached(e) {
+			r.pushSeg(int32(s))
+		}
+	}
+	ntri := int32(len(m.tv) / 3)
+	for t := int32(0); t < ntri; t++ {
+		if m.alive(t) && r.bad(t) {
+			r.pushTri(t)
+		}
+	}
+	if r.err != nil {
+		return r.err
+	}
+	iter, iterLimit := 0, 64*r.maxPts+1<<20
+	for {
+		if iter++; iter > iterLimit {
+			return fmt.Errorf("tri: refinement made no progress after %d steps", iterLimit)
+		}
+		if r.added > r.maxPts {
+			return fmt.Errorf("tri: refinement needs more than %d inserted points (MaxPoints); the size field or the input features may be too small", r.maxPts)
+		}
+		if r.segHead < len(r.segQ) {
+			it := r.segQ[r.segHead]
+			r.segHead++
+			if m.sa[it.s] != it.a || m.sb[it.s] != it.b {
+				continue
+			}
+			if err := r.splitSeg(it.s); err != nil {
+				return err
+			}
+			continue
+		}
+		r.segQ, r.segHead = r.segQ[:0], 0
+		if r.triHead >= len(r.triQ) {
+			break
+		}
+		it := r.triQ[r.triHead]
+		r.triHead++
+		if r.triHead > 4096 && 2*r.triHead > len(r.triQ) {
+			n := copy(r.triQ, r.triQ[r.triHead:])
+			r.triQ, r.triHead = r.triQ[:n], 0
+		}
+		t := it.t
+		if !m.alive(t) || m.tv[3*t] != it.a || m.tv[3*t+1] != it.b || m.tv[3*t+2] != it.c {
+			continue
+		}
+		r.splitTri(t)
+		if r.err != nil {
+			return r.err
+		}
+	}
+	return r.err
+}
+
+func (r *refiner) pushSeg(s int32) {
+	r.segQ = append(r.segQ, segItem{s, r.m.sa[s], r.m.sb[s]})
+}
+
+func (r *refiner) pushTri(t int32) {
+	m := r.m
+	r.triQ = append(r.triQ, triItem{t, m.tv[3*t], m.tv[3*t+1], m.tv[3*t+2]})
+}
+
+// encroaches reports whether p lies strictly inside the diametral circle of
+// a–b (Ruppert 1995).
+func encroaches(p, a, b [2]float64) bool {
+	return dot(sub(a, p), sub(b, p)) < 0
+}
+
+// segEncroached reports whether the apex of a triangle on edge e encroaches it.
+func (r *refiner) segEncroached(e int32) bool {
+	m := r.m
+	if e < 0 {
+		return false
+	}
+	t, i := e/3, e%3
+	a, b := m.xy[m.tv[3*t+next3(i)]], m.xy[m.tv[3*t+prev3(i)]]
+	if encroaches(m.xy[m.tv[e]], a, b) {
+		return true
+	}
+	if n := m.tn[e]; n >= 0 && encroaches(m.xy[m.tv[n]], a, b) {
+		return true
+	}
+	return false
+}
+
+// bad reports whether triangle t must be split: its size (longest edge)
+// exceeds h at its centroid, or its smallest angle is below the bound (unless
+// it sits in the corner of a small input angle).
+func (r *refiner) bad(t int32) bool {
+	m := r.m
+	va, vb, vc := m.tv[3*t], m.tv[3*t+1], m.tv[3*t+2]
+	a, b, c := m.xy[va], m.xy[vb], m.xy[vc]
+	ab, bc, ca := sub(b, a), sub(c, b), sub(a, c)
+	lab, lbc, lca := dot(ab, ab), dot(bc, bc), dot(ca, ca)
+	lmax := math.Max(lab, math.Max(lbc, lca))
+	if r.size != nil {
+		cx, cy := (a[0]+b[0]+c[0])/3, (a[1]+b[1]+c[1])/3
+		h := r.size(cx, cy)
+		if !(h > 0) || math.IsInf(h, 0) {
+			if r.err == nil {
+				r.err = fmt.Errorf("tri: size function gave h(%g, %g) = %g; it must be finite and > 0", cx, cy, h)
+			}
+			return false
+		}
+		if lmax > h*h {
+			return true
+		}
+	}
+	// sin of the smallest angle = 2·area / (product of the two longer edges)
+	area2 := ab[0]*(-ca[1]) - ab[1]*(-ca[0])
+	var l1, l2 float64 // two longer edges (squared)
+	var u, v int32     // ends of the shortest edge
+	switch {
+	case lab <= lbc && lab <= lca:
+		l1, l2, u, v = lbc, lca, va, vb
+	case lbc <= lca:
+		l1, l2, u, v = lab, lca, vb, vc
+	default:
+		l1, l2, u, v = lab, lbc, vc, va
+	}
+	if area2*area2 >= r.sin2*l1*l2 {
+		return false
+	}
+	return !r.smallAngleCorner(u, v)
+}
+
+// smallAngleCorner reports whether edge u–v joins two vertices on two
+// different input segments that meet at an input vertex at an angle below
+// 60°: such skinny triangles cannot be improved and are left alone (the rule
+// of Shewchuk 2002, §4, for small input angles).
+func (r *refiner) smallAngleCorner(u, v int32) bool {
+	m := r.m
+	su, sv := m.vseg[u], m.vseg[v]
+	if su < 0 || sv < 0 || su == sv || len(r.inSegs) == 0 {
+		return false
+	}
+	s1, s2 := r.inSegs[su], r.inSegs[sv]
+	var w, o1, o2 int
+	switch {
+	case s1[0] == s2[0]:
+		w, o1, o2 = s1[0], s1[1], s2[1]
+	case s1[0] == s2[1]:
+		w, o1, o2 = s1[0], s1[1], s2[0]
+	case s1[1] == s2[0]:
+		w, o1, o2 = s1[1], s1[0], s2[1]
+	case s1[1] == s2[1]:
+		w, o1, o2 = s1[1], s1[0], s2[0]
+	default:
+		return false
+	}
+	d1, d2 := sub(m.xy[o1], m.xy[w]), sub(m.xy[o2], m.xy[w])
+	cosw := dot(d1, d2) / math.Sqrt(dot(d1, d1)*dot(d2, d2))
+	return cosw > 0.5
+}
+
+// afterInsert queues the sub-segments encroached and the bad triangles
+// around the new vertex v.
+func (r *refiner) afterInsert(v int32) {
+	m := r.m
+	r.added++
+	for _, t := range m.star(v) {
+		k := m.slot(t, v)
+		x, y := m.tv[3*t+next3(k)], m.tv[3*t+prev3(k)]
+		if s := m.ts[3*t+k]; s >= 0 && encroaches(m.xy[v], m.xy[x], m.xy[y]) {
+			r.pushSeg(s)
+		}
+		if s := m.ts[3*t+prev3(k)]; s >= 0 && encroaches(m.xy[y], m.xy[v], m.xy[x]) {
+			r.pushSeg(s)
+		}
+		if s := m.ts[3*t+next3(k)]; s >= 0 && encroaches(m.xy[x], m.xy[y], m.xy[v]) {
+			r.pushSeg(s)
+		}
+		if r.bad(t) {
+			r.pushTri(t)
+		}
+	}
+}
+
+// splitPoint returns the point at which sub-segment a–b is split: at a
+// power-of-two distance from its end if exactly one end is an input vertex
+// (concentric shells, Ruppert 1995 §4; Shewchuk 2002 §4), else the midpoint.
+func (r *refiner) splitPoint(a, b int32) [2]float64 {
+	m := r.m
+	pa, pb := m.xy[a], m.xy[b]
+	ia, ib := m.vseg[a] == vInput, m.vseg[b] == vInput
+	if ia != ib {
+		w, o := pa, pb
+		if ib {
+			w, o = pb, pa
+		}
+		L := dist(pa, pb)
+		d := math.Exp2(math.Ceil(math.Log2(L / 3)))
+		if f := d / L; f > 0.3 && f < 0.7 {
+			return [2]float64{w[0] + f*(o[0]-w[0]), w[1] + f*(o[1]-w[1])}
+		}
+	}
+	return [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
+}
+
+// splitSeg splits sub-segment s.
+func (r *refiner) splitSeg(s int32) error {
+	m := r.m
+	a, b := m.sa[s], m.sb[s]
+	e := m.findEdge(a, b)
+	if e < 0 {
+		return fmt.Errorf("tri: sub-segment %d–%d lost (internal error)", a, b)
+	}
+	if r.split != nil {
+		if done := r.splitCurved(s, e); done {
+			return nil
+		}
+	}
+	p := r.splitPoint(a, b)
+	// The new vertex must leave both triangles on the edge positively oriented.
+	for _, f := range [2]int32{e, m.tn[e]} {
+		if f < 0 {
+			continue
+		}
+		t, i := f/3, f%3
+		p0, p1, p2 := m.xy[m.tv[f]], m.xy[m.tv[3*t+next3(i)]], m.xy[m.tv[3*t+prev3(i)]]
+		if !(orient(p, p2, p0) > 0 && orient(p, p0, p1) > 0) {
+			return fmt.Errorf("tri: splitting the sub-segment (%g, %g)–(%g, %g) of segment %d would invert a triangle (features too close for float64)", m.xy[a][0], m.xy[a][1], m.xy[b][0], m.xy[b][1], m.sorig[s])
+		}
+	}
+	v := m.addVertex(p, m.sorig[s])
+	m.splitEdge(e/3, e%3, v)
+	r.afterInsert(v)
+	return nil
+}
+
+// splitCurved splits the boundary sub-segment s (on edge reference e) at the
+// point given by Options.Split, if that point is acceptable; it reports
+// whether it did.
+func (r *refiner) splitCurved(s, e int32) bool {
+	m := r.m
+	if m.tn[e] >= 0 {
+		return false // interior constraint: split on the chord
+	}
+	t, i := e/3, e%3
+	c, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
+	x1, x2 := m.xy[p1], m.xy[p2]
+	a, b := m.xy[m.sa[s]], m.xy[m.sb[s]]
+	p := r.split(m.smark[s], a, b)
+	if math.IsNaN(p[0]) || math.IsNaN(p[1]) || math.IsInf(p[0], 0) || math.IsInf(p[1], 0) {
+		return false
+	}
+	d := sub(x2, x1)
+	L2 := dot(d, d)
+	q := sub(p, x1)
+	tpar := dot(q, d) / L2
+	off := (d[0]*q[1] - d[1]*q[0]) / math.Sqrt(L2) // > 0: towards the interior
+	L := math.Sqrt(L2)
+	if tpar < 0.2 || tpar > 0.8 || math.Abs(off) > 0.5*L || math.Abs(off) <= 1e-9*L {
+		return false
+	}
+	o := orient(x1, x2, p)
+	// new sub-segments: h1 on p1–v, h2 on v–p2
+	var v int32
+	halves := func() (h1, h2 int32) {
+		ns := int32(len(m.sa))
+		m.sa = append(m.sa, 0)
+		m.sb = append(m.sb, 0)
+		m.smark = append(m.smark, m.smark[s])
+		m.sorig = append(m.sorig, m.sorig[s])
+		if m.sa[s] == p1 {
+			m.sb[s] = v
+			m.sa[ns], m.sb[ns] = v, p2
+			return s, ns
+		}
+		m.sb[s] = v
+		m.sa[ns], m.sb[ns] = v, p1
+		return ns, s
+	}
+	switch {
+	case o < 0: // outside the domain: add triangle [v p2 p1]
+		v = m.addVertex(p, m.sorig[s])
+		h1, h2 := halves()
+		n := m.newTri()
+		m.setTri(n, v, p2, p1)
+		m.link(3*n, e, -1)
+		m.link(3*n+1, -1, h1)
+		m.link(3*n+2, -1, h2)
+		m.stack = append(m.stack[:0], n)
+		m.legalize()
+	case o > 0: // inside: t = [c p1 p2] becomes [v p2 c] and [v c p1]
+		xc := m.xy[c]
+		if !(orient(x2, xc, p) > 0 && orient(xc, x1, p) > 0) {
+			return false
+		}
+		v = m.addVertex(p, m.sorig[s])
+		h1, h2 := halves()
+		A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
+		B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
+		t2 := m.newTri()
+		m.setTri(t, v, p2, c)
+		m.setTri(t2, v, c, p1)
+		m.link(3*t, A, sA)
+		m.link(3*t2, B, sB)
+		m.link(3*t+1, 3*t2+2, -1)
+		m.link(3*t+2, -1, h2)
+		m.link(3*t2+1, -1, h1)
+		m.stack = append(m.stack[:0], t, t2)
+		m.legalize()
+	default:
+		return false
+	}
+	r.afterInsert(v)
+	return true
+}
+
+// circumcentre of triangle t, computed relative to its first vertex.
+func (m *tmesh) circumcentre(t int32) [2]float64 {
+	a, b, c := m.xy[m.tv[3*t]], m.xy[m.tv[3*t+1]], m.xy[m.tv[3*t+2]]
+	bx, by := b[0]-a[0], b[1]-a[1]
+	cx, cy := c[0]-a[0], c[1]-a[1]
+	d := 2 * (bx*cy - by*cx)
+	b2, c2 := bx*bx+by*by, cx*cx+cy*cy
+	return [2]float64{a[0] + (cy*b2-by*c2)/d, a[1] + (bx*c2-cx*b2)/d}
+}
+
+// splitTri inserts the circumcentre of triangle t, unless it encroaches a
+// sub-segment or lies beyond one; those sub-segments are split instead and
+// t is queued again (Ruppert 1995).
+func (r *refiner) splitTri(t int32) {
+	m := r.m
+	c := m.circumcentre(t)
+	if math.IsNaN(c[0]) || math.IsNaN(c[1]) || math.IsInf(c[0], 0) || math.IsInf(c[1], 0) {
+		return
+	}
+	kind, ref := m.locate(c, t, true)
+	switch kind {
+	case locSeg:
+		r.pushSeg(m.ts[ref])
+		r.pushTri(t)
+		return
+	case locVert, locOut:
+		return
+	}
+	// The vertex's cavity (triangles whose circumcircle holds c, not crossing
+	// sub-segments): any sub-segment on its boundary that c encroaches is
+	// split instead.
+	m.epoch++
+	st := m.stack[:0]
+	start := ref
+	if kind == locEdge {
+		start = ref / 3
+		if n := m.tn[ref]; n >= 0 {
+			m.stamp[n/3] = m.epoch
+			st = append(st, n/3)
+		}
+	}
+	m.stamp[start] = m.epoch
+	st = append(st, start)
+	r.enc = r.enc[:0]
+	for len(st) > 0 {
+		u := st[len(st)-1]
+		st = st[:len(st)-1]
+		for k := int32(0); k < 3; k++ {
+			e := 3*u + k
+			if s := m.ts[e]; s >= 0 {
+				if encroaches(c, m.xy[m.sa[s]], m.xy[m.sb[s]]) {
+					r.enc = append(r.enc, s)
+				}
+				continue
+			}
+			n := m.tn[e]
+			if n < 0 || m.stamp[n/3] == m.epoch {
+				continue
+			}
+			w := n / 3
+			if inCircle(m.xy[m.tv[3*w]], m.xy[m.tv[3*w+1]], m.xy[m.tv[3*w+2]], c) > 0 {
+				m.stamp[w] = m.epoch
+				st = append(st, w)
+			}
+		}
+	}
+	m.stack = st
+	if len(r.enc) > 0 {
+		for _, s := range r.enc {
+			r.pushSeg(s)
+		}
+		r.pushTri(t)
+		return
+	}
+	v := m.addVertex(c, vFree)
+	if kind == locIn {
+		m.splitTri(ref, v)
+	} else {
+		m.splitEdge(ref/3, ref%3, v)
+	}
+	r.afterInsert(v)
+}
