@@ -241,7 +241,7 @@ func (m *tmesh) legalizeEdges(edges [][2]int32) {
 }
 
 func sub(a, b [2]float64) [2]float64 { return [2]float64{a[0] - b[0], a[1] - b[1]} }
-func dot(a, b [2]float64) float64     { return a[0]*b[0] + a[1]*b[1] }
+func dot(a, b [2]float64) float64    { return a[0]*b[0] + a[1]*b[1] }
 
 // carve removes the triangles outside the domain: those reachable from the
 // enclosing triangle's vertices and from the hole points without crossing a
