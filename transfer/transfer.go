@@ -98,23 +98,23 @@ type Fields struct {
 // Check verifies that the field sizes fit mesh m.
 func (f *Fields) Check(m *fem.Mesh) error {
 	if f == nil {
-		return fmt.Errorf("transfer: nil fields")
+		return fmt.Errorf("fields: nil fields")
 	}
 	if len(f.U) != len(m.X) {
-		return fmt.Errorf("transfer: displacement has %d values for %d nodes", len(f.U), len(m.X))
+		return fmt.Errorf("fields: displacement has %d values for %d nodes", len(f.U), len(m.X))
 	}
 	for k, l := range f.Linear {
 		if len(l) != m.NumCorners {
-			return fmt.Errorf("transfer: linear field %d has %d values for %d corner nodes", k, len(l), m.NumCorners)
+			return fmt.Errorf("fields: linear field %d has %d values for %d corner nodes", k, len(l), m.NumCorners)
 		}
 	}
 	np := len(m.Tri) * fem.ElementRule().Len()
 	if len(f.State) != np {
-		return fmt.Errorf("transfer: state has %d points for %d triangles × %d", len(f.State), len(m.Tri), fem.ElementRule().Len())
+		return fmt.Errorf("fields: state has %d points for %d triangles × %d", len(f.State), len(m.Tri), fem.ElementRule().Len())
 	}
 	for k, h := range f.History {
 		if len(h) != np {
-			return fmt.Errorf("transfer: history %d has %d points, want %d", k, len(h), np)
+			return fmt.Errorf("fields: history %d has %d points, want %d", k, len(h), np)
 		}
 	}
 	return nil
@@ -180,7 +180,7 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 		return nil, nil, fmt.Errorf("transfer: new mesh: %w", err)
 	}
 	if err := from.Check(old); err != nil {
-		return nil, nil, fmt.Errorf("transfer: old fields: %w", err)
+		return nil, nil, fmt.Errorf("transfer: old %w", err)
 	}
 	rec := &Record{}
 	w := opt.Workers
