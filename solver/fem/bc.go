@@ -1,0 +1,342 @@
+package fem
+
+import (
+	"fmt"
+	"math"
+)
+
+// Boundary conditions. Every condition names a boundary label (Mesh.Labels)
+// or a named point (Mesh.Points). Prescribed values scale with the
+// pseudo-time t unless a function of position and t is given.
+//
+// Engineering choices (recorded here, see DEVELOPERS.md):
+//   - Dirichlet conditions are imposed on the unknown vector at each time
+//     and their equations are replaced by identity rows (row and column of
+//     the tangent cleared, diagonal kept), so the sparsity pattern never
+//     depends on the boundary conditions; the residual of those equations,
+//     kept before clearing, is the reaction.
+//   - Tractions and pressures are dead loads: they act on the reference
+//     boundary with the reference normal and do not follow the deformation.
+//     Pressure p > 0 pushes against the outward normal (into the body).
+//   - A pin (C(T) loading) is a rigid pin in frictionless contact with the
+//     half of the hole surface that faces the direction of loading: the nodes
+//     of that contact arc get the pin's motion in the loading component and
+//     stay free in the other. The arc is chosen once, from the sign of the
+//     load: nodes whose reference position relative to the hole centroid has
+//     a non-negative projection on the loading direction. The pin force is
+//     the reaction summed over the arc.
+
+// Displacement prescribes displacement components on a label or a point.
+type Displacement struct {
+	Label string // boundary label, or
+	Point string // named point (exactly one of Label and Point)
+	// Fix selects the prescribed components (0: x or r, 1: y or z).
+	Fix [2]bool
+	// Value is the displacement at t = 1: u = Value·t.
+	Value [2]float64
+	// Func, when not nil, gives the displacement at reference position X and
+	// time t instead of Value·t (for example a remote Williams K-field).
+	Func func(X [2]float64, t float64) [2]float64
+}
+
+// Symmetry is a mirror plane on an axis-aligned straight label: the normal
+// component Comp (0 when the line is x = const, 1 when y = const) is zero.
+type Symmetry struct {
+	Label string
+	Comp  int
+}
+
+// Traction is a dead load on a label: the reference traction Value·t plus a
+// pressure Pressure·t acting against the outward reference normal.
+type Traction struct {
+	Label    string
+	Value    [2]float64
+	Pressure float64
+}
+
+// PointLoad is a force Value·t at a named node (in axisymmetry a ring load:
+// Value is the total force of the ring).
+type PointLoad struct {
+	Point string
+	Value [2]float64
+}
+
+// Pin loads a hole through a rigid pin: the contact arc of the hole label
+// moves by Value·t (or Func(t)) in component Comp. Point optionally names
+// the load point whose displacement the pin motion represents (for output).
+type Pin struct {
+	Label string
+	Point string
+	Comp  int
+	Value float64
+	Func  func(t float64) float64
+}
+
+// BCs collects the boundary conditions of a problem.
+type BCs struct {
+	Displacements []Displacement
+	Symmetries    []Symmetry
+	Tractions     []Traction
+	PointLoads    []PointLoad
+	Pins          []Pin
+}
+
+// prescribed is one Dirichlet unknown.
+type prescribed struct {
+	dof   int
+	comp  int
+	x     [2]float64
+	value float64                                  // at t = 1
+	fn    func(X [2]float64, t float64) [2]float64 // or nil
+	pinFn func(t float64) float64                  // or nil
+}
+
+func (p *prescribed) at(t float64) float64 {
+	switch {
+	case p.fn != nil:
+		return p.fn(p.x, t)[p.comp]
+	case p.pinFn != nil:
+		return p.pinFn(t)
+	}
+	return p.value * t
+}
+
+// labelNodes returns the nodes (corner and midside) on the edges of label l.
+func (m *Mesh) labelNodes(l int) []int {
+	seen := make(map[int]bool)
+	var out []int
+	for _, e := range m.Boundary {
+		if e.Label != l {
+			continue
+		}
+		for _, n := range [3]int{e.A, e.Mid, e.B} {
+			if !seen[n] {
+				seen[n] = true
+				out = append(out, n)
+			}
+		}
+	}
+	return out
+}
+
+// nodesOf resolves a label or point to node indices.
+func (p *Problem) nodesOf(what, label, point string) ([]int, error) {
+	m := p.Mesh
+	switch {
+	case label != "" && point != "":
+		return nil, fmt.Errorf("%s: give a label or a point, not both (label %q, point %q)", what, label, point)
+	case label != "":
+		l := m.Label(label)
+		if l < 0 {
+			return nil, fmt.Errorf("%s: no boundary label %q (the mesh has %v)", what, label, m.Labels)
+		}
+		nodes := m.labelNodes(l)
+		if len(nodes) == 0 {
+			return nil, fmt.Errorf("%s: boundary label %q has no edges", what, label)
+		}
+		return nodes, nil
+	case point != "":
+		n, ok := m.Points[point]
+		if !ok {
+			return nil, fmt.Errorf("%s: no named point %q", what, point)
+		}
+		return []int{n}, nil
+	}
+	return nil, fmt.Errorf("%s: needs a label or a point", what)
+}
+
+// setBCs validates the conditions and builds the prescribed list and the
+// reference external force vector.
+func (p *Problem) setBCs(b BCs) error {
+	m := p.Mesh
+	byDof := make(map[int]int) // dof → index in p.presc
+	add := func(what string, q prescribed) error {
+		if i, ok := byDof[q.dof]; ok {
+			// Two conditions on one unknown: allowed only if both say zero
+			// (e.g. a symmetry line meeting a fixed edge at a corner).
+			o := p.presc[i]
+			if o.fn == nil && o.pinFn == nil && q.fn == nil && q.pinFn == nil && o.value == 0 && q.value == 0 {
+				return nil
+			}
+			return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
+		}
+		byDof[q.dof] = len(p.presc)
+		p.presc = append(p.presc, q)
+		return nil
+	}
+	for i, d := range b.Displacements {
+		what := fmt.Sprintf("displacement condition %d", i)
+		nodes, err := p.nodesOf(what, d.Label, d.Point)
+		if err != nil {
+			return err
+		}
+		if !d.Fix[0] && !d.Fix[1] {
+			return fmt.Errorf("%s: no component fixed (Fix is [false false])", what)
+		}
+		for c := 0; c < 2; c++ {
+			if !d.Fix[c] {
+				continue
+			}
+			if math.IsNaN(d.Value[c]) || math.IsInf(d.Value[c], 0) {
+				return fmt.Errorf("%s: component %d value %g is not finite", what, c, d.Value[c])
+			}
+			for _, n := range nodes {
+				q := prescribed{dof: p.Dofs.Of(n, Field(c)), comp: c, x: m.X[n], value: d.Value[c], fn: d.Func}
+				if err := add(what, q); err != nil {
+					return err
+				}
+			}
+		}
+	}
+	for i, s := range b.Symmetries {
+		what := fmt.Sprintf("symmetry condition %d", i)
+		if s.Comp != 0 && s.Comp != 1 {
+			return fmt.Errorf("%s: component %d must be 0 (x = const line) or 1 (y = const line)", what, s.Comp)
+		}
+		nodes, err := p.nodesOf(what, s.Label, "")
+		if err != nil {
+			return err
+		}
+		x0 := m.X[nodes[0]][s.Comp]
+		for _, n := range nodes {
+			if math.Abs(m.X[n][s.Comp]-x0) > 1e-9*p.size {
+				return fmt.Errorf("%s: label %q is not a straight line with coordinate %d constant (node %d at %v, first at %g)", what, s.Label, s.Comp, n, m.X[n], x0)
+			}
+			if err := add(what, prescribed{dof: p.Dofs.Of(n, Field(s.Comp)), comp: s.Comp, x: m.X[n]}); err != nil {
+				return err
+			}
+		}
+	}
+	for i, pn := range b.Pins {
+		what := fmt.Sprintf("pin condition %d", i)
+		if pn.Comp != 0 && pn.Comp != 1 {
+			return fmt.Errorf("%s: component %d must be 0 or 1", what, pn.Comp)
+		}
+		if pn.Func == nil && pn.Value == 0 {
+			return fmt.Errorf("%s: Value is zero and no Func: the loading direction is undefined", what)
+		}
+		if pn.Point != "" {
+			if _, ok := m.Points[pn.Point]; !ok {
+				return fmt.Errorf("%s: no named point %q", what, pn.Point)
+			}
+		}
+		nodes, err := p.nodesOf(what, pn.Label, "")
+		if err != nil {
+			return err
+		}
+		var cx [2]float64
+		for _, n := range nodes {
+			cx[0] += m.X[n][0] / float64(len(nodes))
+			cx[1] += m.X[n][1] / float64(len(nodes))
+		}
+		sign := 1.0
+		if pn.Func != nil {
+			if v := pn.Func(1); v < 0 {
+				sign = -1
+			}
+		} else if pn.Value < 0 {
+			sign = -1
+		}
+		var arc []int
+		for _, n := range nodes {
+			if sign*(m.X[n][pn.Comp]-cx[pn.Comp]) >= -1e-12*p.size {
+				arc = append(arc, n)
+				q := prescribed{dof: p.Dofs.Of(n, Field(pn.Comp)), comp: pn.Comp, x: m.X[n], value: pn.Value, pinFn: pn.Func}
+				if err := add(what, q); err != nil {
+					return err
+				}
+			}
+		}
+		p.pinArcs = append(p.pinArcs, arc)
+		p.pinComp = append(p.pinComp, pn.Comp)
+	}
+	if p.Opt.Kinematics == Axisymmetric {
+		// Nodes on the axis r = 0 cannot move radially (symmetry of the
+		// body of revolution); fix u_r there unless a condition did.
+		for n, x := range m.X {
+			if math.Abs(x[0]) <= 1e-12*p.size {
+				if d := p.Dofs.Of(n, Ux); !hasDof(byDof, d) {
+					byDof[d] = len(p.presc)
+					p.presc = append(p.presc, prescribed{dof: d, comp: 0, x: x})
+				}
+			}
+		}
+	}
+
+	p.fext = make([]float64, p.Dofs.N)
+	for i, tr := range b.Tractions {
+		what := fmt.Sprintf("traction condition %d", i)
+		l := m.Label(tr.Label)
+		if l < 0 {
+			return fmt.Errorf("%s: no boundary label %q (the mesh has %v)", what, tr.Label, m.Labels)
+		}
+		for _, v := range [3]float64{tr.Value[0], tr.Value[1], tr.Pressure} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%s: value %g is not finite", what, v)
+			}
+		}
+		p.addTraction(l, tr.Value, tr.Pressure)
+	}
+	for i, pl := range b.PointLoads {
+		what := fmt.Sprintf("point load %d", i)
+		n, ok := m.Points[pl.Point]
+		if !ok {
+			return fmt.Errorf("%s: no named point %q", what, pl.Point)
+		}
+		p.fext[p.Dofs.Of(n, Ux)] += pl.Value[0]
+		p.fext[p.Dofs.Of(n, Uy)] += pl.Value[1]
+	}
+	p.fextList = p.fextList[:0]
+	for d, v := range p.fext {
+		if v != 0 {
+			p.fextList = append(p.fextList, d)
+		}
+	}
+	p.fixed = make([]bool, p.Dofs.N)
+	for _, q := range p.presc {
+		p.fixed[q.dof] = true
+	}
+	return nil
+}
+
+// addTraction integrates the dead load of one label into p.fext with a
+// 3-point Gauss–Legendre rule along each quadratic edge (exact for the
+// straight-edge case; the axisymmetric weight 2πr is included).
+func (p *Problem) addTraction(l int, value [2]float64, pressure float64) {
+	m := p.Mesh
+	gx := [3]float64{-math.Sqrt(0.6), 0, math.Sqrt(0.6)}
+	gw := [3]float64{5.0 / 9, 8.0 / 9, 5.0 / 9}
+	for _, e := range m.Boundary {
+		if e.Label != l {
+			continue
+		}
+		nodes := [3]int{e.A, e.Mid, e.B}
+		for g := 0; g < 3; g++ {
+			s := gx[g]
+			n := [3]float64{0.5 * s * (s - 1), 1 - s*s, 0.5 * s * (s + 1)}
+			dn := [3]float64{s - 0.5, -2 * s, s + 0.5}
+			var x, dx [2]float64
+			for k, a := range nodes {
+				for c := 0; c < 2; c++ {
+					x[c] += n[k] * m.X[a][c]
+					dx[c] += dn[k] * m.X[a][c]
+				}
+			}
+			// Interior on the left of A→B: outward normal × ds = (dy, −dx) ds/dξ.
+			nds := [2]float64{dx[1], -dx[0]}
+			w := gw[g]
+			if p.Opt.Kinematics == Axisymmetric {
+				w *= 2 * math.Pi * x[0]
+			}
+			for k, a := range nodes {
+				for c := 0; c < 2; c++ {
+					jl := math.Hypot(dx[0], dx[1])
+					f := value[c]*jl - pressure*nds[c]
+					p.fext[p.Dofs.Of(a, Field(c))] += w * n[k] * f
+				}
+			}
+		}
+	}
+}
+
+func hasDof(m map[int]int, d int) bool { _, ok := m[d]; return ok }

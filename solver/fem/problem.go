@@ -1,0 +1,476 @@
+package fem
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+
+	"tearline/solver/material"
+	"tearline/solver/sparse"
+)
+
+// Kinematics selects the 2D idealisation.
+type Kinematics int
+
+const (
+	// PlaneStrain: coordinates (x, y), F₃₃ = 1, unit thickness.
+	PlaneStrain Kinematics = iota
+	// Axisymmetric: coordinates (r, z), F₃₃ = 1 + u_r/R, integration
+	// weighted by 2πR (forces and reactions are those of the whole ring).
+	Axisymmetric
+)
+
+func (k Kinematics) String() string {
+	switch k {
+	case PlaneStrain:
+		return "plane strain"
+	case Axisymmetric:
+		return "axisymmetric"
+	}
+	return fmt.Sprintf("Kinematics(%d)", int(k))
+}
+
+// Options configures a Problem.
+type Options struct {
+	Kinematics Kinematics
+	// DisplacementOnly switches the mixed u–θ–P formulation off (for the
+	// locking comparison); by default the element is mixed.
+	DisplacementOnly bool
+	// Workers bounds the goroutines of the assembly; 0 means GOMAXPROCS.
+	Workers int
+}
+
+// Validate reports an invalid option.
+func (o Options) Validate() error {
+	if o.Kinematics != PlaneStrain && o.Kinematics != Axisymmetric {
+		return fmt.Errorf("fem options: kinematics %d is neither plane strain (0) nor axisymmetric (1)", int(o.Kinematics))
+	}
+	if o.Workers < 0 {
+		return fmt.Errorf("fem options: workers %d must be ≥ 0 (0 = all cores)", o.Workers)
+	}
+	return nil
+}
+
+// Problem is a discretised boundary-value problem on one mesh: unknowns,
+// material state, boundary conditions, the tangent in a fixed sparse
+// pattern, and the residual. The Newton loop (package solver) drives it:
+//
+//	p.SetTime(t)            // prescribed values at t, loads × t
+//	p.Assemble(true)        // residual p.Res and tangent p.K at p.U
+//	... solve K du = −Res, p.U += du ...
+//	p.Commit() or p.Rollback()
+type Problem struct {
+	Mesh  *Mesh
+	Model material.Model
+	Opt   Options
+	Dofs  *Dofs
+
+	// U holds the current unknowns (the iterate); Committed the last
+	// converged ones.
+	U, Committed []float64
+	// T is the current pseudo-time; TCommitted that of the last commit.
+	T, TCommitted float64
+
+	// K is the tangent, Res the residual with the rows of constrained
+	// unknowns (prescribed, or orphaned by broken elements) cleared, and
+	// Full the residual (internal − external force) before clearing, whose
+	// constrained entries are the reactions.
+	K         *sparse.CSR
+	Res, Full []float64
+
+	// Scale is, per field, the mean absolute element contribution to the
+	// residual at the last assembly (a force scale for convergence tests).
+	Scale [NumFields]float64
+
+	c, r   float64 // regularisation: c = σ₀ℓ², penalty r
+	size   float64 // bounding-box diagonal of the mesh
+	mixed  bool
+	reg    bool
+	rule   Rule
+	nd     int // unknowns per element
+	locN   [maxND]int8
+	locOff [maxND]int8
+	locFld [maxND]Field
+	rows   []int // active generalised-strain rows
+
+	// node adjacency in numbering order, with each neighbour's column
+	// offset within the rows of the node.
+	adjPtr, adj, adjOff []int
+
+	colours  [][]int
+	workers  []worker
+	pool     *pool
+	active   []bool // element takes part in assembly (not broken)
+	oldState [][]material.State
+	newState [][]material.State
+	stBack   []material.State
+	stBack2  []material.State
+
+	gp       []GaussPoint // committed Gauss-point data (F, P, W, State copy)
+	pendF    [][5]float64 // F and P at the last assembly
+	pendP    [][5]float64
+	presc    []prescribed
+	fixed    []bool
+	frozen   []bool
+	constr   []int // fixed or frozen unknowns
+	fext     []float64
+	fextList []int
+	pinArcs  [][]int
+	pinComp  []int
+	label    map[string][]int // label → nodes
+}
+
+const (
+	maxND   = 24 // 12 displacement + 4 fields × 3 corners
+	nEps    = 10 // generalised strain rows
+	rowTh   = 4
+	rowP    = 5
+	rowA    = 6
+	rowLam  = 9
+	perElem = 6 // points of ElementRule
+)
+
+// NewProblem builds the problem of mesh m with material mat under the
+// conditions bcs. The mesh must pass Mesh.Check; in axisymmetry every node
+// must have r ≥ 0.
+func NewProblem(m *Mesh, mat material.Model, opt Options, bcs BCs) (*Problem, error) {
+	if err := opt.Validate(); err != nil {
+		return nil, err
+	}
+	if mat == nil {
+		return nil, errors.New("fem: no material model")
+	}
+	if len(m.Tri) == 0 {
+		return nil, errors.New("fem: mesh has no triangles")
+	}
+	c, r := mat.Regularisation()
+	if !(c >= 0) || !(r >= 0) || math.IsInf(c, 0) || math.IsInf(r, 0) {
+		return nil, fmt.Errorf("fem: material regularisation c = %g, r = %g must be finite and ≥ 0", c, r)
+	}
+	p := &Problem{Mesh: m, Model: mat, Opt: opt, c: c, r: r, mixed: !opt.DisplacementOnly, reg: c > 0, rule: ElementRule()}
+	if p.rule.Len() != perElem {
+		return nil, fmt.Errorf("fem: element rule has %d points, the element is written for %d", p.rule.Len(), perElem)
+	}
+	d, err := NewDofs(m, p.mixed, p.reg)
+	if err != nil {
+		return nil, err
+	}
+	p.Dofs = d
+	lo, hi := [2]float64{math.Inf(1), math.Inf(1)}, [2]float64{math.Inf(-1), math.Inf(-1)}
+	for _, x := range m.X {
+		for c := 0; c < 2; c++ {
+			lo[c] = math.Min(lo[c], x[c])
+			hi[c] = math.Max(hi[c], x[c])
+		}
+	}
+	p.size = math.Hypot(hi[0]-lo[0], hi[1]-lo[1])
+	if opt.Kinematics == Axisymmetric && lo[0] < -1e-12*p.size {
+		return nil, fmt.Errorf("fem: axisymmetric mesh has a node at r = %g < 0", lo[0])
+	}
+
+	// Local unknown layout: 12 displacements (node k: 2k, 2k+1), then each
+	// switched-on corner field in blocks of three.
+	for k := 0; k < 6; k++ {
+		for c := 0; c < 2; c++ {
+			a := 2*k + c
+			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(c), Field(c)
+		}
+	}
+	p.nd = 12
+	p.rows = []int{0, 1, 2, 3}
+	for f := Theta; f < NumFields; f++ {
+		if !d.Has(f) {
+			continue
+		}
+		for k := 0; k < 3; k++ {
+			a := p.nd + k
+			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(d.offset[f]), f
+		}
+		p.nd += 3
+		switch f {
+		case Theta:
+			p.rows = append(p.rows, rowTh)
+		case Pressure:
+			p.rows = append(p.rows, rowP)
+		case Abar:
+			p.rows = append(p.rows, rowA, rowA+1, rowA+2)
+		case Lambda:
+			p.rows = append(p.rows, rowLam)
+		}
+	}
+
+	if err := p.buildPattern(); err != nil {
+		return nil, err
+	}
+	if err := p.buildColours(); err != nil {
+		return nil, err
+	}
+	nw := opt.Workers
+	if nw == 0 {
+		nw = runtime.GOMAXPROCS(0)
+	}
+	p.workers = make([]worker, nw)
+	if nw > 1 {
+		p.pool = newPool(nw - 1)
+		runtime.AddCleanup(p, func(pl *pool) { pl.close() }, p.pool)
+	}
+
+	ne := len(m.Tri)
+	p.active = make([]bool, ne)
+	for e := range p.active {
+		p.active[e] = true
+	}
+	p.stBack = make([]material.State, ne*perElem)
+	p.stBack2 = make([]material.State, ne*perElem)
+	p.oldState = make([][]material.State, ne)
+	p.newState = make([][]material.State, ne)
+	init := mat.Initial()
+	for e := 0; e < ne; e++ {
+		p.oldState[e] = p.stBack[e*perElem : (e+1)*perElem : (e+1)*perElem]
+		p.newState[e] = p.stBack2[e*perElem : (e+1)*perElem : (e+1)*perElem]
+		for g := range p.oldState[e] {
+			p.oldState[e][g] = init
+			p.newState[e][g] = init
+		}
+	}
+	p.gp = make([]GaussPoint, ne*perElem)
+	p.pendF = make([][5]float64, ne*perElem)
+	p.pendP = make([][5]float64, ne*perElem)
+	for i := range p.gp {
+		p.gp[i].F = [5]float64{1, 0, 0, 1, 1}
+		p.pendF[i] = p.gp[i].F
+	}
+
+	n := d.N
+	p.U = make([]float64, n)
+	p.Committed = make([]float64, n)
+	p.Res = make([]float64, n)
+	p.Full = make([]float64, n)
+	p.frozen = make([]bool, n)
+	if err := p.setBCs(bcs); err != nil {
+		return nil, err
+	}
+	p.label = make(map[string][]int)
+	for l, name := range m.Labels {
+		p.label[name] = m.labelNodes(l)
+	}
+	p.updateConstraints()
+	return p, nil
+}
+
+// NumElements returns the number of triangles.
+func (p *Problem) NumElements() int { return len(p.Mesh.Tri) }
+
+// Regularised reports whether the ā, λ fields are present (c > 0).
+func (p *Problem) Regularised() bool { return p.reg }
+
+// Mixed reports whether the θ, P fields are present.
+func (p *Problem) Mixed() bool { return p.mixed }
+
+// Constrained reports whether unknown d is prescribed or frozen (its
+// equation is an identity row).
+func (p *Problem) Constrained(d int) bool { return p.fixed[d] || p.frozen[d] }
+
+// SetTime moves the problem to pseudo-time t: prescribed unknowns take
+// their values at t and the dead loads scale with t. Free unknowns keep
+// their values.
+func (p *Problem) SetTime(t float64) {
+	p.T = t
+	for i := range p.presc {
+		q := &p.presc[i]
+		p.U[q.dof] = q.at(t)
+	}
+}
+
+// Commit accepts the current iterate as converged: the new material state
+// becomes the old one, the stress work W is accumulated (trapezoidal rule
+// on P:dF), elements whose points are all broken leave the assembly, and
+// unknowns no longer attached to any active element are frozen. The last
+// assembly must have been at p.U.
+func (p *Problem) Commit() {
+	for e := range p.Mesh.Tri {
+		if !p.active[e] {
+			continue
+		}
+		broken := true
+		for g := 0; g < perElem; g++ {
+			i := e*perElem + g
+			gp := &p.gp[i]
+			var dw float64
+			for k := 0; k < 5; k++ {
+				dw += 0.5 * (gp.P[k] + p.pendP[i][k]) * (p.pendF[i][k] - gp.F[k])
+			}
+			gp.W += dw
+			gp.F, gp.P = p.pendF[i], p.pendP[i]
+			p.oldState[e][g] = p.newState[e][g]
+			broken = broken && p.oldState[e][g].Broken
+		}
+		if broken {
+			p.active[e] = false
+		}
+	}
+	copy(p.Committed, p.U)
+	p.TCommitted = p.T
+	p.updateConstraints()
+}
+
+// Rollback returns the unknowns and time to the last converged state (the
+// material state was never overwritten: each assembly integrates from it).
+func (p *Problem) Rollback() {
+	copy(p.U, p.Committed)
+	p.T = p.TCommitted
+}
+
+// updateConstraints rebuilds the list of constrained unknowns: prescribed
+// ones and those of nodes no active element touches.
+func (p *Problem) updateConstraints() {
+	touched := make([]bool, len(p.Mesh.X))
+	for e, t := range p.Mesh.Tri {
+		if p.active[e] {
+			for _, n := range t {
+				touched[n] = true
+			}
+		}
+	}
+	p.constr = p.constr[:0]
+	for d := range p.frozen {
+		p.frozen[d] = !touched[p.Dofs.NodeOf[d]]
+		if p.fixed[d] || p.frozen[d] {
+			p.constr = append(p.constr, d)
+		}
+	}
+}
+
+// Broken reports whether element e has left the assembly.
+func (p *Problem) Broken(e int) bool { return !p.active[e] }
+
+// State returns the committed material state, [element][point of
+// ElementRule]. The slices belong to the problem; SetState copies.
+func (p *Problem) State() [][]material.State { return p.oldState }
+
+// SetState replaces the committed material state (after a transfer). Elements
+// whose points are all broken leave the assembly.
+func (p *Problem) SetState(s [][]material.State) error {
+	if len(s) != len(p.oldState) {
+		return fmt.Errorf("fem: SetState with %d elements, the mesh has %d", len(s), len(p.oldState))
+	}
+	for e := range s {
+		if len(s[e]) != perElem {
+			return fmt.Errorf("fem: SetState element %d has %d points, want %d", e, len(s[e]), perElem)
+		}
+		copy(p.oldState[e], s[e])
+		copy(p.newState[e], s[e])
+		broken := true
+		for _, st := range s[e] {
+			broken = broken && st.Broken
+		}
+		p.active[e] = !broken
+	}
+	p.updateConstraints()
+	return nil
+}
+
+// Nodal returns the value of field f at node n of the unknown vector u
+// (p.U or p.Committed), and false if the node does not carry f.
+func (p *Problem) Nodal(u []float64, n int, f Field) (float64, bool) {
+	d := p.Dofs.Of(n, f)
+	if d < 0 {
+		return 0, false
+	}
+	return u[d], true
+}
+
+// NodalField fills dst (len = number of nodes) with field f of the
+// committed solution; nodes without the field (midside nodes for the
+// linear fields) get the mean of their edge's end values, so output can
+// use quadratic cells throughout. It returns an error if f is switched off.
+func (p *Problem) NodalField(f Field, dst []float64) error {
+	m := p.Mesh
+	if !p.Dofs.Has(f) {
+		return fmt.Errorf("fem: field %v is not part of this problem", f)
+	}
+	if len(dst) != len(m.X) {
+		return fmt.Errorf("fem: NodalField dst has %d entries for %d nodes", len(dst), len(m.X))
+	}
+	for n := range m.X {
+		if d := p.Dofs.Of(n, f); d >= 0 {
+			dst[n] = p.Committed[d]
+		}
+	}
+	if f > Uy {
+		for _, t := range m.Tri {
+			for k := 0; k < 3; k++ {
+				dst[t[3+k]] = 0.5 * (dst[t[k]] + dst[t[(k+1)%3]])
+			}
+		}
+	}
+	return nil
+}
+
+// SetNodalField sets field f of both the iterate and the committed
+// solution from per-node values (midside values are ignored for the linear
+// fields). Used after a transfer.
+func (p *Problem) SetNodalField(f Field, v []float64) error {
+	if !p.Dofs.Has(f) {
+		return fmt.Errorf("fem: field %v is not part of this problem", f)
+	}
+	if len(v) != len(p.Mesh.X) {
+		return fmt.Errorf("fem: SetNodalField has %d values for %d nodes", len(v), len(p.Mesh.X))
+	}
+	for n := range p.Mesh.X {
+		if d := p.Dofs.Of(n, f); d >= 0 {
+			p.U[d], p.Committed[d] = v[n], v[n]
+		}
+	}
+	return nil
+}
+
+// Reaction returns the resultant of the residual force (internal −
+// external) over the nodes of a boundary label at the last assembly: the
+// reaction of the prescribed displacements there (in axisymmetry, the
+// force on the whole ring).
+func (p *Problem) Reaction(label string) ([2]float64, error) {
+	nodes, ok := p.label[label]
+	if !ok {
+		return [2]float64{}, fmt.Errorf("fem: no boundary label %q (the mesh has %v)", label, p.Mesh.Labels)
+	}
+	var f [2]float64
+	for _, n := range nodes {
+		f[0] += p.Full[p.Dofs.Of(n, Ux)]
+		f[1] += p.Full[p.Dofs.Of(n, Uy)]
+	}
+	return f, nil
+}
+
+// PointReaction returns the residual force at a named node.
+func (p *Problem) PointReaction(point string) ([2]float64, error) {
+	n, ok := p.Mesh.Points[point]
+	if !ok {
+		return [2]float64{}, fmt.Errorf("fem: no named point %q", point)
+	}
+	return [2]float64{p.Full[p.Dofs.Of(n, Ux)], p.Full[p.Dofs.Of(n, Uy)]}, nil
+}
+
+// PinForce returns the force of pin i (in the order of BCs.Pins) in its
+// loading component: the reaction summed over its contact arc.
+func (p *Problem) PinForce(i int) (float64, error) {
+	if i < 0 || i >= len(p.pinArcs) {
+		return 0, fmt.Errorf("fem: pin %d of %d", i, len(p.pinArcs))
+	}
+	var f float64
+	for _, n := range p.pinArcs[i] {
+		f += p.Full[p.Dofs.Of(n, Field(p.pinComp[i]))]
+	}
+	return f, nil
+}
+
+// ExternalWork returns Σ f_ext·u of the dead loads at time t for the
+// unknowns u (for energy checks).
+func (p *Problem) ExternalWork(u []float64, t float64) float64 {
+	var w float64
+	for _, d := range p.fextList {
+		w += t * p.fext[d] * u[d]
+	}
+	return w
+}

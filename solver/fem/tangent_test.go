@@ -1,0 +1,204 @@
+package fem
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// tangentCase is one configuration of the V9 check.
+type tangentCase struct {
+	name string
+	kin  Kinematics
+	disp bool // displacement only
+	reg  bool // c > 0
+}
+
+func tangentCases() []tangentCase {
+	var cs []tangentCase
+	for _, kin := range []Kinematics{PlaneStrain, Axisymmetric} {
+		for _, disp := range []bool{false, true} {
+			for _, reg := range []bool{false, true} {
+				n := kin.String()
+				if disp {
+					n += "/displacement-only"
+				} else {
+					n += "/mixed"
+				}
+				if reg {
+					n += "/regularised"
+				}
+				cs = append(cs, tangentCase{n, kin, disp, reg})
+			}
+		}
+	}
+	return cs
+}
+
+// randomProblem builds a small curved mesh away from the axis with a random
+// finite-strain state of every field.
+func randomProblem(t *testing.T, tc tangentCase, nx, ny int, rng *rand.Rand) *Problem {
+	t.Helper()
+	m, err := Structured(nx, ny, AnnularSector(1, 2, 0.1, 0.9, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	mat := &coupledT{lam: 120, mu: 80, k1: 30, k2: 0.7, k3: 50, k4: 0.8, k5: 0.3, k6: 0.02}
+	if tc.reg {
+		mat.c, mat.r = 0.5, 3
+	}
+	p, err := NewProblem(m, mat, Options{Kinematics: tc.kin, DisplacementOnly: tc.disp}, BCs{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for d := range p.U {
+		switch p.Dofs.FieldOf[d] {
+		case Ux, Uy:
+			p.U[d] = 0.1 / float64(max(nx, ny)) * (2*rng.Float64() - 1)
+		case Theta:
+			p.U[d] = 0.05 * (2*rng.Float64() - 1)
+		case Pressure:
+			p.U[d] = 10 * (2*rng.Float64() - 1)
+		case Abar:
+			p.U[d] = 0.1 * rng.Float64()
+		case Lambda:
+			p.U[d] = 2 * (2*rng.Float64() - 1)
+		}
+	}
+	return p
+}
+
+// TestElementTangentFD checks V9 for the element: the tangent equals the
+// central finite difference of the residual to 1e-6 relative (DESIGN.md §5
+// V9; central differences, error O(h²)), for plane strain and axisymmetry,
+// mixed and displacement-only, local and regularised.
+func TestElementTangentFD(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, tc := range tangentCases() {
+		t.Run(tc.name, func(t *testing.T) {
+			p := randomProblem(t, tc, 2, 1, rng)
+			w := &worker{}
+			for e := range p.Mesh.Tri {
+				if err := p.element(e, p.U, w, true); err != nil {
+					t.Fatal(err)
+				}
+				nd := p.nd
+				k := w.ke
+				gd := w.gd
+				var kmax, emax float64
+				var bmax, berr [NumFields][NumFields]float64
+				for b := 0; b < nd; b++ {
+					u0 := p.U[gd[b]]
+					h := 1e-6 * math.Max(1, math.Abs(u0))
+					p.U[gd[b]] = u0 + h
+					wp := &worker{}
+					if err := p.element(e, p.U, wp, false); err != nil {
+						t.Fatal(err)
+					}
+					p.U[gd[b]] = u0 - h
+					wm := &worker{}
+					if err := p.element(e, p.U, wm, false); err != nil {
+						t.Fatal(err)
+					}
+					p.U[gd[b]] = u0
+					for a := 0; a < nd; a++ {
+						fd := (wp.re[a] - wm.re[a]) / (2 * h)
+						kmax = math.Max(kmax, math.Abs(k[a][b]))
+						emax = math.Max(emax, math.Abs(fd-k[a][b]))
+						fa, fb := p.locFld[a]/2, p.locFld[b]/2 // blocks u, (θ,P), (ā,λ)
+						bmax[fa][fb] = math.Max(bmax[fa][fb], math.Abs(k[a][b]))
+						berr[fa][fb] = math.Max(berr[fa][fb], math.Abs(fd-k[a][b]))
+					}
+				}
+				if rel := emax / kmax; !(rel < 1e-6) {
+					t.Errorf("element %d: max |K − K_fd| / max |K| = %.3g (max |K| %.3g), want < 1e-6", e, rel, kmax)
+				}
+				// each coupling block on its own scale, so that small blocks
+				// (multiplier rows) are not hidden by the stiffness.
+				for fa := range bmax {
+					for fb := range bmax[fa] {
+						if bmax[fa][fb] > 1e-9*kmax {
+							if rel := berr[fa][fb] / bmax[fa][fb]; !(rel < 1e-6) {
+								t.Errorf("element %d block (%v, %v): relative error %.3g, want < 1e-6", e, Field(2*fa), Field(2*fb), rel)
+							}
+						} else if berr[fa][fb] > 1e-9*kmax {
+							t.Errorf("element %d block (%v, %v) is zero but the finite difference is %.3g", e, Field(2*fa), Field(2*fb), berr[fa][fb])
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestGlobalTangentFD checks V9 for the assembled system: every column of
+// the tangent in its sparse pattern equals the central finite difference
+// of the global residual to 1e-6 relative (and the difference vanishes
+// outside the pattern), assembled by two workers.
+func TestGlobalTangentFD(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for _, tc := range tangentCases() {
+		t.Run(tc.name, func(t *testing.T) {
+			p := randomProblem(t, tc, 3, 2, rng)
+			p.workers = make([]worker, 2)
+			p.pool = newPool(1)
+			if err := p.Assemble(true); err != nil {
+				t.Fatal(err)
+			}
+			n := p.Dofs.N
+			dense := make([][]float64, n)
+			var kmax float64
+			for i := range dense {
+				dense[i] = make([]float64, n)
+				for q := p.K.RowPtr[i]; q < p.K.RowPtr[i+1]; q++ {
+					dense[i][p.K.ColInd[q]] = p.K.Val[q]
+					kmax = math.Max(kmax, math.Abs(p.K.Val[q]))
+				}
+			}
+			rp, rm := make([]float64, n), make([]float64, n)
+			var emax float64
+			for b := 0; b < n; b++ {
+				u0 := p.U[b]
+				h := 1e-6 * math.Max(1, math.Abs(u0))
+				p.U[b] = u0 + h
+				if err := p.Assemble(false); err != nil {
+					t.Fatal(err)
+				}
+				copy(rp, p.Full)
+				p.U[b] = u0 - h
+				if err := p.Assemble(false); err != nil {
+					t.Fatal(err)
+				}
+				copy(rm, p.Full)
+				p.U[b] = u0
+				for a := 0; a < n; a++ {
+					fd := (rp[a] - rm[a]) / (2 * h)
+					emax = math.Max(emax, math.Abs(fd-dense[a][b]))
+				}
+			}
+			if rel := emax / kmax; !(rel < 1e-6) {
+				t.Errorf("global tangent: max |K − K_fd| / max |K| = %.3g, want < 1e-6", rel)
+			}
+		})
+	}
+}
+
+// TestAssemblyDoesNotAllocate checks the rule of DEVELOPERS.md: once warm,
+// a full assembly (residual and tangent, two workers) allocates nothing.
+func TestAssemblyDoesNotAllocate(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	p := randomProblem(t, tangentCases()[1], 12, 12, rng)
+	p.workers = make([]worker, 2)
+	p.pool = newPool(1)
+	if err := p.Assemble(true); err != nil {
+		t.Fatal(err)
+	}
+	allocs := testing.AllocsPerRun(5, func() {
+		if err := p.Assemble(true); err != nil {
+			t.Fatal(err)
+		}
+	})
+	if allocs > 0 {
+		t.Errorf("Assemble allocates %.1f times per call, want 0", allocs)
+	}
+}
