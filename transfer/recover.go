@@ -89,7 +89,12 @@ func cornerPatches(m *fem.Mesh) (start, elems []int) {
 // singular (collinear points) falls back to the mean.
 func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int, use []bool, workers int) *recovery {
 	start, elems := cornerPatches(m)
-	rec := &recovery{nc: nc, nodal: make([]float64, m.NumCorners*nc)}
+	// coef[n] holds the patch polynomial of node n, a0 + a1 ξ + a2 η in
+	// ξ = (x − xn)/scale[n], η = (y − yn)/scale[n]: component c's
+	// coefficients at coef[n*3*nc + {0, nc, 2nc} + c].
+	coef := make([]float64, m.NumCorners*3*nc)
+	scale := make([]float64, m.NumCorners)
+	fitted := make([]bool, m.NumCorners)
 	parallel(m.NumCorners, workers, func(lo, hi int) {
 		b := make([]float64, 3*nc)
 		for n := lo; n < hi; n++ {
@@ -137,14 +142,17 @@ func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int,
 					}
 				}
 			}
-			out := rec.nodal[n*nc : n*nc+nc]
+			out := coef[n*3*nc : (n+1)*3*nc]
+			scale[n] = h
 			// Scaled coordinates lie in [-1, 1]: a determinant this small
 			// relative to cnt³ means the points are (nearly) collinear.
 			if inv, ok := inverse3(A); ok && det3(A) > 1e-10*float64(cnt*cnt*cnt) {
-				// Value at the node: the constant coefficient a0.
-				for c := 0; c < nc; c++ {
-					out[c] = inv[0][0]*b[c] + inv[0][1]*b[nc+c] + inv[0][2]*b[2*nc+c]
+				for r := 0; r < 3; r++ {
+					for c := 0; c < nc; c++ {
+						out[r*nc+c] = inv[r][0]*b[c] + inv[r][1]*b[nc+c] + inv[r][2]*b[2*nc+c]
+					}
 				}
+				fitted[n] = true
 			} else {
 				for c := 0; c < nc; c++ {
 					out[c] = b[c] / float64(cnt)
@@ -152,7 +160,80 @@ func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int,
 			}
 		}
 	})
+	// Nodal values: an interior node takes its own patch's value; a node on
+	// the boundary (outer boundary, holes, crack faces — edges with one
+	// triangle) the mean of its interior neighbours' patch polynomials at
+	// its position, as Zienkiewicz & Zhu 1992 recover boundary values,
+	// falling back to its own one-sided patch when it has none.
+	boundary := boundaryCorners(m)
+	rec := &recovery{nc: nc, nodal: make([]float64, m.NumCorners*nc)}
+	parallel(m.NumCorners, workers, func(lo, hi int) {
+		for n := lo; n < hi; n++ {
+			out := rec.nodal[n*nc : n*nc+nc]
+			own := coef[n*3*nc : n*3*nc+nc]
+			if !boundary[n] {
+				copy(out, own)
+				continue
+			}
+			cnt := 0
+			xn := m.X[n]
+			for _, e := range elems[start[n]:start[n+1]] {
+				for _, k := range m.Tri[e][:3] {
+					if k == n || boundary[k] || !fitted[k] || seenBefore(m, elems[start[n]:start[n+1]], e, k) {
+						continue
+					}
+					cnt++
+					xi, eta := (xn[0]-m.X[k][0])/scale[k], (xn[1]-m.X[k][1])/scale[k]
+					ck := coef[k*3*nc : (k+1)*3*nc]
+					for c := range out {
+						out[c] += ck[c] + xi*ck[nc+c] + eta*ck[2*nc+c]
+					}
+				}
+			}
+			if cnt == 0 {
+				copy(out, own)
+				continue
+			}
+			for c := range out {
+				out[c] /= float64(cnt)
+			}
+		}
+	})
 	return rec
+}
+
+// seenBefore reports whether node k is a vertex of a triangle of patch that
+// comes before e (so that every neighbour counts once).
+func seenBefore(m *fem.Mesh, patch []int, e, k int) bool {
+	for _, f := range patch {
+		if f == e {
+			return false
+		}
+		t := m.Tri[f]
+		if t[0] == k || t[1] == k || t[2] == k {
+			return true
+		}
+	}
+	return false
+}
+
+// boundaryCorners flags the corner nodes on an edge that only one triangle
+// has.
+func boundaryCorners(m *fem.Mesh) []bool {
+	count := make(map[[2]int]int, 3*len(m.Tri))
+	for _, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			count[[2]int{min(a, b), max(a, b)}]++
+		}
+	}
+	on := make([]bool, m.NumCorners)
+	for e, c := range count {
+		if c == 1 {
+			on[e[0]], on[e[1]] = true, true
+		}
+	}
+	return on
 }
 
 func det3(a [3][3]float64) float64 {
