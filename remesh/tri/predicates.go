@@ -93,13 +93,19 @@ func twoDiffExp(a, b float64, h []float64) []float64 {
 	return h
 }
 
-// expSum returns the expansion e+f appended to h[:0]: the components of e and
-// f merged by increasing magnitude and accumulated with two-sum (Shewchuk
-// 1997, Theorem 13, fast expansion sum, with zero elimination).
+// expSum returns the expansion e+f in h[:0] (h must not alias e or f): the
+// components of e and f merged by increasing magnitude and accumulated with
+// two-sum (Shewchuk 1997, Theorem 13, fast expansion sum, with zero
+// elimination).
 func expSum(e, f, h []float64) []float64 {
 	h = h[:0]
+	n := len(e) + len(f)
+	if n == 0 {
+		return append(h, 0)
+	}
 	i, j := 0, 0
-	next := func() float64 {
+	var q float64
+	for k := 0; k < n; k++ {
 		var g float64
 		if j >= len(f) || (i < len(e) && math.Abs(e[i]) <= math.Abs(f[j])) {
 			g = e[i]
@@ -108,16 +114,12 @@ func expSum(e, f, h []float64) []float64 {
 			g = f[j]
 			j++
 		}
-		return g
-	}
-	n := len(e) + len(f)
-	if n == 0 {
-		return append(h, 0)
-	}
-	q := next()
-	for k := 1; k < n; k++ {
+		if k == 0 {
+			q = g
+			continue
+		}
 		var hh float64
-		q, hh = twoSum(q, next())
+		q, hh = twoSum(q, g)
 		if hh != 0 {
 			h = append(h, hh)
 		}
@@ -128,7 +130,7 @@ func expSum(e, f, h []float64) []float64 {
 	return h
 }
 
-// expScale returns e·b appended to h[:0] (Shewchuk 1997, Theorem 19, scale
+// expScale returns e·b in h[:0] (Shewchuk 1997, Theorem 19, scale
 // expansion, with zero elimination).
 func expScale(e []float64, b float64, h []float64) []float64 {
 	h = h[:0]
@@ -154,17 +156,20 @@ func expScale(e []float64, b float64, h []float64) []float64 {
 	return h
 }
 
-// expMul returns the exact product e·f as a new expansion.
-func expMul(e, f []float64) []float64 {
-	acc := []float64{0}
-	var tmp, sum []float64
+// expMul returns the exact product e·f, built in the buffers a and b (each
+// of capacity ≥ 2·len(e)·len(f)) with tmp (capacity ≥ 2·len(e)) for the
+// scaled terms. The result lies in a or b.
+func expMul(e, f, a, b, tmp []float64) []float64 {
+	acc := append(a[:0], 0)
+	other := b
 	for _, fk := range f {
 		if fk == 0 {
 			continue
 		}
 		tmp = expScale(e, fk, tmp)
-		sum = expSum(acc, tmp, sum)
-		acc, sum = sum, acc
+		res := expSum(acc, tmp, other)
+		other = acc
+		acc = res
 	}
 	return acc
 }
@@ -185,18 +190,94 @@ func expSign(e []float64) float64 {
 	return 0
 }
 
+// The exact stages keep all their buffers in fixed-size local arrays sized
+// for the worst case, so they do not allocate.
+
 func orientExact(a, b, c [2]float64) float64 {
 	var b1, b2, b3, b4 [2]float64
+	var l1, l2, r1, r2 [8]float64
+	var tmp [4]float64
+	var out [16]float64
 	acx := twoDiffExp(a[0], c[0], b1[:])
 	bcy := twoDiffExp(b[1], c[1], b2[:])
 	acy := twoDiffExp(a[1], c[1], b3[:])
 	bcx := twoDiffExp(b[0], c[0], b4[:])
-	l := expMul(acx, bcy)
-	r := expNeg(expMul(acy, bcx))
-	return expSign(expSum(l, r, nil))
+	l := expMul(acx, bcy, l1[:], l2[:], tmp[:])
+	r := expNeg(expMul(acy, bcx, r1[:], r2[:], tmp[:]))
+	return expSign(expSum(l, r, out[:]))
+}
+
+// icTerm is the exact value of lift(p)·(q×r) for the in-circle determinant.
+type icBuf struct {
+	m1, m2, m3, m4 [8]float64
+	minor, lift    [16]float64
+	t1, t2         [512]float64
+	tmp            [32]float64
+}
+
+// term returns (px²+py²)·(qx·ry − rx·qy) exactly.
+func (w *icBuf) term(px, py, qx, qy, rx, ry []float64) []float64 {
+	var tmp [4]float64
+	u := expMul(qx, ry, w.m1[:], w.m2[:], tmp[:])
+	v := expNeg(expMul(rx, qy, w.m3[:], w.m4[:], tmp[:]))
+	minor := expSum(u, v, w.minor[:])
+	u = expMul(px, px, w.m1[:], w.m2[:], tmp[:])
+	v = expMul(py, py, w.m3[:], w.m4[:], tmp[:])
+	lift := expSum(u, v, w.lift[:])
+	return expMul(lift, minor, w.t1[:], w.t2[:], w.tmp[:])
 }
 
 func inCircleExact(a, b, c, d [2]float64) float64 {
+	adx, adxt := twoSum(a[0], -d[0])
+	ady, adyt := twoSum(a[1], -d[1])
+	bdx, bdxt := twoSum(b[0], -d[0])
+	bdy, bdyt := twoSum(b[1], -d[1])
+	cdx, cdxt := twoSum(c[0], -d[0])
+	cdy, cdyt := twoSum(c[1], -d[1])
+	if adxt == 0 && adyt == 0 && bdxt == 0 && bdyt == 0 && cdxt == 0 && cdyt == 0 {
+		return inCircleExactDiff(adx, ady, bdx, bdy, cdx, cdy)
+	}
+	return inCircleExactGeneral(a, b, c, d)
+}
+
+// inCircleExactDiff evaluates the in-circle determinant exactly when the
+// coordinate differences are themselves exact (the common case for nearby
+// points, Sterbenz's lemma), with short expansions.
+func inCircleExactDiff(adx, ady, bdx, bdy, cdx, cdy float64) float64 {
+	var t1, t2, t3, o1, o2, o3 [32]float64
+	var s1 [64]float64
+	var s2 [96]float64
+	ta := icTermDiff(adx, ady, bdx, bdy, cdx, cdy, t1[:], o1[:])
+	tb := icTermDiff(bdx, bdy, cdx, cdy, adx, ady, t2[:], o2[:])
+	tc := icTermDiff(cdx, cdy, adx, ady, bdx, bdy, t3[:], o3[:])
+	return expSign(expSum(expSum(ta, tb, s1[:]), tc, s2[:]))
+}
+
+// icTermDiff returns (px²+py²)·(qx·ry − rx·qy) exactly, in out or other
+// (capacity 32 each).
+func icTermDiff(px, py, qx, qy, rx, ry float64, out, other []float64) []float64 {
+	var u, v [2]float64
+	var minor, lift [4]float64
+	var tmp [8]float64
+	u[1], u[0] = twoProd(qx, ry)
+	v[1], v[0] = twoProd(rx, qy)
+	v[0], v[1] = -v[0], -v[1]
+	mi := expSum(compact(u[:]), compact(v[:]), minor[:])
+	u[1], u[0] = twoProd(px, px)
+	v[1], v[0] = twoProd(py, py)
+	li := expSum(compact(u[:]), compact(v[:]), lift[:])
+	return expMul(li, mi, out, other, tmp[:])
+}
+
+// compact drops zero components of a two-component expansion.
+func compact(e []float64) []float64 {
+	if e[0] == 0 {
+		return e[1:]
+	}
+	return e
+}
+
+func inCircleExactGeneral(a, b, c, d [2]float64) float64 {
 	var b1, b2, b3, b4, b5, b6 [2]float64
 	adx := twoDiffExp(a[0], d[0], b1[:])
 	ady := twoDiffExp(a[1], d[1], b2[:])
@@ -204,14 +285,13 @@ func inCircleExact(a, b, c, d [2]float64) float64 {
 	bdy := twoDiffExp(b[1], d[1], b4[:])
 	cdx := twoDiffExp(c[0], d[0], b5[:])
 	cdy := twoDiffExp(c[1], d[1], b6[:])
-	minor := func(px, py, qx, qy []float64) []float64 { // px·qy − qx·py
-		return expSum(expMul(px, qy), expNeg(expMul(qx, py)), nil)
-	}
-	lift := func(px, py []float64) []float64 {
-		return expSum(expMul(px, px), expMul(py, py), nil)
-	}
-	ta := expMul(lift(adx, ady), minor(bdx, bdy, cdx, cdy))
-	tb := expMul(lift(bdx, bdy), minor(cdx, cdy, adx, ady))
-	tc := expMul(lift(cdx, cdy), minor(adx, ady, bdx, bdy))
-	return expSign(expSum(expSum(ta, tb, nil), tc, nil))
+	var w icBuf
+	var s1 [1024]float64
+	var s2 [1536]float64
+	ta := w.term(adx, ady, bdx, bdy, cdx, cdy)
+	sum := append(s1[:0], ta...)
+	tb := w.term(bdx, bdy, cdx, cdy, adx, ady)
+	sum2 := expSum(sum, tb, s2[:])
+	tc := w.term(cdx, cdy, adx, ady, bdx, bdy)
+	return expSign(expSum(sum2, tc, s1[:]))
 }
