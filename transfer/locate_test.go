@@ -2,6 +2,7 @@ package transfer
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"tearline/solver/fem"
@@ -34,6 +35,43 @@ func TestOrientNearDegenerate(t *testing.T) {
 		}
 	}
 	t.Logf("plain floating-point orientation wrong on %d of the grid points; robust one on none", naiveWrong)
+}
+
+// TestOrientAgainstRational compares the orientation sign with exact
+// rational arithmetic (math/big) on near-collinear triples: points on lines
+// through dyadic and non-dyadic coordinates, moved by a few ulps, small
+// integers and huge and tiny magnitudes (exact differences and inexact ones,
+// underflowing products).
+func TestOrientAgainstRational(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 4))
+	ulps := func(x float64, k int) float64 {
+		for ; k > 0; k-- {
+			x = math.Nextafter(x, math.Inf(1))
+		}
+		for ; k < 0; k++ {
+			x = math.Nextafter(x, math.Inf(-1))
+		}
+		return x
+	}
+	for _, sc := range []float64{1, 1e-3, 1e8, 1e-160, 1e150} {
+		for i := 0; i < 4000; i++ {
+			a := [2]float64{sc * rng.Float64(), sc * rng.Float64()}
+			if i%3 == 0 {
+				a = [2]float64{sc * float64(rng.IntN(9)) / 8, sc * float64(rng.IntN(9)) / 8}
+			}
+			d := [2]float64{sc * (rng.Float64() - 0.5), sc * (rng.Float64() - 0.5)}
+			s1, s2 := rng.Float64(), 1+rng.Float64()
+			b := [2]float64{a[0] + s1*d[0], a[1] + s1*d[1]}
+			c := [2]float64{a[0] + s2*d[0], a[1] + s2*d[1]}
+			b[rng.IntN(2)] = ulps(b[rng.IntN(2)], rng.IntN(5)-2)
+			if i%5 == 0 {
+				c = b
+			}
+			if got, want := sign(orient(a, b, c)), sign(orientExact(a, b, c)); got != want {
+				t.Fatalf("orient(%v, %v, %v) sign %d, exact %d", a, b, c, got, want)
+			}
+		}
+	}
 }
 
 func sign(x float64) int {

@@ -12,6 +12,11 @@ var ccwErrBound = (3 + 16*epsilon) * epsilon
 
 const epsilon = 1.0 / (1 << 53)
 
+// minSafe is 2⁻⁹⁶⁹: products at least this large are normal numbers whose
+// fused-multiply-add error terms are exact, and Shewchuk's relative bound
+// holds for them.
+var minSafe = math.Ldexp(1, -969)
+
 // orient returns a value whose sign is the exact sign of the orientation
 // determinant of a, b, c: positive when they turn counter-clockwise, zero
 // when collinear, negative when clockwise. The magnitude is only
@@ -21,11 +26,61 @@ func orient(a, b, c [2]float64) float64 {
 	detL := (a[0] - c[0]) * (b[1] - c[1])
 	detR := (a[1] - c[1]) * (b[0] - c[0])
 	det := detL - detR
-	bound := ccwErrBound * (math.Abs(detL) + math.Abs(detR))
-	if det > bound || -det > bound {
+	mag := math.Abs(detL) + math.Abs(detR)
+	bound := ccwErrBound * mag
+	// The relative bound fails when the products underflow.
+	if mag >= minSafe && (det > bound || -det > bound) {
 		return det
 	}
+	if s, ok := orientExactDiff(a, b, c); ok {
+		return s
+	}
 	return orientExact(a, b, c)
+}
+
+// orientExactDiff decides the sign without big numbers when the four
+// coordinate differences are exact in floating point (common for mesh
+// points that lie close together or on a shared line). Each product is then
+// split exactly into a rounded part and its error by a fused multiply-add
+// (Ogita, Rump & Oishi 2005, SIAM J. Sci. Comput. 26): with p = p₁ + p₂ and
+// q = q₁ + q₂, rounding is monotonic, so p₁ ≠ q₁ already orders p and q, and
+// otherwise the sign of p₂ − q₂ (a rounded difference keeps its sign)
+// decides. ok is false when a difference is inexact or a product overflows.
+func orientExactDiff(a, b, c [2]float64) (float64, bool) {
+	acx, ok1 := exactDiff(a[0], c[0])
+	bcy, ok2 := exactDiff(b[1], c[1])
+	acy, ok3 := exactDiff(a[1], c[1])
+	bcx, ok4 := exactDiff(b[0], c[0])
+	if !(ok1 && ok2 && ok3 && ok4) {
+		return 0, false
+	}
+	p1, q1 := acx*bcy, acy*bcx
+	if !finite(p1) || !finite(q1) {
+		return 0, false
+	}
+	switch {
+	case p1 > q1:
+		return 1, true
+	case p1 < q1:
+		return -1, true
+	}
+	// A product near the underflow range has an inexact error term; leave
+	// that to the rational evaluation (an exact zero factor is fine).
+	if (math.Abs(p1) < minSafe && acx != 0 && bcy != 0) || (math.Abs(q1) < minSafe && acy != 0 && bcx != 0) {
+		return 0, false
+	}
+	p2 := math.FMA(acx, bcy, -p1)
+	q2 := math.FMA(acy, bcx, -q1)
+	return p2 - q2, true
+}
+
+// exactDiff returns x − y and whether it is exact (the error term of Knuth's
+// TwoSum vanishes; Knuth, TAOCP vol. 2, §4.2.2).
+func exactDiff(x, y float64) (float64, bool) {
+	s := x - y
+	bb := s - x
+	err := (x - (s - bb)) + (-y - bb)
+	return s, err == 0 && finite(s)
 }
 
 // orientExact evaluates the orientation determinant exactly (every float64

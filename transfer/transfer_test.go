@@ -580,3 +580,54 @@ func slope(x, y []float64) float64 {
 	n := float64(len(x))
 	return (n*sxy - sx*sy) / (n*sxx - sx*sx)
 }
+
+// TestConcurrentAndDeterministic: Locate is safe for concurrent use (run
+// with -race) and Map gives bit-identical results with one worker and with
+// several (every point is computed independently of the scheduling).
+func TestConcurrentAndDeterministic(t *testing.T) {
+	old, nw := squareMesh(20, 20, 0.3, 31), squareMesh(27, 23, 0.3, 32)
+	lc, err := NewLocator(old, 1e-9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pts := append(append([][2]float64(nil), nw.X...), [2]float64{-0.1, 0.5}, [2]float64{1.2, 1.3})
+	serial := make([]Hit, len(pts))
+	for i, p := range pts {
+		serial[i] = lc.locate(p, nil)
+	}
+	done := make(chan []Hit)
+	for g := 0; g < 4; g++ {
+		go func() {
+			h := make([]Hit, len(pts))
+			for i, p := range pts {
+				e, l, in := lc.Locate(p)
+				h[i] = Hit{Elem: e, L: l, Inside: in, Node: -1}
+			}
+			done <- h
+		}()
+	}
+	for g := 0; g < 4; g++ {
+		if h := <-done; !reflect.DeepEqual(h, serial) {
+			t.Fatal("concurrent Locate differs from serial")
+		}
+	}
+	g := func(p [2]float64) float64 { return math.Exp(p[0]) * math.Sin(3*p[1]) }
+	from := fieldsFrom(old, func(p [2]float64) [2]float64 { return [2]float64{g(p), p[0]} }, []func([2]float64) float64{g},
+		func(p [2]float64) material.State { return material.State{P: 1 + g(p), F: 0.01, Ep: material.Sym{g(p), 0, 0, 0}} },
+		[]func([2]float64) float64{g})
+	for _, m := range []Method{PatchRecovery, L2Projection} {
+		var res []*Fields
+		for _, w := range []int{1, 4} {
+			opt := DefaultOptions()
+			opt.Method, opt.Workers = m, w
+			to, _, err := Map(old, from, nw, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			res = append(res, to)
+		}
+		if !reflect.DeepEqual(res[0], res[1]) {
+			t.Errorf("%v: Map with 1 and 4 workers differs", m)
+		}
+	}
+}
