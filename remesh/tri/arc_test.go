@@ -1,0 +1,138 @@
+package tri
+
+import (
+	"math"
+	"testing"
+)
+
+// circleLoop returns n points on the circle of radius R about c,
+// counter-clockwise (or clockwise).
+func circleLoop(c [2]float64, R float64, n int, cw bool) [][2]float64 {
+	p := make([][2]float64, n)
+	for k := range p {
+		a := 2 * math.Pi * float64(k) / float64(n)
+		if cw {
+			a = -a
+		}
+		p[k] = [2]float64{c[0] + R*math.Cos(a), c[1] + R*math.Sin(a)}
+	}
+	return p
+}
+
+type circ struct {
+	c [2]float64
+	R float64
+}
+
+type arcCase struct {
+	name    string
+	in      *Input
+	circles map[int]circ // mark → circle
+	full    float64      // exact area of the curved domain
+	sign    float64      // +1: the circle bounds the domain (outer disk), −1: a hole
+}
+
+// TestArcSplit refines domains bounded by circles, with Options.Split
+// placing boundary split points on the circle. Checks: every sub-segment end
+// of an arc mark lies on its circle; the mesh area equals the area enclosed
+// by the refined boundary (Green's theorem over the sub-segments); and the
+// area missing from the disk equals the sum of the circular-segment areas
+// R²(θ − sin θ)/2 over the final chords (closed form).
+func TestArcSplit(t *testing.T) {
+	var cases []arcCase
+	{ // disk of radius 1 from 12 chords, mark 1
+		in := &Input{Points: circleLoop([2]float64{0, 0}, 1, 12, false), Segments: loop(0, 12)}
+		in.SegmentMarks = make([]int, 12)
+		for k := range in.SegmentMarks {
+			in.SegmentMarks[k] = 1
+		}
+		cases = append(cases, arcCase{"disk, 12 chords", in, map[int]circ{1: {[2]float64{0, 0}, 1}}, math.Pi, 1})
+	}
+	{ // square 4 × 4 with a circular hole of radius 1 (clockwise loop), mark 2
+		in := &Input{Points: square(-2, -2, 2, 2), Segments: loop(0, 4), SegmentMarks: []int{0, 0, 0, 0}}
+		in.Points = append(in.Points, circleLoop([2]float64{0, 0}, 1, 8, true)...)
+		in.Segments = append(in.Segments, loop(4, 8)...)
+		for k := 0; k < 8; k++ {
+			in.SegmentMarks = append(in.SegmentMarks, 2)
+		}
+		in.Holes = [][2]float64{{0, 0}}
+		cases = append(cases, arcCase{"square with circular hole, 8 chords", in, map[int]circ{2: {[2]float64{0, 0}, 1}}, 16 - math.Pi, -1})
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			split := func(mark int, a, b [2]float64) [2]float64 {
+				ci, ok := c.circles[mark]
+				if !ok {
+					return [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+				}
+				// the arc point halfway between a and b (shorter arc)
+				m := [2]float64{(a[0]+b[0])/2 - ci.c[0], (a[1]+b[1])/2 - ci.c[1]}
+				r := math.Hypot(m[0], m[1])
+				return [2]float64{ci.c[0] + ci.R*m[0]/r, ci.c[1] + ci.R*m[1]/r}
+			}
+			size := func(x, y float64) float64 { return 0.08 }
+			m, err := Triangulate(c.in, &Options{Size: size, Split: split})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := Check(m); err != nil {
+				t.Fatal(err)
+			}
+			rep := Quality(m, size)
+			if rep.MinAngleDeg < DefaultMinAngle-1e-9 || rep.SizeRatioMax > 1+1e-12 {
+				t.Errorf("quality %+v", rep)
+			}
+			green, segArea := 0.0, 0.0
+			for j, s := range m.Segments {
+				a, b := m.Points[s[0]], m.Points[s[1]]
+				green += 0.5 * (a[0]*b[1] - b[0]*a[1])
+				ci, ok := c.circles[m.SegmentMarks[j]]
+				if !ok {
+					continue
+				}
+				for _, p := range [2][2]float64{a, b} {
+					if r := math.Hypot(p[0]-ci.c[0], p[1]-ci.c[1]); math.Abs(r-ci.R) > 1e-12 {
+						t.Fatalf("sub-segment %d end (%g, %g) at radius %.15g, want %g", j, p[0], p[1], r, ci.R)
+					}
+				}
+				th := 2 * math.Asin(dist(a, b)/(2*ci.R))
+				segArea += ci.R * ci.R * (th - math.Sin(th)) / 2
+			}
+			area := meshArea(m)
+			if math.Abs(area-green) > 1e-12*area {
+				t.Errorf("mesh area %.15g, area enclosed by the sub-segments %.15g", area, green)
+			}
+			if want := c.full - c.sign*segArea; math.Abs(area-want) > 1e-10*area {
+				t.Errorf("mesh area %.15g, curved area minus circular segments %.15g", area, want)
+			}
+			t.Logf("%+v, chordal area error %.3g", rep, segArea)
+		})
+	}
+}
+
+// TestInteriorConstraint meshes a square with a segment inside it (both
+// sides stay in the domain): the segment is covered by sub-segments with its
+// mark and the area is that of the square.
+func TestInteriorConstraint(t *testing.T) {
+	in := &Input{
+		Points:       append(square(0, 0, 1, 1), [2]float64{0.2, 0.5}, [2]float64{0.8, 0.55}),
+		Segments:     append(loop(0, 4), [2]int{4, 5}),
+		SegmentMarks: []int{1, 1, 1, 1, 7},
+	}
+	size := func(x, y float64) float64 { return 0.03 + 0.2*math.Abs(y-0.5) }
+	m, err := Triangulate(in, &Options{Size: size})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Check(m); err != nil {
+		t.Fatal(err)
+	}
+	checkConformity(t, in, m)
+	if a := meshArea(m); math.Abs(a-1) > 1e-12 {
+		t.Errorf("area %.15g, want 1", a)
+	}
+	rep := Quality(m, size)
+	if rep.MinAngleDeg < DefaultMinAngle-1e-9 || rep.SizeRatioMax > 1+1e-12 {
+		t.Errorf("quality %+v", rep)
+	}
+}
