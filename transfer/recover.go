@@ -267,31 +267,24 @@ func l2Projection(m *fem.Mesh, r fem.Rule, da []float64, vals []float64, nc int,
 	nq := r.Len()
 	nn := m.NumCorners
 	// Sparsity: corner neighbours through shared triangles.
-	rows := make([][]int, nn)
-	for _, t := range m.Tri {
-		for i := 0; i < 3; i++ {
-			for j := 0; j < 3; j++ {
-				rows[t[i]] = append(rows[t[i]], t[j])
-			}
-		}
-	}
+	start, elems := cornerPatches(m)
 	ptr := make([]int, nn+1)
-	var col []int
-	for n := range rows {
-		rw := rows[n]
-		sort.Ints(rw)
-		k := 0
-		for i, c := range rw {
-			if i == 0 || c != rw[k-1] {
-				rw[k] = c
-				k++
+	col := make([]int, 0, 7*nn)
+	var buf []int
+	for n := 0; n < nn; n++ {
+		buf = buf[:0]
+		for _, e := range elems[start[n]:start[n+1]] {
+			buf = append(buf, m.Tri[e][0], m.Tri[e][1], m.Tri[e][2])
+		}
+		if len(buf) == 0 { // unused corner node: identity row
+			buf = append(buf, n)
+		}
+		sort.Ints(buf)
+		for i, c := range buf {
+			if i == 0 || c != buf[i-1] {
+				col = append(col, c)
 			}
 		}
-		if k == 0 { // unused corner node: identity row
-			rw = append(rw[:0], n)
-			k = 1
-		}
-		col = append(col, rw[:k]...)
 		ptr[n+1] = len(col)
 	}
 	val := make([]float64, len(col))
@@ -315,7 +308,7 @@ func l2Projection(m *fem.Mesh, r fem.Rule, da []float64, vals []float64, nc int,
 			}
 		}
 	}
-	for n := range rows {
+	for n := 0; n < nn; n++ {
 		if ptr[n+1]-ptr[n] == 1 && col[ptr[n]] == n && val[ptr[n]] == 0 {
 			val[ptr[n]] = 1
 		}

@@ -613,7 +613,9 @@ func TestConcurrentAndDeterministic(t *testing.T) {
 	}
 	g := func(p [2]float64) float64 { return math.Exp(p[0]) * math.Sin(3*p[1]) }
 	from := fieldsFrom(old, func(p [2]float64) [2]float64 { return [2]float64{g(p), p[0]} }, []func([2]float64) float64{g},
-		func(p [2]float64) material.State { return material.State{P: 1 + g(p), F: 0.01, Ep: material.Sym{g(p), 0, 0, 0}} },
+		func(p [2]float64) material.State {
+			return material.State{P: 1 + g(p), F: 0.01, Ep: material.Sym{g(p), 0, 0, 0}}
+		},
 		[]func([2]float64) float64{g})
 	for _, m := range []Method{PatchRecovery, L2Projection} {
 		var res []*Fields
