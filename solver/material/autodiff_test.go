@@ -110,3 +110,23 @@ func hdLogSeries(c [4]hd) [4]hd {
 	phi := a.mul(b).sub(s.mul(s)).log().scale(0.25)
 	return [4]hd{phi.add(g.mul(d)), phi.sub(g.mul(d)), c[2].log().scale(0.5), g.mul(s)}
 }
+
+// hdSeed returns C as hyper-dual numbers with ε₁ seeded in component j and
+// ε₂ in component k.
+func hdSeed(C Sym, j, k int) [4]hd {
+	var c [4]hd
+	for l := range c {
+		c[l] = hdc(C[l])
+	}
+	c[j].b = 1
+	c[k].c = 1
+	return c
+}
+
+// hdLog is the hyper-dual logarithmic strain, spectral or series form.
+func hdLog(c [4]hd, spectral bool) [4]hd {
+	if spectral {
+		return hdLogSpectral(c)
+	}
+	return hdLogSeries(c)
+}

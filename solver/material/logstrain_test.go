@@ -198,18 +198,8 @@ func TestLogStrainCurvatureHyperDual(t *testing.T) {
 				gotG[j] += symWeight[i] * T[i] * D[i][j]
 			}
 			for k := 0; k < 4; k++ {
-				var c [4]hd
-				for l := range c {
-					c[l] = hdc(tc.C[l])
-				}
-				c[j].b = 1
-				c[k].c = 1
-				var e [4]hd
-				if tc.spectral {
-					e = hdLogSpectral(c)
-				} else {
-					e = hdLogSeries(c)
-				}
+				c := hdSeed(tc.C, j, k)
+				e := hdLog(c, tc.spectral)
 				var phi hd
 				for i := 0; i < 4; i++ {
 					phi = phi.add(e[i].scale(symWeight[i] * T[i]))
@@ -235,12 +225,7 @@ func TestLogStrainCurvatureHyperDual(t *testing.T) {
 // henckyEnergyHD is ψ = μ E:E + (λ/2)(tr E)² (isotropic Hencky energy) for
 // hyper-dual C, through the spectral twin of the logarithm.
 func henckyEnergyHD(c [4]hd, lam, mu float64, spectral bool) hd {
-	var e [4]hd
-	if spectral {
-		e = hdLogSpectral(c)
-	} else {
-		e = hdLogSeries(c)
-	}
+	e := hdLog(c, spectral)
 	tr := e[0].add(e[1]).add(e[2])
 	var ee hd
 	for i := 0; i < 4; i++ {
@@ -277,12 +262,7 @@ func TestSecondPKAgainstStoredEnergy(t *testing.T) {
 		for j := 0; j < 4; j++ {
 			var grad float64
 			for k := 0; k < 4; k++ {
-				var c [4]hd
-				for l := range c {
-					c[l] = hdc(tc.C[l])
-				}
-				c[j].b = 1
-				c[k].c = 1
+				c := hdSeed(tc.C, j, k)
 				psi := henckyEnergyHD(c, lam, mu, tc.spectral)
 				grad = psi.b
 				ref[j][k] = 2 / symWeight[j] * psi.d

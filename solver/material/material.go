@@ -52,6 +52,10 @@ type Response struct {
 	DPdLambda float64       // ∂p/∂λ
 	Plastic   bool          // the step was plastic
 	Energy    float64       // stored (elastic) energy density, for the J integral
+	// Dissipation is the plastic work density of the step, T:ΔEᵖ =
+	// (1−f)σ*Δp (zero in an elastic step); its sum over steps is the
+	// plastic dissipation recorded at remeshes.
+	Dissipation float64
 }
 
 // Model is a constitutive law. Update integrates one step from old to new
