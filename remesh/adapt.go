@@ -1,8 +1,6 @@
-// Package remesh is tearline's adaptive cycle (DESIGN.md §4): when to
-// remesh (NeedRemesh), the tip-following size field (TipField), and the new
-// geometry with broken material removed (Carve), which MeshDomain meshes.
-//
-// One cycle, in outline:
+// The adaptive cycle (DESIGN.md §4): when to remesh (NeedRemesh), the
+// tip-following size field (TipField), and the new geometry with broken
+// material removed (Carve), which MeshDomain meshes. One cycle, in outline:
 //
 //	dec, err := remesh.NeedRemesh(m, gp, tips, zone, count, trig)
 //	if dec.Remesh {
@@ -13,6 +11,7 @@
 //		m2, rep, err := remesh.MeshDomain(c.Domain, field.At, meshOpt)
 //		zone = field.Zone()
 //	}
+
 package remesh
 
 import (

@@ -259,3 +259,18 @@ func (f *TipField) Zone() FineZone {
 
 // Options returns the options the field was built with.
 func (f *TipField) Options() FollowOptions { return f.opt }
+
+// InitialZone describes the fine zone of the initial mesh's SizeField (the
+// capsules of radius FineRadius around its zones) for the trigger; hWake is
+// the size damaged points may have outside it (FollowOptions.HWake).
+func InitialZone(s *SizeField, hWake float64) FineZone {
+	z := FineZone{HFine: s.Options.HFine, HWake: math.Max(hWake, s.Options.HFine)}
+	r := s.Options.FineRadius
+	for _, q := range s.Zones {
+		z.Pieces = append(z.Pieces, ZonePiece{
+			Tip: Tip{X: q.From, Dir: [2]float64{q.To[0] - q.From[0], q.To[1] - q.From[1]}},
+			A:   q.From, B: q.To, RA: r, RB: r,
+		})
+	}
+	return z
+}

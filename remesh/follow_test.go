@@ -221,3 +221,26 @@ func TestFollowValidate(t *testing.T) {
 		t.Fatalf("NaN damaged point: error %v", err)
 	}
 }
+
+func TestInitialZone(t *testing.T) {
+	// The zone of the initial SizeField: h = h_fine exactly where the
+	// description says "inside" (both from the same capsule definition).
+	s := &SizeField{Options: SizeOptions{HFine: 0.1, HFar: 5, FineRadius: 1, Grading: 0.25},
+		Zones: []Zone{{From: [2]float64{0, 0}, To: [2]float64{3, 0}}}}
+	z := InitialZone(s, 0.4)
+	if z.HFine != 0.1 || z.HWake != 0.4 || len(z.Pieces) != 1 {
+		t.Fatalf("zone %+v", z)
+	}
+	rng := rand.New(rand.NewPCG(7, 8))
+	for k := 0; k < 5000; k++ {
+		x := [2]float64{rng.Float64()*8 - 2, rng.Float64()*6 - 3}
+		inside := z.Depth(x) > 1e-9
+		fine := s.At(x[0], x[1]) == s.Options.HFine
+		if inside && !fine {
+			t.Fatalf("at %v: inside the zone description but h = %g", x, s.At(x[0], x[1]))
+		}
+		if !inside && z.Depth(x) < -1e-9 && fine {
+			t.Fatalf("at %v: outside the zone description but h = h_fine", x)
+		}
+	}
+}

@@ -1,0 +1,506 @@
+package remesh
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"tearline/remesh/geom"
+	"tearline/solver/fem"
+)
+
+// squareDomain is the original domain of structMesh(0, 0, a, a, …): four
+// line pieces with the mesh's labels.
+func squareDomain(a float64) *geom.Domain {
+	c := [][2]float64{{0, 0}, {a, 0}, {a, a}, {0, a}}
+	labels := []string{"bottom", "right", "top", "left"}
+	d := &geom.Domain{Points: map[string]geom.Point{}}
+	for k := 0; k < 4; k++ {
+		d.Outer = append(d.Outer, geom.Piece{Kind: geom.Line, A: c[k], B: c[(k+1)%4], Label: labels[k]})
+	}
+	return d
+}
+
+// cellTris returns the two triangles of cell (i, j) of structMesh with nx
+// cells per row.
+func cellTris(i, j, nx int) [2]int { return [2]int{2 * (j*nx + i), 2*(j*nx+i) + 1} }
+
+// lengthByLabel sums the piece lengths per label.
+func lengthByLabel(d *geom.Domain) map[string]float64 {
+	out := map[string]float64{}
+	for _, l := range d.Loops() {
+		for i := range l {
+			out[l[i].Label] += l[i].Length()
+		}
+	}
+	return out
+}
+
+// onLabel reports whether x lies on a piece of d with the given label.
+func onLabel(d *geom.Domain, x [2]float64, label string) bool {
+	for _, l := range d.Loops() {
+		for i := range l {
+			if l[i].Label == label && l[i].Distance(x) < 1e-12 {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+func constSize(h float64) func(x, y float64) float64 { return func(x, y float64) float64 { return h } }
+
+func TestCarveStrip(t *testing.T) {
+	// A 10 × 10 square, 20 × 20 cells of 0.5; a slit one cell high is cut
+	// from the left edge to x = 4 in row 10 (y from 5 to 5.5). Areas and
+	// lengths of the result follow from the cell counts (elementary
+	// geometry): area 100 − 8 × 0.25, crack faces 4 + 4 + 0.5 long, the
+	// left side 10 − 0.5.
+	const nx = 20
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	m.Points["load"] = 20*(nx+1) + 20 // corner (10, 10)
+	m.Points["mid"] = 4*(nx+1) + 16   // interior node (8, 2)
+	m.Points["face"] = 10*(nx+1) + 3  // node (1.5, 5): on the new crack face
+	orig := squareDomain(10)
+	broken := make([]bool, len(m.Tri))
+	removedArea := 0.0
+	for i := 0; i < 8; i++ {
+		for _, e := range cellTris(i, 10, nx) {
+			broken[e] = true
+			removedArea += triArea(m, e)
+		}
+	}
+	meshArea := 0.0
+	for e := range m.Tri {
+		meshArea += triArea(m, e)
+	}
+	tips := []Tip{{Name: "tip", X: [2]float64{4.1, 5.3}, Dir: [2]float64{2, 0}}}
+	c, err := Carve(m, broken, orig, tips, constSize(0.5), DefaultCarveOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := c.Domain
+	if got, want := d.Area(), meshArea-removedArea; math.Abs(got-want) > 1e-12 {
+		t.Errorf("domain area %.15g, want mesh area − removed = %.15g", got, want)
+	}
+	if math.Abs(c.Area-(meshArea-removedArea)) > 1e-12 || c.Slivers != 0 || len(d.Holes) != 0 {
+		t.Errorf("kept area %g, slivers %d, holes %d; want %g, 0, 0", c.Area, c.Slivers, len(d.Holes), meshArea-removedArea)
+	}
+	ls := lengthByLabel(d)
+	for lab, want := range map[string]float64{"bottom": 10, "right": 10, "top": 10, "left": 9.5, CrackLabel: 8.5} {
+		if math.Abs(ls[lab]-want) > 1e-12 {
+			t.Errorf("label %q: length %g, want %g", lab, ls[lab], want)
+		}
+	}
+	// every newly exposed edge lies on a crack piece, every kept old
+	// boundary edge on a piece with its label
+	exposed := 0
+	for e, tri := range m.Tri {
+		if broken[e] {
+			continue
+		}
+		for k := 0; k < 3; k++ {
+			mid := m.X[tri[3+k]]
+			a, b := tri[k], tri[(k+1)%3]
+			oldLab := ""
+			for _, ed := range m.Boundary {
+				if ukey(ed.A, ed.B) == ukey(a, b) {
+					oldLab = m.Labels[ed.Label]
+				}
+			}
+			nb := -1
+			for o, ot := range m.Tri {
+				if o != e && !broken[o] {
+					for q := 0; q < 3; q++ {
+						if ukey(ot[q], ot[(q+1)%3]) == ukey(a, b) {
+							nb = o
+						}
+					}
+				}
+			}
+			switch {
+			case nb >= 0: // interior edge: on no piece
+				for _, l := range d.Loops() {
+					for i := range l {
+						if l[i].Distance(mid) < 1e-12 {
+							t.Fatalf("interior edge at %v lies on piece %q", mid, l[i].Label)
+						}
+					}
+				}
+			case oldLab != "":
+				if !onLabel(d, mid, oldLab) {
+					t.Errorf("old boundary edge at %v lost its label %q", mid, oldLab)
+				}
+			default:
+				exposed++
+				if !onLabel(d, mid, CrackLabel) {
+					t.Errorf("exposed edge at %v is not on a crack face", mid)
+				}
+			}
+		}
+	}
+	if exposed != 17 { // 8 + 8 cell faces + 1 end face
+		t.Errorf("%d exposed edges, want 17", exposed)
+	}
+	// named points
+	if p, ok := d.Points["load"]; !ok || p.X != [2]float64{10, 10} {
+		t.Errorf("load point %+v, %v; want kept at (10, 10)", p, ok)
+	}
+	if p, ok := d.Points["mid"]; !ok || p.X != [2]float64{8, 2} {
+		t.Errorf("interior point %+v, %v; want kept at (8, 2)", p, ok)
+	}
+	// a point on the new crack face stays, as a vertex of the boundary
+	if p, ok := d.Points["face"]; !ok || p.X != [2]float64{1.5, 5} || !onLabel(d, p.X, CrackLabel) {
+		t.Errorf("point on the crack face %+v, %v; want kept at (1.5, 5) on a crack piece", p, ok)
+	}
+	vertex := false
+	for _, l := range d.Loops() {
+		for i := range l {
+			vertex = vertex || l[i].A == [2]float64{1.5, 5}
+		}
+	}
+	if !vertex || len(c.Dropped) != 0 {
+		t.Errorf("crack-face point is a vertex: %v; dropped %v (want none)", vertex, c.Dropped)
+	}
+	tp, ok := d.Points["tip"]
+	if !ok || !tp.Tip || tp.Dir != [2]float64{1, 0} {
+		t.Fatalf("tip %+v, %v; want a tip with unit direction (1, 0)", tp, ok)
+	}
+	// the tip at (4.1, 5.3) lies within Simplify·h = 0.25 of the slit's
+	// end (x = 4): it snaps to the nearest end vertex, (4, 5.5)
+	if tp.X != [2]float64{4, 5.5} {
+		t.Errorf("tip at %v, want snapped to (4, 5.5)", tp.X)
+	}
+}
+
+// TestCarveGoneNode checks a named node that leaves with the removed
+// material is reported dropped.
+func TestCarveGoneNode(t *testing.T) {
+	const nx = 20
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	m.Points["load"] = 20*(nx+1) + 20 // (10, 10), in the upper part
+	broken := make([]bool, len(m.Tri))
+	for i := 0; i < nx; i++ {
+		for _, e := range cellTris(i, 10, nx) {
+			broken[e] = true
+		}
+	}
+	// the row y ∈ [5, 5.5] is removed: the body splits into a lower part
+	// (area 50) and an upper part (45); the larger is kept
+	c, err := Carve(m, broken, squareDomain(10), nil, constSize(0.5), DefaultCarveOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := c.Domain.Area(); math.Abs(got-50) > 1e-12 {
+		t.Errorf("area %g, want the lower part's 50", got)
+	}
+	if c.Slivers != 2*nx*9 {
+		t.Errorf("%d slivers, want the upper part's %d triangles", c.Slivers, 2*nx*9)
+	}
+	if len(c.Dropped) != 1 || c.Dropped[0] != "load" {
+		t.Errorf("dropped %v, want [load]", c.Dropped)
+	}
+	if ls := lengthByLabel(c.Domain); math.Abs(ls[CrackLabel]-10) > 1e-12 || math.Abs(ls["left"]-5) > 1e-12 {
+		t.Errorf("lengths %v, want crack 10, left 5", ls)
+	}
+}
+
+func TestCarvePinch(t *testing.T) {
+	// A slit over rows 10 and 11 to x = 8 leaves, around node N = (5, 5.5),
+	// the triangles T1, T3 below and T4 above that touch only at N (and T4
+	// touches the upper body only at a vertex): T4 is dropped (smaller
+	// fan), T1 and T3 stay. Area 100 − 32 × 0.25 + 2 × 0.125.
+	const nx = 20
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	broken := make([]bool, len(m.Tri))
+	for j := 10; j <= 11; j++ {
+		for i := 0; i < 16; i++ {
+			for _, e := range cellTris(i, j, nx) {
+				broken[e] = true
+			}
+		}
+	}
+	t1, t3, t4 := cellTris(9, 10, nx)[0], cellTris(10, 10, nx)[1], cellTris(9, 11, nx)[0]
+	broken[t1], broken[t3], broken[t4] = false, false, false
+	opt := DefaultCarveOptions()
+	opt.Simplify = 0 // keep the staircase: the area is then exact
+	c, err := Carve(m, broken, squareDomain(10), nil, nil, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !c.Removed[t4] || c.Removed[t1] || c.Removed[t3] || c.Slivers != 1 {
+		t.Errorf("removed T1 %v T3 %v T4 %v, slivers %d; want only T4 dropped", c.Removed[t1], c.Removed[t3], c.Removed[t4], c.Slivers)
+	}
+	if got, want := c.Domain.Area(), 100-32*0.25+2*0.125; math.Abs(got-want) > 1e-12 {
+		t.Errorf("area %g, want %g", got, want)
+	}
+	// each boundary node appears once: the loops are simple
+	seen := map[[2]float64]bool{}
+	for _, l := range c.Vertices {
+		for _, x := range l {
+			if seen[x] {
+				t.Fatalf("boundary node %v appears twice", x)
+			}
+			seen[x] = true
+		}
+	}
+}
+
+// polylineDistance is the distance from x to the pieces of d.
+func domainDistance(d *geom.Domain, x [2]float64) float64 {
+	best := math.Inf(1)
+	for _, l := range d.Loops() {
+		for i := range l {
+			best = math.Min(best, l[i].Distance(x))
+		}
+	}
+	return best
+}
+
+func TestCarveSimplify(t *testing.T) {
+	// A wavy crack: the triangles whose centroid lies in the band
+	// |y − 5 − 0.8 sin x| < 0.45, x < 7, are removed from a 10 × 10 square
+	// of 40 × 40 cells; the crack faces come out as zigzags. Douglas–
+	// Peucker must keep every dropped vertex within Simplify·h(x) of the
+	// simplified boundary (its defining property, Douglas & Peucker 1973,
+	// Cartographica 10), keep the tip and label changes, and give a valid
+	// domain.
+	const nx = 40
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	broken := make([]bool, len(m.Tri))
+	for e, tri := range m.Tri {
+		a, b, cc := m.X[tri[0]], m.X[tri[1]], m.X[tri[2]]
+		x, y := (a[0]+b[0]+cc[0])/3, (a[1]+b[1]+cc[1])/3
+		if x < 7 && math.Abs(y-5-0.8*math.Sin(x)) < 0.45 {
+			broken[e] = true
+		}
+	}
+	base := -1 // vertices dropped without simplification (collinear ones)
+	for _, sc := range []struct {
+		name     string
+		simplify float64
+		size     func(x, y float64) float64
+	}{
+		{"no simplification", 0, nil},
+		{"constant size, 0.5", 0.5, constSize(0.25)},
+		{"constant size, 1.5", 1.5, constSize(0.25)},
+		{"graded size", 0.5, func(x, y float64) float64 { return 0.05 + 0.1*math.Abs(x-7) }},
+	} {
+		t.Run(sc.name, func(t *testing.T) {
+			opt := DefaultCarveOptions()
+			opt.Simplify = sc.simplify
+			tips := []Tip{{Name: "tip", X: [2]float64{7, 5 + 0.8*math.Sin(7)}, Dir: [2]float64{1, 0}}}
+			c, err := Carve(m, broken, squareDomain(10), tips, sc.size, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := c.Domain.Validate(); err != nil {
+				t.Fatal(err)
+			}
+			dropped, total := 0, 0
+			for li, l := range c.Vertices {
+				for k, x := range l {
+					total++
+					if c.Kept[li][k] {
+						continue
+					}
+					dropped++
+					tol := 1e-12
+					if sc.size != nil {
+						tol += sc.simplify * sc.size(x[0], x[1])
+					}
+					if d := domainDistance(c.Domain, x); d > tol {
+						t.Errorf("dropped vertex %v is %g from the simplified boundary, tolerance %g", x, d, tol)
+					}
+				}
+			}
+			if sc.simplify > 0 && dropped <= base {
+				t.Errorf("%d of %d boundary vertices dropped, no more than the %d collinear ones", dropped, total, base)
+			}
+			if sc.simplify == 0 {
+				base = dropped
+				// only collinear vertices go: the area is that of the kept triangles
+				if math.Abs(c.Domain.Area()-c.Area) > 1e-12 {
+					t.Errorf("unsimplified area %.15g, kept triangles %.15g", c.Domain.Area(), c.Area)
+				}
+			}
+			tp := c.Domain.Points["tip"]
+			if domainDistance(c.Domain, tp.X) > 1e-12 && !c.Domain.Contains(tp.X) {
+				t.Errorf("tip %v is outside the new domain", tp.X)
+			}
+			t.Logf("%s: %d of %d boundary vertices dropped, %d pieces, area %.6g (kept triangles %.6g)", sc.name, dropped, total, c.Domain.NumPieces(), c.Domain.Area(), c.Area)
+		})
+	}
+}
+
+func TestCarveTwoFacesClose(t *testing.T) {
+	// A slit one cell (0.25) wide with a large tolerance (2 × 0.25 > the
+	// slit width): simplification alone would let the faces cross; the
+	// topology check keeps them apart and the domain stays valid.
+	const nx = 40
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	broken := make([]bool, len(m.Tri))
+	for e, tri := range m.Tri {
+		a, b, cc := m.X[tri[0]], m.X[tri[1]], m.X[tri[2]]
+		x, y := (a[0]+b[0]+cc[0])/3, (a[1]+b[1]+cc[1])/3
+		if x < 8 && math.Abs(y-5-1.5*math.Sin(0.9*x)) < 0.15 {
+			broken[e] = true
+		}
+	}
+	opt := DefaultCarveOptions()
+	opt.Simplify = 2
+	c, err := Carve(m, broken, squareDomain(10), nil, constSize(0.25), opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := c.Domain.Validate(); err != nil {
+		t.Fatalf("the simplified geometry is invalid: %v", err)
+	}
+	// every kept triangle's centroid stays inside the new domain's closure
+	// or within the tolerance of its boundary
+	for e, tri := range m.Tri {
+		if c.Removed[e] {
+			continue
+		}
+		a, b, cc := m.X[tri[0]], m.X[tri[1]], m.X[tri[2]]
+		x := [2]float64{(a[0] + b[0] + cc[0]) / 3, (a[1] + b[1] + cc[1]) / 3}
+		if !c.Domain.Contains(x) && domainDistance(c.Domain, x) > 2*0.25 {
+			t.Fatalf("kept triangle %d's centroid %v is outside the new domain", e, x)
+		}
+	}
+}
+
+func TestCarveArcs(t *testing.T) {
+	// A quarter ring 1 ≤ r ≤ 2, 0 ≤ θ ≤ π/2 meshed on a polar grid; the
+	// elements touching the inner arc for 30° < θ < 45° are removed. The
+	// outer arc must come back whole (same centre, radius, sweep π/2), the
+	// inner arc as two sub-arcs on the same circle whose sweeps add up to
+	// π/2 less the cut (exact geometry of the grid).
+	const nr, nt = 8, 24
+	m := &fem.Mesh{Labels: []string{"cut", "outer", "hole"}, Points: map[string]int{}}
+	id := func(i, j int) int { return j*(nr+1) + i }
+	pos := func(r, th float64) [2]float64 { return [2]float64{r * math.Cos(th), r * math.Sin(th)} }
+	for j := 0; j <= nt; j++ {
+		for i := 0; i <= nr; i++ {
+			m.X = append(m.X, pos(1+float64(i)/nr, math.Pi/2*float64(j)/nt))
+		}
+	}
+	m.NumCorners = len(m.X)
+	mids := map[[2]int]int{}
+	midOf := func(a, b int, onArc bool) int {
+		k := ukey(a, b)
+		if n, ok := mids[k]; ok {
+			return n
+		}
+		pa, pb := m.X[a], m.X[b]
+		x := [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
+		if onArc { // midside node on the circle
+			r := math.Hypot(pa[0], pa[1])
+			th := 0.5 * (math.Atan2(pa[1], pa[0]) + math.Atan2(pb[1], pb[0]))
+			x = pos(r, th)
+		}
+		m.X = append(m.X, x)
+		mids[k] = len(m.X) - 1
+		return len(m.X) - 1
+	}
+	for j := 0; j < nt; j++ {
+		for i := 0; i < nr; i++ {
+			a, b, cc, dd := id(i, j), id(i+1, j), id(i+1, j+1), id(i, j+1)
+			// counter-clockwise: a (r_i, θ_j), b (r_i+1, θ_j), c (r_i+1, θ_j+1), d (r_i, θ_j+1)
+			m.Tri = append(m.Tri, [6]int{a, b, cc, midOf(a, b, false), midOf(b, cc, i+1 == nr), midOf(cc, a, false)})
+			m.Tri = append(m.Tri, [6]int{a, cc, dd, midOf(a, cc, false), midOf(cc, dd, false), midOf(dd, a, i == 0)})
+		}
+	}
+	for e, tri := range m.Tri {
+		for k := 0; k < 3; k++ {
+			a, b := tri[k], tri[(k+1)%3]
+			ia, ja, ib, jb := a%(nr+1), a/(nr+1), b%(nr+1), b/(nr+1)
+			lab := -1
+			switch {
+			case ja == 0 && jb == 0, ja == nt && jb == nt:
+				lab = 0
+			case ia == nr && ib == nr:
+				lab = 1
+			case ia == 0 && ib == 0:
+				lab = 2
+			}
+			if lab >= 0 {
+				m.Boundary = append(m.Boundary, fem.Edge{A: a, B: b, Mid: tri[3+k], Label: lab, Tri: e})
+			}
+		}
+	}
+	if err := m.Check(); err != nil {
+		t.Fatal(err)
+	}
+	orig := &geom.Domain{Outer: geom.Loop{
+		{Kind: geom.Line, A: [2]float64{1, 0}, B: [2]float64{2, 0}, Label: "cut"},
+		{Kind: geom.Arc, A: [2]float64{2, 0}, B: pos(2, math.Pi/2), Radius: 2, Label: "outer"},
+		{Kind: geom.Line, A: pos(2, math.Pi/2), B: pos(1, math.Pi/2), Label: "cut"},
+		{Kind: geom.Arc, A: pos(1, math.Pi/2), B: [2]float64{1, 0}, Radius: 1, CW: true, Label: "hole"},
+	}}
+	if err := orig.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	broken := make([]bool, len(m.Tri))
+	for j := 8; j < 12; j++ { // θ from 30° to 45°
+		for k := 0; k < 2; k++ {
+			broken[2*(j*nr)+k] = true // the inner-most cell's two triangles
+		}
+	}
+	c, err := Carve(m, broken, orig, nil, constSize(0.1), DefaultCarveOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	sweep := map[string]float64{}
+	arcs := map[string]int{}
+	for _, p := range c.Domain.Outer {
+		if p.Kind != geom.Arc {
+			continue
+		}
+		arcs[p.Label]++
+		sweep[p.Label] += math.Abs(p.Sweep())
+		want := map[string]float64{"outer": 2, "hole": 1}[p.Label]
+		if p.Centre != [2]float64{} || p.Radius != want {
+			t.Errorf("arc %q: centre %v radius %g, want the original (0, 0), %g", p.Label, p.Centre, p.Radius, want)
+		}
+	}
+	if arcs["outer"] != 1 || math.Abs(sweep["outer"]-math.Pi/2) > 1e-12 {
+		t.Errorf("outer arc: %d pieces, sweep %g; want 1 of π/2", arcs["outer"], sweep["outer"])
+	}
+	if arcs["hole"] != 2 || math.Abs(sweep["hole"]-(math.Pi/2-math.Pi/12)) > 1e-12 {
+		t.Errorf("inner arc: %d pieces, sweep %g; want 2 of total %g", arcs["hole"], sweep["hole"], math.Pi/2-math.Pi/12)
+	}
+}
+
+func TestCarveErrors(t *testing.T) {
+	m := structMesh(0, 0, 1, 1, 2, 2)
+	all := make([]bool, len(m.Tri))
+	for i := range all {
+		all[i] = true
+	}
+	for _, c := range []struct {
+		name   string
+		broken []bool
+		size   func(x, y float64) float64
+		opt    func(*CarveOptions)
+		tips   []Tip
+		want   string
+	}{
+		{"flags mismatch", make([]bool, 3), constSize(1), nil, nil, "broken flags"},
+		{"all broken", all, constSize(1), nil, nil, "no material"},
+		{"no size", make([]bool, len(m.Tri)), nil, nil, nil, "size function"},
+		{"negative simplify", make([]bool, len(m.Tri)), constSize(1), func(o *CarveOptions) { o.Simplify = -1 }, nil, "Simplify"},
+		{"bad tip", make([]bool, len(m.Tri)), constSize(1), nil, []Tip{{Name: "tip"}}, "direction"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			o := DefaultCarveOptions()
+			if c.opt != nil {
+				c.opt(&o)
+			}
+			_, err := Carve(m, c.broken, nil, c.tips, c.size, o)
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("error %v, want one naming %q", err, c.want)
+			}
+		})
+	}
+}
