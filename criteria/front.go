@@ -1,0 +1,682 @@
+package criteria
+
+import (
+	"container/heap"
+	"fmt"
+	"math"
+	"sort"
+
+	"tearline/solver/fem"
+)
+
+// Seed is an initial crack tip: its reference position and the initial
+// crack direction (need not be unit length).
+type Seed struct {
+	X, Dir [2]float64
+}
+
+// FrontOptions selects the porosity levels and the initial tips of
+// LocateFront.
+type FrontOptions struct {
+	// Fc is the critical porosity f_c of the GTN model; it sets the defaults
+	// of FFront (2·f_c, common practice for the edge of the localisation
+	// band) and FTip.
+	Fc float64
+	// FFront is the contour level f_front; 0 means 2·Fc.
+	FFront float64
+	// FTip is the level that marks cracked material for the crack tip;
+	// 0 means FFront.
+	FTip float64
+	// Tips are the initial crack tips; one Tip is returned for each.
+	Tips []Seed
+	// CrackLabel names the boundary label of crack faces made by removing
+	// broken material; their nodes ahead of an initial tip count as cracked.
+	// "" means "crack". A mesh without the label is fine.
+	CrackLabel string
+	// MaxGap is the longest stretch of uncracked material a crack path may
+	// bridge (a damage zone that starts a little ahead of the blunted tip);
+	// 0 means twice the longest element edge at the initial tip.
+	MaxGap float64
+}
+
+func (o *FrontOptions) levels() (front, tip float64) {
+	front, tip = o.FFront, o.FTip
+	if front == 0 {
+		front = 2 * o.Fc
+	}
+	if tip == 0 {
+		tip = front
+	}
+	return front, tip
+}
+
+// Validate checks the options on their own.
+func (o *FrontOptions) Validate() error {
+	if o.Fc < 0 || math.IsNaN(o.Fc) {
+		return fmt.Errorf("damage front: critical porosity Fc = %g must be ≥ 0", o.Fc)
+	}
+	front, tip := o.levels()
+	if !(front > 0 && front < 1) {
+		return fmt.Errorf("damage front: front level f_front = %g must lie in (0, 1) (set FFront, or Fc for the default 2·Fc)", front)
+	}
+	if !(tip > 0 && tip < 1) {
+		return fmt.Errorf("damage front: tip level f_tip = %g must lie in (0, 1)", tip)
+	}
+	if o.MaxGap < 0 || math.IsNaN(o.MaxGap) || math.IsInf(o.MaxGap, 0) {
+		return fmt.Errorf("damage front: MaxGap = %g must be finite and ≥ 0", o.MaxGap)
+	}
+	if len(o.Tips) == 0 {
+		return fmt.Errorf("damage front: no initial crack tip given")
+	}
+	for i, s := range o.Tips {
+		if d := math.Hypot(s.Dir[0], s.Dir[1]); !(d > 0) || math.IsInf(d, 0) {
+			return fmt.Errorf("damage front: initial tip %d has crack direction %v; need a finite non-zero vector", i, s.Dir)
+		}
+		if math.IsNaN(s.X[0]+s.X[1]) || math.IsInf(s.X[0]+s.X[1], 0) {
+			return fmt.Errorf("damage front: initial tip %d position %v must be finite", i, s.X)
+		}
+	}
+	return nil
+}
+
+// Tip is a located crack tip.
+type Tip struct {
+	Seed   int        // index of the initial tip in FrontOptions.Tips
+	X      [2]float64 // tip position (reference configuration)
+	DA     float64    // crack extension Δa along the path from the initial tip
+	DAProj float64    // Δa projected on the initial crack direction
+	// Path is the crack path from the initial tip to X (a polyline with
+	// the mesh zigzag removed), whose length is DA.
+	Path [][2]float64
+	// Grown is false when no cracked material is connected to the initial
+	// tip: X is then the initial tip and Δa = 0.
+	Grown bool
+}
+
+// Front is the result of LocateFront.
+type Front struct {
+	Level float64        // the contour level f_front
+	Lines [][][2]float64 // the contour f = f_front as polylines, the longest first
+	Nodal []float64      // recovered porosity at every node
+	Tips  []Tip          // one per initial tip
+}
+
+// subTri are the four linear sub-triangles of a 6-node triangle (local
+// node indices, counter-clockwise).
+var subTri = [4][3]int{{0, 3, 5}, {3, 1, 4}, {5, 4, 2}, {3, 4, 5}}
+
+// RecoverNodal returns the porosity at every node of m recovered from the
+// Gauss points: in each element a linear least-squares fit of the Gauss-
+// point values (local smoothing, Hinton & Campbell 1974, IJNME 8) evaluated
+// at its six nodes, then the area-weighted mean over the elements around
+// each node (common practice). A linear fit cannot overshoot the way a
+// quadratic extrapolation does.
+func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
+	if err := checkGauss(m, gp, "porosity recovery"); err != nil {
+		return nil, err
+	}
+	rule := fem.ElementRule()
+	sum := make([]float64, len(m.X))
+	wsum := make([]float64, len(m.X))
+	// Normal equations of the fit f ≈ c₀ + c₁L₁ + c₂L₂ depend only on the rule.
+	var A [3][3]float64
+	for i := 0; i < rule.Len(); i++ {
+		b := [3]float64{1, rule.L[i][0], rule.L[i][1]}
+		for r := 0; r < 3; r++ {
+			for c := 0; c < 3; c++ {
+				A[r][c] += b[r] * b[c]
+			}
+		}
+	}
+	inv, ok := inverse3(A)
+	if !ok {
+		return nil, fmt.Errorf("porosity recovery: the element rule's points are collinear")
+	}
+	nodeL := [6][2]float64{{1, 0}, {0, 1}, {0, 0}, {0.5, 0.5}, {0, 0.5}, {0.5, 0}}
+	for e, t := range m.Tri {
+		var rhs [3]float64
+		for i := 0; i < rule.Len(); i++ {
+			f := gp.At(e, i).State.F
+			if math.IsNaN(f) || math.IsInf(f, 0) {
+				return nil, fmt.Errorf("porosity recovery: triangle %d Gauss point %d has porosity %g", e, i, f)
+			}
+			rhs[0] += f
+			rhs[1] += f * rule.L[i][0]
+			rhs[2] += f * rule.L[i][1]
+		}
+		var c [3]float64
+		for r := 0; r < 3; r++ {
+			c[r] = inv[r][0]*rhs[0] + inv[r][1]*rhs[1] + inv[r][2]*rhs[2]
+		}
+		a, b, cc := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+		area := math.Abs(0.5 * ((b[0]-a[0])*(cc[1]-a[1]) - (cc[0]-a[0])*(b[1]-a[1])))
+		for k, n := range t {
+			sum[n] += area * (c[0] + c[1]*nodeL[k][0] + c[2]*nodeL[k][1])
+			wsum[n] += area
+		}
+	}
+	for n := range sum {
+		if wsum[n] > 0 {
+			sum[n] /= wsum[n]
+		}
+	}
+	return sum, nil
+}
+
+func inverse3(a [3][3]float64) ([3][3]float64, bool) {
+	det := a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) -
+		a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) +
+		a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
+	if math.Abs(det) < 1e-14 {
+		return [3][3]float64{}, false
+	}
+	var r [3][3]float64
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			i1, i2 := (j+1)%3, (j+2)%3
+			j1, j2 := (i+1)%3, (i+2)%3
+			r[i][j] = (a[i1][j1]*a[i2][j2] - a[i1][j2]*a[i2][j1]) / det
+		}
+	}
+	return r, true
+}
+
+// LocateFront finds the damage front and the crack tip(s).
+//
+// The porosity is recovered to the nodes (RecoverNodal) and treated as
+// linear on the four sub-triangles of each 6-node triangle. The front is the
+// contour f = f_front on them (marching triangles), joined into polylines.
+//
+// The crack tip of each initial tip is the point of {f ≥ f_tip} farthest
+// along the crack path: a shortest-path search (Dijkstra 1959, Numer. Math.
+// 1) from the initial tips over the sub-triangle edges, where edges inside
+// cracked material cost their length and edges that bridge uncracked
+// material cost 20 times their length and may add up to at most MaxGap per
+// path. Several initial tips share the cracked material by nearest path
+// (the search runs from all of them at once), so each gets its own tip. The
+// tip lies on the edge where f falls through f_tip beyond the farthest
+// cracked node, or on that node. Δa is the length of the path after the
+// mesh zigzag is removed (Douglas & Peucker 1973, Cartographica 10, with a
+// tolerance of half the mean edge length along the path); it is the
+// shortest route through the cracked material, so a turning path cuts its
+// inside corner by up to half the band width. DAProj = (X − X₀)·d₀.
+func LocateFront(m *fem.Mesh, gp *fem.GaussPoints, opt FrontOptions) (*Front, error) {
+	if err := opt.Validate(); err != nil {
+		return nil, err
+	}
+	fn, err := RecoverNodal(m, gp)
+	if err != nil {
+		return nil, fmt.Errorf("damage front: %w", err)
+	}
+	level, ftip := opt.levels()
+	fr := &Front{Level: level, Nodal: fn}
+	fr.Lines = contour(m, fn, level)
+	sortLines(fr.Lines)
+	fr.Tips = locateTips(m, fn, ftip, opt)
+	return fr, nil
+}
+
+type edgeKey struct{ a, b int }
+
+func mkKey(a, b int) edgeKey {
+	if a > b {
+		a, b = b, a
+	}
+	return edgeKey{a, b}
+}
+
+// contour returns the polylines of f = c on the sub-triangles of m.
+func contour(m *fem.Mesh, f []float64, c float64) [][][2]float64 {
+	type seg struct{ k [2]edgeKey }
+	var segs []seg
+	pts := map[edgeKey][2]float64{}
+	for _, t := range m.Tri {
+		for _, st := range subTri {
+			n := [3]int{t[st[0]], t[st[1]], t[st[2]]}
+			var cut []edgeKey
+			for j := 0; j < 3; j++ {
+				a, b := n[j], n[(j+1)%3]
+				if (f[a] >= c) == (f[b] >= c) {
+					continue
+				}
+				k := mkKey(a, b)
+				if _, ok := pts[k]; !ok {
+					s := (c - f[k.a]) / (f[k.b] - f[k.a])
+					xa, xb := m.X[k.a], m.X[k.b]
+					pts[k] = [2]float64{xa[0] + s*(xb[0]-xa[0]), xa[1] + s*(xb[1]-xa[1])}
+				}
+				cut = append(cut, k)
+			}
+			if len(cut) == 2 {
+				segs = append(segs, seg{[2]edgeKey{cut[0], cut[1]}})
+			}
+		}
+	}
+	// Join segments that share a cut edge.
+	at := map[edgeKey][]int{}
+	for i, s := range segs {
+		at[s.k[0]] = append(at[s.k[0]], i)
+		at[s.k[1]] = append(at[s.k[1]], i)
+	}
+	used := make([]bool, len(segs))
+	next := func(k edgeKey) (int, bool) {
+		for _, i := range at[k] {
+			if !used[i] {
+				return i, true
+			}
+		}
+		return 0, false
+	}
+	// walk extends from key k until no unused segment continues.
+	walk := func(k edgeKey) []edgeKey {
+		var ks []edgeKey
+		for {
+			i, ok := next(k)
+			if !ok {
+				return ks
+			}
+			used[i] = true
+			if segs[i].k[0] == k {
+				k = segs[i].k[1]
+			} else {
+				k = segs[i].k[0]
+			}
+			ks = append(ks, k)
+		}
+	}
+	var lines [][][2]float64
+	for i := range segs {
+		if used[i] {
+			continue
+		}
+		used[i] = true
+		fwd := walk(segs[i].k[1])
+		bwd := walk(segs[i].k[0])
+		keys := make([]edgeKey, 0, len(fwd)+len(bwd)+2)
+		for j := len(bwd) - 1; j >= 0; j-- {
+			keys = append(keys, bwd[j])
+		}
+		keys = append(keys, segs[i].k[0], segs[i].k[1])
+		keys = append(keys, fwd...)
+		line := make([][2]float64, len(keys))
+		for j, k := range keys {
+			line[j] = pts[k]
+		}
+		lines = append(lines, line)
+	}
+	return lines
+}
+
+// bridgeCost is the cost factor of an edge through uncracked material.
+const bridgeCost = 20
+
+type pqItem struct {
+	n    int
+	cost float64
+}
+type pq []pqItem
+
+func (p pq) Len() int            { return len(p) }
+func (p pq) Less(i, j int) bool  { return p[i].cost < p[j].cost }
+func (p pq) Swap(i, j int)       { p[i], p[j] = p[j], p[i] }
+func (p *pq) Push(x interface{}) { *p = append(*p, x.(pqItem)) }
+func (p *pq) Pop() interface{} {
+	old := *p
+	it := old[len(old)-1]
+	*p = old[:len(old)-1]
+	return it
+}
+
+func dist2(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
+
+// locateTips runs the multi-source shortest-path search and picks the tips.
+func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip {
+	nn := len(m.X)
+	// Sub-triangle edge adjacency (an edge shared by two elements appears
+	// twice, which is harmless).
+	adj := make([][]int, nn)
+	for _, t := range m.Tri {
+		for _, st := range subTri {
+			for j := 0; j < 3; j++ {
+				a, b := t[st[j]], t[st[(j+1)%3]]
+				adj[a] = append(adj[a], b)
+				adj[b] = append(adj[b], a)
+			}
+		}
+	}
+	used := make([]bool, nn)
+	for _, t := range m.Tri {
+		for _, n := range t {
+			used[n] = true
+		}
+	}
+	// Cracked nodes: f ≥ f_tip, or on a crack face ahead of some initial tip.
+	cracked := make([]bool, nn)
+	for n := range f {
+		cracked[n] = used[n] && f[n] >= ftip
+	}
+	label := opt.CrackLabel
+	if label == "" {
+		label = "crack"
+	}
+	if li := m.Label(label); li >= 0 {
+		for _, ed := range m.Boundary {
+			if ed.Label != li {
+				continue
+			}
+			for _, n := range [3]int{ed.A, ed.Mid, ed.B} {
+				if n < 0 || n >= nn {
+					continue
+				}
+				for _, s := range opt.Tips {
+					d, _ := frame(s.Dir)
+					if (m.X[n][0]-s.X[0])*d[0]+(m.X[n][1]-s.X[1])*d[1] > 0 {
+						cracked[n] = true
+					}
+				}
+			}
+		}
+	}
+	cost := make([]float64, nn)
+	glen := make([]float64, nn)
+	gap := make([]float64, nn)
+	owner := make([]int, nn)
+	parent := make([]int, nn)
+	for i := range cost {
+		cost[i] = math.Inf(1)
+		owner[i] = -1
+		parent[i] = -1
+	}
+	seedNode := make([]int, len(opt.Tips))
+	maxGap := make([]float64, len(opt.Tips))
+	h := &pq{}
+	for s, sd := range opt.Tips {
+		best, bd := -1, math.Inf(1)
+		for n := 0; n < nn; n++ {
+			if used[n] {
+				if d := dist2(m.X[n], sd.X); d < bd {
+					best, bd = n, d
+				}
+			}
+		}
+		seedNode[s] = best
+		maxGap[s] = opt.MaxGap
+		if maxGap[s] == 0 {
+			for _, b := range adj[best] {
+				// a sub-edge is half an element edge: 2 element edges = 4 sub-edges.
+				maxGap[s] = math.Max(maxGap[s], 4*dist2(m.X[best], m.X[b]))
+			}
+		}
+		if bd < cost[best] {
+			cost[best] = bd
+			glen[best] = 0
+			owner[best] = s
+			heap.Push(h, pqItem{best, bd})
+		}
+	}
+	isCracked := func(n int) bool {
+		return cracked[n] || (owner[n] >= 0 && n == seedNode[owner[n]])
+	}
+	for h.Len() > 0 {
+		it := heap.Pop(h).(pqItem)
+		a := it.n
+		if it.cost > cost[a] {
+			continue
+		}
+		for _, b := range adj[a] {
+			l := dist2(m.X[a], m.X[b])
+			c, g := l, gap[a]
+			if !(isCracked(a) && cracked[b]) {
+				c *= bridgeCost
+				g += l
+			}
+			if g > maxGap[owner[a]] {
+				continue
+			}
+			if cost[a]+c < cost[b] {
+				cost[b] = cost[a] + c
+				glen[b] = glen[a] + l
+				gap[b] = g
+				owner[b] = owner[a]
+				parent[b] = a
+				heap.Push(h, pqItem{b, cost[b]})
+			}
+		}
+	}
+	tips := make([]Tip, len(opt.Tips))
+	for s, sd := range opt.Tips {
+		tips[s] = Tip{Seed: s, X: sd.X, Path: [][2]float64{sd.X}}
+	}
+	// Candidates: cracked nodes, and the points beyond them where f falls
+	// through f_tip along an edge. The graph length glen over-estimates the
+	// path by the mesh zigzag, so it only pre-selects: the candidates within
+	// 15% of the longest are ranked by the length of their simplified path,
+	// and the 48 longest of those by the length of their taut path.
+	type cand struct {
+		node int
+		x    [2]float64
+		len  float64
+	}
+	cands := make([][]cand, len(opt.Tips))
+	ahead := func(s int, x [2]float64) bool {
+		d, _ := frame(opt.Tips[s].Dir)
+		return (x[0]-opt.Tips[s].X[0])*d[0]+(x[1]-opt.Tips[s].X[1])*d[1] >= 0
+	}
+	for a := 0; a < nn; a++ {
+		s := owner[a]
+		if s < 0 || !cracked[a] || !ahead(s, m.X[a]) {
+			continue
+		}
+		cands[s] = append(cands[s], cand{a, m.X[a], glen[a]})
+		if f[a] < ftip {
+			continue // cracked by the crack-face label only
+		}
+		for _, b := range adj[a] {
+			if f[b] >= ftip || cracked[b] {
+				continue
+			}
+			sf := (f[a] - ftip) / (f[a] - f[b])
+			xa, xb := m.X[a], m.X[b]
+			x := [2]float64{xa[0] + sf*(xb[0]-xa[0]), xa[1] + sf*(xb[1]-xa[1])}
+			cands[s] = append(cands[s], cand{a, x, glen[a] + dist2(x, xa)})
+		}
+	}
+	vis := visibility(m, f, ftip, cracked)
+	for s, cs := range cands {
+		if len(cs) == 0 {
+			continue
+		}
+		sort.Slice(cs, func(i, j int) bool { return cs[i].len > cs[j].len })
+		type ranked struct {
+			c    cand
+			path [][2]float64
+			len  float64
+		}
+		var rs []ranked
+		for i, c := range cs {
+			if i >= 400 || c.len < 0.85*cs[0].len {
+				break
+			}
+			path := tipPath(m, parent, c.node, c.x, opt.Tips[s].X)
+			rs = append(rs, ranked{c, path, polyLength(path)})
+		}
+		sort.Slice(rs, func(i, j int) bool { return rs[i].len > rs[j].len })
+		// The few longest are pulled taut inside the cracked material; the
+		// longest taut path wins.
+		var best Tip
+		for i, r := range rs {
+			if i >= 48 {
+				break
+			}
+			path := pullTaut(r.path, vis)
+			if l := polyLength(path); l > best.DA || i == 0 {
+				best = Tip{Seed: s, X: r.c.x, DA: l, Path: path, Grown: l > 0}
+			}
+		}
+		d0, _ := frame(opt.Tips[s].Dir)
+		sx := opt.Tips[s].X
+		best.DAProj = (best.X[0]-sx[0])*d0[0] + (best.X[1]-sx[1])*d0[1]
+		tips[s] = best
+	}
+	return tips
+}
+
+// tipPath returns the simplified crack path from the initial tip sx through
+// the shortest-path chain ending at node to the tip point x.
+func tipPath(m *fem.Mesh, parent []int, node int, x, sx [2]float64) [][2]float64 {
+	chain := [][2]float64{}
+	if x != m.X[node] {
+		chain = append(chain, x)
+	}
+	for n := node; n >= 0; n = parent[n] {
+		chain = append(chain, m.X[n])
+	}
+	// Start at the initial tip itself rather than its nearest node.
+	if chain[len(chain)-1] != sx {
+		chain = append(chain, sx)
+	}
+	for i, j := 0, len(chain)-1; i < j; i, j = i+1, j-1 {
+		chain[i], chain[j] = chain[j], chain[i]
+	}
+	tol := 0.0
+	if len(chain) > 1 {
+		tol = 0.5 * polyLength(chain) / float64(len(chain)-1)
+	}
+	return simplify(chain, tol)
+}
+
+func polyLength(p [][2]float64) float64 {
+	l := 0.0
+	for i := 1; i < len(p); i++ {
+		l += dist2(p[i-1], p[i])
+	}
+	return l
+}
+
+// visibility returns a test whether the straight segment p–q runs through
+// cracked material only: sample points every quarter of the shortest
+// sub-edge must have f ≥ f_tip (linear on the sub-triangles), lie in an
+// element with a cracked node on a crack face, or lie outside the mesh
+// (the void of removed broken material).
+func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, q [2]float64) bool {
+	loc := newLocator(m)
+	hmin := math.Inf(1)
+	for _, t := range m.Tri {
+		for _, st := range subTri {
+			for j := 0; j < 3; j++ {
+				if d := dist2(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
+					hmin = math.Min(hmin, d)
+				}
+			}
+		}
+	}
+	step := hmin / 4
+	return func(p, q [2]float64) bool {
+		n := int(math.Ceil(dist2(p, q) / step))
+		for k := 1; k < n; k++ {
+			s := float64(k) / float64(n)
+			x := [2]float64{p[0] + s*(q[0]-p[0]), p[1] + s*(q[1]-p[1])}
+			e, l := loc.find(x)
+			if e < 0 {
+				continue
+			}
+			t := m.Tri[e]
+			var v [6]float64
+			for a, nd := range t {
+				v[a] = f[nd]
+				if cracked[nd] && f[nd] < ftip {
+					v[a] = ftip // crack-face node
+				}
+			}
+			if subLinear(v, l) < ftip {
+				return false
+			}
+		}
+		return true
+	}
+}
+
+// pullTaut shortens a polyline greedily: from each kept point it jumps to
+// the farthest later point it sees in a straight line (string pulling, as
+// in shortest paths in polygons, Lee & Preparata 1984, Networks 14). The
+// farthest visible point is found by bisection, which assumes that along a
+// path through a band what is seen from a point is a stretch of the path
+// that starts at it (true for a convex stretch of band, close enough for a
+// path that turns over many elements).
+func pullTaut(p [][2]float64, visible func(a, b [2]float64) bool) [][2]float64 {
+	if len(p) < 3 {
+		return p
+	}
+	out := [][2]float64{p[0]}
+	i := 0
+	for i < len(p)-1 {
+		j := i + 1 // always visible: a path edge
+		if visible(p[i], p[len(p)-1]) {
+			j = len(p) - 1
+		} else {
+			lo, hi := i+1, len(p)-1 // lo visible, hi not
+			for hi-lo > 1 {
+				mid := (lo + hi) / 2
+				if visible(p[i], p[mid]) {
+					lo = mid
+				} else {
+					hi = mid
+				}
+			}
+			j = lo
+		}
+		out = append(out, p[j])
+		i = j
+	}
+	return out
+}
+
+// simplify removes the points of a polyline that lie within tol of the
+// chord of their neighbours (Douglas & Peucker 1973, Cartographica 10).
+func simplify(p [][2]float64, tol float64) [][2]float64 {
+	if len(p) < 3 {
+		return p
+	}
+	keep := make([]bool, len(p))
+	keep[0], keep[len(p)-1] = true, true
+	var rec func(i, j int)
+	rec = func(i, j int) {
+		if j <= i+1 {
+			return
+		}
+		a, b := p[i], p[j]
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		l := math.Hypot(dx, dy)
+		worst, wk := -1.0, -1
+		for k := i + 1; k < j; k++ {
+			var d float64
+			if l == 0 {
+				d = dist2(p[k], a)
+			} else {
+				d = math.Abs((p[k][0]-a[0])*dy-(p[k][1]-a[1])*dx) / l
+			}
+			if d > worst {
+				worst, wk = d, k
+			}
+		}
+		if worst > tol {
+			keep[wk] = true
+			rec(i, wk)
+			rec(wk, j)
+		}
+	}
+	rec(0, len(p)-1)
+	out := make([][2]float64, 0, len(p))
+	for i, k := range keep {
+		if k {
+			out = append(out, p[i])
+		}
+	}
+	return out
+}
+
+// sortLines orders polylines by their number of points, longest first, so
+// that the main front comes first.
+func sortLines(lines [][][2]float64) {
+	sort.SliceStable(lines, func(i, j int) bool { return len(lines[i]) > len(lines[j]) })
+}
