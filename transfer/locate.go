@@ -19,6 +19,9 @@ type Locator struct {
 	tree rtree.RTreeG[int]
 	tol  float64
 	size []float64 // longest edge of every triangle
+	// node maps the coordinates of every old node to its index, or to −1
+	// when several nodes share them (crack faces).
+	node map[[2]uint64]int
 }
 
 // Hit is the result of locating one point.
@@ -49,7 +52,15 @@ func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
 	if err := m.Check(); err != nil {
 		return nil, fmt.Errorf("transfer: locator: old mesh: %w", err)
 	}
-	lc := &Locator{mesh: m, tol: tol, size: make([]float64, len(m.Tri))}
+	lc := &Locator{mesh: m, tol: tol, size: make([]float64, len(m.Tri)), node: make(map[[2]uint64]int, len(m.X))}
+	for n, p := range m.X {
+		k := pointKey(p)
+		if _, dup := lc.node[k]; dup {
+			lc.node[k] = -1
+		} else {
+			lc.node[k] = n
+		}
+	}
 	for e, t := range m.Tri {
 		a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
 		lo := [2]float64{math.Min(a[0], math.Min(b[0], c[0])), math.Min(a[1], math.Min(b[1], c[1]))}
@@ -91,8 +102,9 @@ func (lc *Locator) LocateAll(pts [][2]float64, workers int) []Hit {
 // towards the interior of the first new triangle that owns it, so that a
 // node on a crack face (where both faces share reference coordinates) lands
 // in the old triangle on its own side. Hit.Node is set when the node
-// coincides exactly with a node of the old triangle found. Nodes that no
-// triangle uses get Elem = -1.
+// coincides exactly with a node of the old triangle found, or else with the
+// only old node at its position (a midside node on a curved edge lies off
+// the chords). Nodes that no triangle uses get Elem = -1.
 func (lc *Locator) LocateNodes(m *fem.Mesh, workers int) []Hit {
 	owner := make([]int32, len(m.X))
 	for i := range owner {
@@ -131,6 +143,9 @@ func (lc *Locator) LocateNodes(m *fem.Mesh, workers int) []Hit {
 						h.Node = on
 						break
 					}
+				}
+				if on, ok := lc.node[pointKey(p)]; h.Node < 0 && ok && on >= 0 {
+					h.Node = on
 				}
 			}
 			hits[n] = h
@@ -252,6 +267,11 @@ func clampL(l [3]float64) [3]float64 {
 func dist2(a, b [2]float64) float64 {
 	dx, dy := a[0]-b[0], a[1]-b[1]
 	return dx*dx + dy*dy
+}
+
+// pointKey is the bit pattern of a position (−0 read as +0).
+func pointKey(p [2]float64) [2]uint64 {
+	return [2]uint64{math.Float64bits(p[0] + 0), math.Float64bits(p[1] + 0)}
 }
 
 func finite(x float64) bool { return !math.IsInf(x, 0) && !math.IsNaN(x) }

@@ -475,9 +475,8 @@ func canonical(m *fem.Mesh, e int) (triKey, int) {
 	}
 	var key triKey
 	for j := 0; j < 3; j++ {
-		p := v[(j+rot)%3]
-		key[2*j] = math.Float64bits(p[0] + 0)
-		key[2*j+1] = math.Float64bits(p[1] + 0)
+		k := pointKey(v[(j+rot)%3])
+		key[2*j], key[2*j+1] = k[0], k[1]
 	}
 	return key, rot
 }

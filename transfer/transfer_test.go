@@ -633,3 +633,46 @@ func TestConcurrentAndDeterministic(t *testing.T) {
 		}
 	}
 }
+
+// TestCurvedUnchanged: the same curved mesh (midside nodes of the outer
+// edges on the arc, off the chords), renumbered and rotated, takes every
+// nodal value and every Gauss-point state verbatim.
+func TestCurvedUnchanged(t *testing.T) {
+	old := sectorMesh(4, 6, 0.4)
+	nw := shuffled(old, 3)
+	rng := rand.New(rand.NewPCG(2, 2))
+	from := fieldsFrom(old, func([2]float64) [2]float64 { return [2]float64{rng.NormFloat64(), rng.NormFloat64()} },
+		[]func([2]float64) float64{func([2]float64) float64 { return rng.NormFloat64() }},
+		func([2]float64) material.State { return material.State{P: rng.Float64(), F: 0.05 * rng.Float64()} }, nil)
+	to, rec, err := Map(old, from, nw, DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rec.NodesCopied != len(nw.X) || rec.Verbatim != len(to.State) || rec.UnchangedElements != len(nw.Tri) {
+		t.Fatalf("copied %d of %d nodes, %d of %d points verbatim, %d of %d elements unchanged",
+			rec.NodesCopied, len(nw.X), rec.Verbatim, len(to.State), rec.UnchangedElements, len(nw.Tri))
+	}
+	for n, p := range nw.X {
+		for on, q := range old.X {
+			if p == q && (to.U[n] != from.U[on] || (n < nw.NumCorners && to.Linear[0][n] != from.Linear[0][on])) {
+				t.Fatalf("node %d at %v: not copied from old node %d", n, p, on)
+			}
+		}
+	}
+	// Integrals over the same geometry agree to round-off (the summation
+	// order differs), and the isoparametric area approaches that of the
+	// domain — the quarter annulus π(1 − r0²)/4 plus the six circular
+	// segments r0²(Δθ − sin Δθ)/2 of the inner boundary, which sectorMesh
+	// leaves straight (closed forms) — far closer than the chord polygon,
+	// which misses the outer segments (Δθ − sin Δθ)/2.
+	if math.Abs(rec.Before.IntP-rec.After.IntP) > 1e-14 || math.Abs(rec.Before.Volume-rec.After.Volume) > 1e-14 {
+		t.Errorf("∫p %g → %g, volume %g → %g", rec.Before.IntP, rec.After.IntP, rec.Before.Volume, rec.After.Volume)
+	}
+	dth := math.Pi / 2 / 6
+	chordDeficit := 6 * 0.5 * (dth - math.Sin(dth)) // six circular segments of the unit circle
+	exact := math.Pi*(1-0.4*0.4)/4 + 0.4*0.4*chordDeficit
+	t.Logf("area: isoparametric %.10f, exact %.10f (error %.2e), chord polygon error %.2e", rec.Before.Volume, exact, rec.Before.Volume-exact, chordDeficit)
+	if math.Abs(rec.Before.Volume-exact) > 0.01*chordDeficit {
+		t.Errorf("isoparametric area %.10f, exact %.10f: error above 1%% of the chord polygon's %.2e", rec.Before.Volume, exact, chordDeficit)
+	}
+}
