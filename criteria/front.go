@@ -332,18 +332,34 @@ func dist2(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
 // locateTips runs the multi-source shortest-path search and picks the tips.
 func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip {
 	nn := len(m.X)
-	// Sub-triangle edge adjacency (an edge shared by two elements appears
-	// twice, which is harmless).
-	adj := make([][]int, nn)
+	// Sub-triangle edge adjacency in compressed rows (an edge shared by two
+	// elements appears twice, which is harmless).
+	adjStart := make([]int, nn+1)
+	for _, t := range m.Tri {
+		for _, st := range subTri {
+			for j := 0; j < 3; j++ {
+				adjStart[t[st[j]]+1]++
+				adjStart[t[st[(j+1)%3]]+1]++
+			}
+		}
+	}
+	for i := 0; i < nn; i++ {
+		adjStart[i+1] += adjStart[i]
+	}
+	adjList := make([]int, adjStart[nn])
+	fill := append([]int(nil), adjStart[:nn]...)
 	for _, t := range m.Tri {
 		for _, st := range subTri {
 			for j := 0; j < 3; j++ {
 				a, b := t[st[j]], t[st[(j+1)%3]]
-				adj[a] = append(adj[a], b)
-				adj[b] = append(adj[b], a)
+				adjList[fill[a]] = b
+				fill[a]++
+				adjList[fill[b]] = a
+				fill[b]++
 			}
 		}
 	}
+	adj := func(n int) []int { return adjList[adjStart[n]:adjStart[n+1]] }
 	used := make([]bool, nn)
 	for _, t := range m.Tri {
 		for _, n := range t {
@@ -402,7 +418,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		seedNode[s] = best
 		maxGap[s] = opt.MaxGap
 		if maxGap[s] == 0 {
-			for _, b := range adj[best] {
+			for _, b := range adj(best) {
 				// a sub-edge is half an element edge: 2 element edges = 4 sub-edges.
 				maxGap[s] = math.Max(maxGap[s], 4*dist2(m.X[best], m.X[b]))
 			}
@@ -423,7 +439,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		if it.cost > cost[a] {
 			continue
 		}
-		for _, b := range adj[a] {
+		for _, b := range adj(a) {
 			l := dist2(m.X[a], m.X[b])
 			c, g := l, gap[a]
 			if !(isCracked(a) && cracked[b]) {
@@ -471,7 +487,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		if f[a] < ftip {
 			continue // cracked by the crack-face label only
 		}
-		for _, b := range adj[a] {
+		for _, b := range adj(a) {
 			if f[b] >= ftip || cracked[b] {
 				continue
 			}

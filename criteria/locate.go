@@ -12,7 +12,7 @@ type locator struct {
 	m          *fem.Mesh
 	x0, y0, cs float64
 	nx, ny     int
-	cells      [][]int32
+	start, tri []int32 // triangles of cell c: tri[start[c]:start[c+1]]
 }
 
 func newLocator(m *fem.Mesh) *locator {
@@ -34,21 +34,38 @@ func newLocator(m *fem.Mesh) *locator {
 	l := &locator{m: m, x0: lo[0], y0: lo[1], cs: cs}
 	l.nx = int(w/cs) + 1
 	l.ny = int(h/cs) + 1
-	l.cells = make([][]int32, l.nx*l.ny)
-	for e, t := range m.Tri {
-		blo := [2]float64{math.Inf(1), math.Inf(1)}
-		bhi := [2]float64{math.Inf(-1), math.Inf(-1)}
-		for _, n := range t[:3] {
-			for d := 0; d < 2; d++ {
-				blo[d] = math.Min(blo[d], m.X[n][d])
-				bhi[d] = math.Max(bhi[d], m.X[n][d])
+	// Buckets in compressed rows: count, then fill.
+	l.start = make([]int32, l.nx*l.ny+1)
+	for pass := 0; pass < 2; pass++ {
+		var fill []int32
+		if pass == 1 {
+			for c := 0; c < l.nx*l.ny; c++ {
+				l.start[c+1] += l.start[c]
 			}
+			l.tri = make([]int32, l.start[l.nx*l.ny])
+			fill = append([]int32(nil), l.start[:l.nx*l.ny]...)
 		}
-		i0, j0 := l.cell(blo)
-		i1, j1 := l.cell(bhi)
-		for j := j0; j <= j1; j++ {
-			for i := i0; i <= i1; i++ {
-				l.cells[j*l.nx+i] = append(l.cells[j*l.nx+i], int32(e))
+		for e, t := range m.Tri {
+			blo := [2]float64{math.Inf(1), math.Inf(1)}
+			bhi := [2]float64{math.Inf(-1), math.Inf(-1)}
+			for _, n := range t[:3] {
+				for d := 0; d < 2; d++ {
+					blo[d] = math.Min(blo[d], m.X[n][d])
+					bhi[d] = math.Max(bhi[d], m.X[n][d])
+				}
+			}
+			i0, j0 := l.cell(blo)
+			i1, j1 := l.cell(bhi)
+			for j := j0; j <= j1; j++ {
+				for i := i0; i <= i1; i++ {
+					c := j*l.nx + i
+					if pass == 0 {
+						l.start[c+1]++
+					} else {
+						l.tri[fill[c]] = int32(e)
+						fill[c]++
+					}
+				}
 			}
 		}
 	}
@@ -68,7 +85,8 @@ func (l *locator) find(p [2]float64) (int, [3]float64) {
 		return -1, [3]float64{}
 	}
 	i, j := l.cell(p)
-	for _, e := range l.cells[j*l.nx+i] {
+	c := j*l.nx + i
+	for _, e := range l.tri[l.start[c]:l.start[c+1]] {
 		t := l.m.Tri[e]
 		b := fem.Barycentric(p, l.m.X[t[0]], l.m.X[t[1]], l.m.X[t[2]])
 		if b[0] >= -1e-12 && b[1] >= -1e-12 && b[2] >= -1e-12 {
