@@ -2,6 +2,30 @@
 // strain and its derivatives, Hencky elasticity, and finite-strain GTN porous
 // plasticity with gradient (micromorphic) regularisation of the cumulative
 // plastic strain.
+//
+// # Kinematics
+//
+// The element forms C = FᵀF (F₃₃ = 1 in plane strain, 1 + u_r/R in
+// axisymmetry) and calls LogStrain for E = ½ ln C and ∂E/∂C. A Model maps E
+// to the stress T work-conjugate to E; SecondPK gives S = 2 T:∂E/∂C,
+// LogStrainCurvature the geometric term T:∂²E/∂C², and SecondPKTangent
+// assembles ∂S/∂C from the two (Miehe, Apel & Lambrecht 2002).
+//
+// # Models
+//
+// Hencky is isotropic elasticity in log space. GTN is Gurson–Tvergaard–
+// Needleman porous plasticity with coalescence, optional nucleation and the
+// gradient coupling A = R(p) + λ + r(p − ā); with f₀ = 0 and no nucleation
+// it is von Mises plasticity. Hardening laws: PowerLaw, Voce, Tabulated,
+// PerfectlyPlastic. Every parameter set has Validate; models are immutable
+// and safe for concurrent Update calls on different points; Update does not
+// allocate.
+//
+// # Conventions
+//
+// Sym holds the components 11, 22, 33, 12 (tensor shear). Derivatives with
+// respect to a Sym count the 12 component once: dAᵢ = Σⱼ D[i][j] dBⱼ. Stresses
+// are positive in tension; σ_m = tr T/3, σ_eq = √(3/2 s:s).
 package material
 
 // Sym is a symmetric 3×3 tensor of a 2D problem (plane strain or
