@@ -17,7 +17,8 @@
 //   - DomainJ: J by the equivalent domain integral (Li, Shih & Needleman 1985,
 //     Eng. Fract. Mech. 21; Moran & Shih 1987, Eng. Fract. Mech. 27) on rings
 //     around a tip, in the finite-strain form with the first Piola–Kirchhoff
-//     stress.
+//     stress, in plane strain and in axisymmetry (Shih, Moran & Nakamura
+//     1986, Int. J. Fract. 30, reduced to a circular crack front).
 //   - LocateFront: the contour f = f_front of the recovered porosity, and the
 //     crack tip(s) as the points of {f ≥ f_tip} farthest along the crack path
 //     from each initial tip, with Δa along the path and projected.

@@ -117,7 +117,8 @@ func TestDomainJBadInput(t *testing.T) {
 		{"inverted ring", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.5, 0.1}}}, "need 0 ≤ in < out"},
 		{"no rings", m, gp, JOptions{Dir: [2]float64{1, 0}}, "no rings"},
 		{"zero direction", m, gp, JOptions{Rings: ok.Rings}, "crack direction"},
-		{"axisymmetric", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: ok.Rings, Axisymmetric: true}, "axisymmetric"},
+		{"axisymmetric tip on the axis", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: ok.Rings, Axisymmetric: true}, "need r > 0"},
+		{"axisymmetric points across the axis", m, gp, JOptions{Tip: [2]float64{0.2, 0}, Dir: [2]float64{1, 0}, Rings: ok.Rings, Axisymmetric: true}, "need r > 0"},
 		{"missing label", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: ok.Rings, Cross: []string{"flank"}}, `label "flank"`},
 		{"ring reaches outer boundary", m, gp, JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.5, 1.5}}, Cross: []string{"crack"}}, `boundary "outer"`},
 		{"ring outside the mesh", m, gp, JOptions{Tip: [2]float64{10, 10}, Dir: [2]float64{1, 0}, Rings: []Ring{{0.1, 0.5}}}, "holds no element"},
@@ -125,6 +126,75 @@ func TestDomainJBadInput(t *testing.T) {
 		_, err := DomainJ(tc.m, tc.gp, tc.opt)
 		if err == nil || !strings.Contains(err.Error(), tc.want) {
 			t.Errorf("%s: error %v, want one containing %q", tc.name, err, tc.want)
+		}
+	}
+}
+
+// TestDomainJAxisymmetric checks the axisymmetric domain integral: on the
+// Lamé thick cylinder (u_r = AR + B/R, Timoshenko & Goodier, Theory of
+// Elasticity), a regular field, J = 0 on every ring, which holds only with
+// the hoop term (the plane-strain evaluation of the same data is shown to be
+// far from 0); and a crack front at a large radius R₀ carrying the Williams
+// field gives the plane-strain J = K²(1−ν²)/E (Williams 1957; Rice 1968)
+// within 1%, the hoop terms being O(r/R₀).
+func TestDomainJAxisymmetric(t *testing.T) {
+	el := Elastic{E: 200e3, Nu: 0.3}
+	lam := el.E * el.Nu / ((1 + el.Nu) * (1 - 2*el.Nu))
+	mu := el.Shear()
+	const A, B = 1e-3, 2e-3
+	m := gridMesh(1, 3, -1, 1, 40, 40, true)
+	gp := gaussFrom(m, func(x [2]float64) (F, P [5]float64, W, f float64) {
+		R := x[0]
+		err, eth := A-B/(R*R), A+B/(R*R)
+		srr := lam*(err+eth) + 2*mu*err
+		sth := lam*(err+eth) + 2*mu*eth
+		szz := lam * (err + eth)
+		return [5]float64{1 + err, 0, 0, 1, 1 + eth}, [5]float64{srr, 0, 0, szz, sth}, 0.5 * (srr*err + sth*eth), 0
+	})
+	rings := []Ring{{0.1, 0.5}, {0.3, 0.9}, {0, 0.7}}
+	scale := 0.5 * 2 * (lam + 2*mu) * A * A * 0.9 // W·r_out
+	for _, dir := range [][2]float64{{1, 0}, {0.6, 0.8}, {-1, 0}} {
+		opt := JOptions{Tip: [2]float64{2, 0.05}, Dir: dir, Rings: rings, Axisymmetric: true}
+		J, err := DomainJ(m, gp, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		opt.Axisymmetric = false
+		Jp, err := DomainJ(m, gp, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range J {
+			t.Logf("Lamé, direction %v, ring %v: J axisymmetric %.3g, plane-strain reading %.3g (scale %.3g)", dir, rings[i], J[i], Jp[i], scale)
+			if math.Abs(J[i]) > 1e-6*scale {
+				t.Errorf("Lamé ring %v direction %v: axisymmetric J = %g, want 0 (scale %g)", rings[i], dir, J[i], scale)
+			}
+		}
+		if dir[0] != 0 && math.Abs(Jp[1]) < 1e-3*scale {
+			t.Errorf("the plane-strain reading of the axisymmetric field is %g: the test would not see a missing hoop term", Jp[1])
+		}
+	}
+
+	const R0 = 1000.0
+	tip := [2]float64{R0, 0}
+	disk := crackedDisk(1, 16, 32, tip, [2]float64{1, 0})
+	k := KField{K: 40, El: el, Tip: tip, Dir: [2]float64{1, 0}}
+	plane := williamsGauss(k, 0)
+	gpa := gaussFrom(disk, func(x [2]float64) (F, P [5]float64, W, f float64) {
+		F, P, W, f = plane(x)
+		u := k.Displacement(x)
+		F[4] = 1 + u[0]/x[0]
+		return F, P, W + 0.5*P[4]*(F[4]-1), f
+	})
+	J, err := DomainJ(disk, gpa, JOptions{Tip: tip, Dir: [2]float64{1, 0}, Rings: []Ring{{0.1, 0.5}, {0.3, 0.9}}, Axisymmetric: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := FarFieldJ(40, el)
+	for i, j := range J {
+		t.Logf("front at R0 = %g, ring %d: J = %.6g, plane strain %.6g", R0, i, j, want)
+		if math.Abs(j/want-1) > 0.01 {
+			t.Errorf("front at R0 = %g ring %d: J = %g, want %g within 1%%", R0, i, j, want)
 		}
 	}
 }
