@@ -167,9 +167,7 @@ func (m *tmesh) insertSegment(a, b int32, mark int, k int32) error {
 			a = on
 			continue
 		}
-		if err := m.removeCrossings(a, b, cross, mark, k); err != nil {
-			return err
-		}
+		return m.removeCrossings(a, b, cross, mark, k)
 	}
 	return nil
 }

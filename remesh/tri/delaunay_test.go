@@ -212,3 +212,72 @@ func TestSmallInputAngles(t *testing.T) {
 		t.Logf("%g°: %+v, %d triangles below 20°", deg, rep, skinny)
 	}
 }
+
+// TestCDTPolygons checks the unrefined CDT of polygons whose edges are
+// mostly not Delaunay edges (spiky star polygons, a comb), so that segment
+// recovery must flip: a polygon with n vertices and k polygonal holes is
+// triangulated without new points into n + 2k − 2 triangles (Euler's formula;
+// de Berg et al. 2008, Computational Geometry, Thm. 3.1 for k = 0), with the
+// shoelace area and the input segments as edges.
+func TestCDTPolygons(t *testing.T) {
+	r := rand.New(rand.NewSource(9))
+	star := func(n int, r0, r1 float64) [][2]float64 {
+		p := make([][2]float64, n)
+		for k := range p {
+			a := 2 * math.Pi * (float64(k) + 0.3*r.Float64()) / float64(n)
+			rad := r0
+			if k%2 == 1 {
+				rad = r1 * (0.8 + 0.4*r.Float64())
+			}
+			p[k] = [2]float64{rad * math.Cos(a), rad * math.Sin(a)}
+		}
+		return p
+	}
+	comb := [][2]float64{{0, 0}, {10, 0}, {10, 1}}
+	for k := 9; k >= 0; k-- { // teeth of width 0.5 and height 5 pointing up
+		x := float64(k)
+		comb = append(comb, [2]float64{x + 0.75, 1}, [2]float64{x + 0.75, 6}, [2]float64{x + 0.25, 6}, [2]float64{x + 0.25, 1})
+	}
+	comb = append(comb, [2]float64{0, 1})
+	cases := []struct {
+		name  string
+		outer [][2]float64
+		holes [][][2]float64
+	}{
+		{"spiky star, 40 vertices", star(40, 1, 0.1), nil},
+		{"spiky star, 400 vertices", star(400, 1, 0.3), nil},
+		{"comb with 10 thin teeth", comb, nil},
+		{"star with two star holes", star(60, 3, 1.5), [][][2]float64{
+			translate(star(12, 0.3, 0.1), 0.5, 0), translate(star(16, 0.3, 0.15), -0.5, 0.2)}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			in, area := polygonInput(c.outer, c.holes...)
+			m, err := CDT(in)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := Check(m); err != nil {
+				t.Fatal(err)
+			}
+			if want := len(in.Points) + 2*len(c.holes) - 2; len(m.Triangles) != want {
+				t.Errorf("%d triangles, want n + 2k − 2 = %d", len(m.Triangles), want)
+			}
+			if len(m.Points) != len(in.Points) {
+				t.Errorf("%d points, want the %d input points only", len(m.Points), len(in.Points))
+			}
+			if got := meshArea(m); math.Abs(got-area) > 1e-12*area {
+				t.Errorf("area %.15g, shoelace %.15g", got, area)
+			}
+			checkConformity(t, in, m)
+		})
+	}
+}
+
+func translate(p [][2]float64, dx, dy float64) [][2]float64 {
+	q := make([][2]float64, len(p))
+	for k := range p {
+		q[k] = [2]float64{p[k][0] + dx, p[k][1] + dy}
+	}
+	return q
+}

@@ -118,7 +118,7 @@ func TestPredicatesExact(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			zeros := 0
-			for i := 0; i < 4000; i++ {
+			for i := 0; i < 1500; i++ {
 				p := c.gen()
 				if got, want := sign(orient(p[0], p[1], p[2])), bigOrient(p[0], p[1], p[2]); got != want {
 					t.Fatalf("orient%v = %g, exact %g", p[:3], got, want)

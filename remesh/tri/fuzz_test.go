@@ -1,0 +1,97 @@
+package tri
+
+import (
+	"math"
+	"testing"
+)
+
+// fuzzPolygon turns fuzz bytes into an input: a star-shaped (hence simple)
+// polygon, the same points in scrambled order (usually self-intersecting),
+// a star-shaped polygon snapped to a coarse grid (collinear runs, repeated
+// points), or a star-shaped polygon with a small hole.
+func fuzzPolygon(data []byte) (in *Input, simple bool, area float64, opt *Options) {
+	at := func(i int) float64 { // byte i as a number in [0, 1)
+		if len(data) == 0 {
+			return 0.5
+		}
+		return float64(data[i%len(data)]) / 256
+	}
+	// Angular gaps with weights in [1, 2] and n ≥ 4 stay below 0.8π, so the
+	// polygon is star-shaped about the origin, and its edges keep a distance
+	// ≥ 0.1·cos(0.4π) ≈ 0.031 from it.
+	n := 4 + int(at(0)*24)
+	mode := int(at(1) * 4)
+	pts := make([][2]float64, n)
+	w := make([]float64, n)
+	total := 0.0
+	for k := range w {
+		w[k] = 1 + at(2+2*k)
+		total += w[k]
+	}
+	ang := 0.0
+	for k := 0; k < n; k++ {
+		ang += w[k] / total * 2 * math.Pi
+		r := 0.1 + at(3+2*k)
+		pts[k] = [2]float64{r * math.Cos(ang), r * math.Sin(ang)}
+	}
+	in = &Input{Points: pts, Segments: loop(0, n)}
+	simple = true
+	switch mode {
+	case 1:
+		for k := 0; k < n; k++ {
+			j := int(at(5+k) * float64(n))
+			pts[k], pts[j] = pts[j], pts[k]
+		}
+		simple = false
+	case 2:
+		for k := range pts {
+			pts[k][0] = math.Round(pts[k][0]*8) / 8
+			pts[k][1] = math.Round(pts[k][1]*8) / 8
+		}
+		simple = false
+	case 3:
+		hole := circleLoop([2]float64{0, 0}, 0.005+0.02*at(7), 3+int(at(8)*6), true)
+		in.Points = append(in.Points, hole...)
+		in.Segments = append(in.Segments, loop(n, len(hole))...)
+		in.Holes = [][2]float64{{0, 0}}
+	}
+	in.SegmentMarks = make([]int, len(in.Segments))
+	for k := range in.SegmentMarks {
+		in.SegmentMarks[k] = k % 5
+	}
+	area = math.Abs(polyArea(pts))
+	if mode == 3 {
+		area -= math.Abs(polyArea(in.Points[n:]))
+	}
+	opt = &Options{MinAngle: 34 * at(9), MaxPoints: 20000}
+	if h := at(10); h > 0.3 {
+		opt.Size = func(x, y float64) float64 { return 0.02 + h*math.Hypot(x, y) }
+	}
+	return in, simple, area, opt
+}
+
+// FuzzTriangulate: every input ends in a valid mesh or an error — never a
+// panic or an endless loop (MaxPoints bounds the work).
+func FuzzTriangulate(f *testing.F) {
+	f.Add([]byte{0})
+	f.Add([]byte{200, 10, 7, 99, 3, 250, 1, 1, 80, 200, 120})
+	f.Add([]byte{100, 100, 20, 30, 40, 50, 60, 70, 80, 90, 255})
+	f.Add([]byte{255, 180, 0, 0, 0, 0, 0, 0, 0, 0})
+	f.Add([]byte{17, 240, 33, 1, 2, 3, 4, 5, 6, 7, 8, 9})
+	f.Add([]byte{250, 70, 1, 2, 250, 250, 3, 1, 1, 255, 0, 77})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		in, simple, area, opt := fuzzPolygon(data)
+		m, err := Triangulate(in, opt)
+		if err != nil {
+			return
+		}
+		if err := Check(m); err != nil {
+			t.Fatalf("invalid mesh without error: %v", err)
+		}
+		if simple {
+			if got := meshArea(m); math.Abs(got-area) > 1e-9*area {
+				t.Fatalf("area %.15g, polygon %.15g", got, area)
+			}
+		}
+	})
+}
