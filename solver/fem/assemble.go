@@ -203,6 +203,11 @@ func (p *Problem) Assemble(tangent bool) error {
 			p.Scale[f] = sum[f] / (per * float64(na))
 		}
 	}
+	// The strain-like equations (tr E − θ, p − ā) get a floor of 1e-10
+	// strain, so that unstrained states are not judged against round-off.
+	for _, f := range [2]Field{Pressure, Lambda} {
+		p.Scale[f] = math.Max(p.Scale[f], 1e-10*p.meanVol/3)
+	}
 	for _, d := range p.fextList {
 		p.Full[d] -= p.T * p.fext[d]
 	}
@@ -273,7 +278,6 @@ func (p *Problem) scatter(e int, w *worker, tangent bool) {
 	nd := p.nd
 	for a := 0; a < nd; a++ {
 		p.Full[w.gd[a]] += w.re[a]
-		w.scale[p.locFld[a]] += math.Abs(w.re[a])
 	}
 	if !tangent {
 		return

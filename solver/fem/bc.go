@@ -47,11 +47,14 @@ type Symmetry struct {
 }
 
 // Traction is a dead load on a label: the reference traction Value·t plus a
-// pressure Pressure·t acting against the outward reference normal.
+// pressure Pressure·t acting against the outward reference normal, plus,
+// when Func is not nil, the traction Func(X, n)·t at reference position X
+// with outward unit normal n (for example σ·n of a known stress field).
 type Traction struct {
 	Label    string
 	Value    [2]float64
 	Pressure float64
+	Func     func(X, n [2]float64) [2]float64
 }
 
 // PointLoad is a force Value·t at a named node (in axisymmetry a ring load:
@@ -154,8 +157,11 @@ func (p *Problem) setBCs(b BCs) error {
 		if i, ok := byDof[q.dof]; ok {
 			// Two conditions on one unknown: allowed only if both say zero
 			// (e.g. a symmetry line meeting a fixed edge at a corner).
+			// Allowed when they agree (a corner shared by two labels with
+			// the same field, or a symmetry line meeting a fixed edge):
+			// checked at t = 0.5 and t = 1.
 			o := p.presc[i]
-			if o.fn == nil && o.pinFn == nil && q.fn == nil && q.pinFn == nil && o.value == 0 && q.value == 0 {
+			if o.at(0.5) == q.at(0.5) && o.at(1) == q.at(1) {
 				return nil
 			}
 			return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
@@ -275,7 +281,7 @@ func (p *Problem) setBCs(b BCs) error {
 				return fmt.Errorf("%s: value %g is not finite", what, v)
 			}
 		}
-		p.addTraction(l, tr.Value, tr.Pressure)
+		p.addTraction(l, tr.Value, tr.Pressure, tr.Func)
 	}
 	for i, pl := range b.PointLoads {
 		what := fmt.Sprintf("point load %d", i)
@@ -302,7 +308,7 @@ func (p *Problem) setBCs(b BCs) error {
 // addTraction integrates the dead load of one label into p.fext with a
 // 3-point Gauss–Legendre rule along each quadratic edge (exact for the
 // straight-edge case; the axisymmetric weight 2πr is included).
-func (p *Problem) addTraction(l int, value [2]float64, pressure float64) {
+func (p *Problem) addTraction(l int, value [2]float64, pressure float64, fn func(X, n [2]float64) [2]float64) {
 	m := p.Mesh
 	gx := [3]float64{-math.Sqrt(0.6), 0, math.Sqrt(0.6)}
 	gw := [3]float64{5.0 / 9, 8.0 / 9, 5.0 / 9}
@@ -328,10 +334,16 @@ func (p *Problem) addTraction(l int, value [2]float64, pressure float64) {
 			if p.Opt.Kinematics == Axisymmetric {
 				w *= 2 * math.Pi * x[0]
 			}
+			jl := math.Hypot(dx[0], dx[1])
+			tv := value
+			if fn != nil {
+				fv := fn(x, [2]float64{nds[0] / jl, nds[1] / jl})
+				tv[0] += fv[0]
+				tv[1] += fv[1]
+			}
 			for k, a := range nodes {
 				for c := 0; c < 2; c++ {
-					jl := math.Hypot(dx[0], dx[1])
-					f := value[c]*jl - pressure*nds[c]
+					f := tv[c]*jl - pressure*nds[c]
 					p.fext[p.Dofs.Of(a, Field(c))] += w * n[k] * f
 				}
 			}

@@ -41,6 +41,7 @@ type worker struct {
 	db   [nEps][maxND]float64 // (∂σ/∂ε)·B
 	d    [nEps][nEps]float64
 	sig  [nEps]float64
+	mag  [nEps]float64
 	bc   [4][12]float64 // ∂C/∂u
 	kcb  [4][12]float64
 	in   material.Input
@@ -345,14 +346,31 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 		p.pendF[i] = [5]float64{F11, F12, F21, F22, F33}
 		p.pendP[i] = [5]float64{F11*S[0] + F12*S[3], F11*S[3] + F12*S[1], F21*S[0] + F22*S[3], F21*S[3] + F22*S[1], F33 * S[2]}
 
+		// magnitudes of the terms that balance in each equation, for the
+		// per-field force scales (the sum of absolute values before
+		// cancellation)
+		for i := 0; i < 4; i++ {
+			w.mag[i] = math.Abs(w.sig[i])
+		}
+		if mixed {
+			w.mag[rowTh] = math.Abs(Tt[0]+Tt[1]+Tt[2])/3 + math.Abs(pr)
+			w.mag[rowP] = math.Abs(trE) + math.Abs(th)
+		}
+		if reg {
+			w.mag[rowA] = math.Abs(lam) + p.r*(math.Abs(rs.P)+math.Abs(ab))
+			w.mag[rowA+1], w.mag[rowA+2] = math.Abs(w.sig[rowA+1]), math.Abs(w.sig[rowA+2])
+			w.mag[rowLam] = math.Abs(rs.P) + math.Abs(ab)
+		}
 		// residual
 		for a := 0; a < nd; a++ {
 			lo, hi := p.rowRange(a)
-			var v float64
+			var v, s float64
 			for r := lo; r < hi; r++ {
 				v += w.sig[r] * w.b[r][a]
+				s += w.mag[r] * math.Abs(w.b[r][a])
 			}
 			w.re[a] += v * dV
+			w.scale[p.locFld[a]] += s * dV
 		}
 		if !tangent {
 			continue

@@ -91,3 +91,48 @@ func Cauchy(F, P [5]float64) [4]float64 {
 		(P[0]*F[2] + P[1]*F[3]) / J,
 	}
 }
+
+// DeformationGradient returns F (components 11, 12, 21, 22, 33) of the
+// unknowns u at area coordinates l of element e, e.g. at a vertex for
+// nodal stresses. It returns an error for an element index out of range.
+func (p *Problem) DeformationGradient(e int, l [3]float64, u []float64) ([5]float64, error) {
+	if e < 0 || e >= len(p.Mesh.Tri) {
+		return [5]float64{}, fmt.Errorf("fem: element %d out of range (%d elements)", e, len(p.Mesh.Tri))
+	}
+	if len(u) != p.Dofs.N {
+		return [5]float64{}, fmt.Errorf("fem: %d unknowns given, the problem has %d", len(u), p.Dofs.N)
+	}
+	tri := &p.Mesh.Tri[e]
+	N := ShapeP2(l)
+	dxi, deta := ShapeP2Deriv(l)
+	var xx, xe1, ye1, xe2, ye2 float64
+	for k := 0; k < 6; k++ {
+		x := p.Mesh.X[tri[k]]
+		xx += N[k] * x[0]
+		xe1 += dxi[k] * x[0]
+		ye1 += dxi[k] * x[1]
+		xe2 += deta[k] * x[0]
+		ye2 += deta[k] * x[1]
+	}
+	detJ := xe1*ye2 - xe2*ye1
+	F := [5]float64{1, 0, 0, 1, 1}
+	var ur float64
+	for k := 0; k < 6; k++ {
+		s := p.Dofs.Start[tri[k]]
+		d0 := (ye2*dxi[k] - ye1*deta[k]) / detJ
+		d1 := (-xe2*dxi[k] + xe1*deta[k]) / detJ
+		F[0] += u[s] * d0
+		F[1] += u[s] * d1
+		F[2] += u[s+1] * d0
+		F[3] += u[s+1] * d1
+		ur += u[s] * N[k]
+	}
+	if p.Opt.Kinematics == Axisymmetric {
+		if xx > 0 {
+			F[4] = 1 + ur/xx
+		} else {
+			F[4] = F[0] // on the axis: u_r/R → ∂u_r/∂R
+		}
+	}
+	return F, nil
+}

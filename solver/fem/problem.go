@@ -79,20 +79,23 @@ type Problem struct {
 	K         *sparse.CSR
 	Res, Full []float64
 
-	// Scale is, per field, the mean absolute element contribution to the
-	// residual at the last assembly (a force scale for convergence tests).
+	// Scale is, per field, the mean over elements and element unknowns of
+	// the integral of the absolute terms of the residual (before they
+	// cancel) at the last assembly: the size of the forces that balance, a
+	// scale for convergence tests.
 	Scale [NumFields]float64
 
-	c, r   float64 // regularisation: c = σ₀ℓ², penalty r
-	size   float64 // bounding-box diagonal of the mesh
-	mixed  bool
-	reg    bool
-	rule   Rule
-	nd     int // unknowns per element
-	locN   [maxND]int8
-	locOff [maxND]int8
-	locFld [maxND]Field
-	rows   []int // active generalised-strain rows
+	c, r    float64 // regularisation: c = σ₀ℓ², penalty r
+	size    float64 // bounding-box diagonal of the mesh
+	meanVol float64 // mean element volume (2πr included in axisymmetry)
+	mixed   bool
+	reg     bool
+	rule    Rule
+	nd      int // unknowns per element
+	locN    [maxND]int8
+	locOff  [maxND]int8
+	locFld  [maxND]Field
+	rows    []int // active generalised-strain rows
 
 	// node adjacency in numbering order, with each neighbour's column
 	// offset within the rows of the node.
@@ -256,6 +259,7 @@ func NewProblem(m *Mesh, mat material.Model, opt Options, bcs BCs) (*Problem, er
 		p.label[name] = m.labelNodes(l)
 	}
 	p.updateConstraints()
+	p.meanVol = p.Volume() / float64(ne)
 	return p, nil
 }
 
@@ -473,4 +477,14 @@ func (p *Problem) ExternalWork(u []float64, t float64) float64 {
 		w += t * p.fext[d] * u[d]
 	}
 	return w
+}
+
+// LoadScale returns the largest nodal dead load at the current time,
+// |t|·max|f_ext| (zero without tractions and point loads).
+func (p *Problem) LoadScale() float64 {
+	var m float64
+	for _, d := range p.fextList {
+		m = math.Max(m, math.Abs(p.fext[d]))
+	}
+	return math.Abs(p.T) * m
 }

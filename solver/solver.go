@@ -1,0 +1,461 @@
+// Package solver drives a finite-element problem (package fem) along a
+// pseudo-time t with Newton's method: load stepping with adaptive
+// increments, cut-back and retry from the last converged state on any
+// failure, a backtracking line search, per-field convergence tests, and a
+// clean stop with a stated reason when the increments become too small.
+//
+// A typical use:
+//
+//	p, _ := fem.NewProblem(mesh, model, fem.Options{}, bcs)
+//	s, _ := solver.New(p, solver.DefaultOptions())
+//	res, err := s.Run(func(st solver.Step) error {
+//		f, _ := p.Reaction("top")
+//		fmt.Println(st.T, f[1], st.Iterations)
+//		return nil // or solver.ErrStop to end the run cleanly
+//	})
+//
+// Convergence (DESIGN.md §3): for every field present (ux, uy, θ, P, ā, λ)
+// the largest residual of a free unknown must be at most RTol times that
+// field's force scale (fem.Problem.Scale: the mean absolute element
+// contribution, i.e. the size of the internal forces that balance), and
+// the largest Newton correction of each field, multiplied by the residual
+// reduction ρ ≤ 1 that correction achieved (scaled residual norm after /
+// before; ρ·correction estimates the next correction), at most UTol
+// times the largest change of that field over the increment. A residual
+// below RTol·TightFactor of its scale is accepted without the correction
+// test. A linear problem therefore converges after one solve.
+package solver
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"time"
+
+	"tearline/solver/fem"
+	"tearline/solver/sparse"
+)
+
+// LinearSolver factorises the tangent and solves with it. *sparse.LU
+// satisfies it; Analyze is called once per pattern.
+type LinearSolver interface {
+	Analyze(a *sparse.CSR) error
+	Factorize(a *sparse.CSR) error
+	Solve(dst, b []float64) error
+}
+
+// Options controls the step loop. Start from DefaultOptions.
+type Options struct {
+	TEnd     float64 // final pseudo-time
+	Dt       float64 // first increment
+	DtMin    float64 // smallest increment before a clean stop
+	DtMax    float64 // largest increment
+	MaxSteps int     // most converged steps in one Run
+	MaxIter  int     // Newton iterations per attempt
+	RTol     float64 // residual tolerance relative to the field's force scale
+	UTol     float64 // correction tolerance relative to the increment's change
+	// TightFactor: a residual below RTol·TightFactor·scale is converged
+	// whatever the correction.
+	TightFactor float64
+	Grow        float64 // increment growth factor after an easy step
+	EasyIter    int     // a step is easy if it converged in at most this many iterations
+	Cut         float64 // increment reduction factor after a failure
+	// LineSearch enables backtracking on the scaled residual norm
+	// (Armijo condition, quadratic interpolation, α ≥ 0.1·previous α).
+	LineSearch    bool
+	LineSearchMax int // most backtracking trials per iteration
+	// Diverge: an attempt fails when the scaled residual norm exceeds
+	// Diverge times its value at the start of the increment.
+	Diverge float64
+	// Linear is the linear solver; nil means a sparse.LU with its default
+	// options.
+	Linear LinearSolver
+}
+
+// DefaultOptions returns the defaults: t from 0 to 1 in a first increment
+// of 0.1 (0.1 ≤ Δt ≤ 1 adaptively, down to 1e-6), 15 iterations, RTol 1e-6,
+// UTol 1e-4, TightFactor 1e-3, growth 1.5 after ≤ 4 iterations, halving on
+// failure, line search on (4 trials), divergence at 1e6×.
+func DefaultOptions() Options {
+	return Options{
+		TEnd: 1, Dt: 0.1, DtMin: 1e-6, DtMax: 1, MaxSteps: 100000, MaxIter: 15,
+		RTol: 1e-6, UTol: 1e-4, TightFactor: 1e-3, Grow: 1.5, EasyIter: 4, Cut: 0.5,
+		LineSearch: true, LineSearchMax: 4, Diverge: 1e6,
+	}
+}
+
+// Validate reports the first option outside its allowed range.
+func (o Options) Validate() error {
+	pos := func(name string, v float64) error {
+		if !(v > 0) || math.IsInf(v, 0) {
+			return fmt.Errorf("solver options: %s = %g must be finite and > 0", name, v)
+		}
+		return nil
+	}
+	for _, c := range []struct {
+		n string
+		v float64
+	}{{"TEnd", o.TEnd}, {"Dt", o.Dt}, {"DtMin", o.DtMin}, {"DtMax", o.DtMax}, {"RTol", o.RTol}, {"UTol", o.UTol}, {"TightFactor", o.TightFactor}, {"Diverge", o.Diverge}} {
+		if err := pos(c.n, c.v); err != nil {
+			return err
+		}
+	}
+	switch {
+	case o.DtMin > o.Dt || o.Dt > o.DtMax:
+		return fmt.Errorf("solver options: need DtMin ≤ Dt ≤ DtMax, have %g, %g, %g", o.DtMin, o.Dt, o.DtMax)
+	case o.MaxSteps < 1:
+		return fmt.Errorf("solver options: MaxSteps = %d must be ≥ 1", o.MaxSteps)
+	case o.MaxIter < 1 || o.MaxIter > 1000:
+		return fmt.Errorf("solver options: MaxIter = %d must be in [1, 1000]", o.MaxIter)
+	case !(o.Grow >= 1):
+		return fmt.Errorf("solver options: Grow = %g must be ≥ 1", o.Grow)
+	case o.EasyIter < 0:
+		return fmt.Errorf("solver options: EasyIter = %d must be ≥ 0", o.EasyIter)
+	case !(o.Cut > 0 && o.Cut < 1):
+		return fmt.Errorf("solver options: Cut = %g must be in (0, 1)", o.Cut)
+	case o.LineSearch && (o.LineSearchMax < 1 || o.LineSearchMax > 50):
+		return fmt.Errorf("solver options: LineSearchMax = %d must be in [1, 50]", o.LineSearchMax)
+	case !(o.TightFactor <= 1):
+		return fmt.Errorf("solver options: TightFactor = %g must be ≤ 1", o.TightFactor)
+	}
+	return nil
+}
+
+// ErrStop, returned by a step callback, ends Run cleanly after that step.
+var ErrStop = errors.New("solver: stop requested")
+
+// Step describes a converged increment.
+type Step struct {
+	Index      int     // 1, 2, … within the run
+	T, Dt      float64 // time reached and the increment taken
+	Iterations int     // Newton iterations (linear solves) of the converged attempt
+	Cutbacks   int     // failed attempts before it
+	// Residuals is the scaled residual norm at each iteration of the
+	// converged attempt (before each solve, and the final one); it is
+	// reused by the next step: copy it to keep it.
+	Residuals []float64
+	Wall      time.Duration // wall time of the step, attempts included
+}
+
+// Status is the outcome of a run.
+type Status int
+
+const (
+	Completed Status = iota // reached TEnd
+	Stopped                 // stopped early; Result.Reason says why
+)
+
+func (s Status) String() string {
+	if s == Completed {
+		return "completed"
+	}
+	return "stopped"
+}
+
+// Result summarises a run.
+type Result struct {
+	Status     Status
+	Reason     string // why the run stopped (empty when completed)
+	Steps      int    // converged steps
+	T          float64
+	Iterations int // total Newton iterations of converged steps
+	Cutbacks   int // total failed attempts
+}
+
+// Solver runs the Newton loop on one problem (one mesh: the symbolic
+// analysis of the tangent is done once).
+type Solver struct {
+	P   *fem.Problem
+	Opt Options
+	lin LinearSolver
+
+	du, u0   []float64
+	rBase    []float64
+	fscale   [fem.NumFields]float64
+	rho      float64 // scaled residual reduction of the last iteration, ≤ 1
+	history  []float64
+	analysed bool
+	dt       float64
+}
+
+// New returns a solver for p.
+func New(p *fem.Problem, opt Options) (*Solver, error) {
+	if p == nil {
+		return nil, errors.New("solver: nil problem")
+	}
+	if err := opt.Validate(); err != nil {
+		return nil, err
+	}
+	s := &Solver{P: p, Opt: opt, lin: opt.Linear, dt: opt.Dt}
+	if s.lin == nil {
+		s.lin = &sparse.LU{}
+	}
+	n := p.Dofs.N
+	s.du = make([]float64, n)
+	s.u0 = make([]float64, n)
+	s.rBase = make([]float64, n)
+	s.history = make([]float64, 0, opt.MaxIter+1)
+	return s, nil
+}
+
+// attemptError is a failed Newton attempt (the solver cuts back).
+type attemptError struct {
+	reason string
+	err    error
+}
+
+func (e *attemptError) Error() string {
+	if e.err != nil {
+		return e.reason + ": " + e.err.Error()
+	}
+	return e.reason
+}
+func (e *attemptError) Unwrap() error { return e.err }
+
+// Increment attempts one increment from the committed state to time t. On
+// success the state is committed and the step returned; on failure the
+// problem is rolled back to the committed state and the error says why.
+// t equal to the committed time re-establishes equilibrium at fixed load
+// (after a state transfer).
+func (s *Solver) Increment(t float64) (Step, error) {
+	p := s.P
+	st := Step{T: t, Dt: t - p.TCommitted}
+	s.history = s.history[:0]
+	it, err := s.newton(t)
+	st.Iterations = it
+	st.Residuals = s.history
+	if err != nil {
+		p.Rollback()
+		return st, err
+	}
+	p.Commit()
+	return st, nil
+}
+
+// newton runs the iterations of one attempt; it returns the number of
+// linear solves.
+func (s *Solver) newton(t float64) (int, error) {
+	p, o := s.P, s.Opt
+	p.Rollback()
+	p.SetTime(t)
+	if err := p.Assemble(true); err != nil {
+		return 0, &attemptError{"assembly at the start of the increment failed", err}
+	}
+	if !s.analysed {
+		if err := s.lin.Analyze(p.K); err != nil {
+			return 0, &attemptError{"symbolic analysis of the tangent failed", err}
+		}
+		s.analysed = true
+	}
+	s.setScales()
+	m0 := s.merit(p.Res)
+	s.history = append(s.history, m0)
+	first := true
+	for it := 0; ; it++ {
+		conv := s.converged(!first)
+		if conv {
+			return it, nil
+		}
+		if it == o.MaxIter {
+			return it, &attemptError{reason: fmt.Sprintf("no convergence in %d iterations (scaled residual %.3g)", it, s.history[len(s.history)-1])}
+		}
+		if err := s.lin.Factorize(p.K); err != nil {
+			return it, &attemptError{"factorisation of the tangent failed", err}
+		}
+		for i, r := range p.Res {
+			s.u0[i] = -r
+		}
+		if err := s.lin.Solve(s.du, s.u0); err != nil {
+			return it, &attemptError{"linear solve failed", err}
+		}
+		for _, v := range s.du {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return it, &attemptError{reason: "Newton correction is not finite"}
+			}
+		}
+		copy(s.u0, p.U)
+		copy(s.rBase, p.Res)
+		alpha := 1.0
+		var m, mBase float64
+		for ls := 0; ; ls++ {
+			for i := range p.U {
+				p.U[i] = s.u0[i] + alpha*s.du[i]
+			}
+			err := p.Assemble(true)
+			if err == nil {
+				// compare base and trial with the trial's force scales
+				s.setScales()
+				mBase, m = s.merit(s.rBase), s.merit(p.Res)
+				if !o.LineSearch || m <= (1-1e-4*alpha)*mBase || ls >= o.LineSearchMax {
+					break
+				}
+			} else if !o.LineSearch || ls >= o.LineSearchMax {
+				return it + 1, &attemptError{"assembly failed", err}
+			}
+			// quadratic interpolation of ½m² along the step, safeguarded
+			next := 0.5 * alpha
+			if err == nil && m > 0 && !math.IsInf(m, 0) {
+				// φ(α) = ½m², φ'(0) = −m0² (Newton direction)
+				phi0, phi1 := 0.5*mBase*mBase, 0.5*m*m
+				d := phi1 - phi0 + 2*phi0*alpha
+				if d > 0 {
+					next = phi0 * alpha * alpha / d
+				}
+			}
+			alpha = math.Min(math.Max(next, 0.1*alpha), 0.5*alpha)
+		}
+		s.history = append(s.history, m)
+		s.rho = 1
+		if mBase > 0 && m < mBase {
+			s.rho = m / mBase
+		}
+		if math.IsNaN(m) || m > o.Diverge*math.Max(m0, 1e-300) {
+			return it + 1, &attemptError{reason: fmt.Sprintf("divergence: scaled residual %.3g from %.3g", m, m0)}
+		}
+		if alpha < 1 {
+			for i := range s.du {
+				s.du[i] *= alpha
+			}
+		}
+		first = false
+	}
+}
+
+// setScales freezes, for the attempt, the force scale of each field.
+func (s *Solver) setScales() {
+	p := s.P
+	for f := range s.fscale {
+		s.fscale[f] = p.Scale[f]
+	}
+	u := math.Max(math.Max(p.Scale[fem.Ux], p.Scale[fem.Uy]), p.LoadScale())
+	s.fscale[fem.Ux], s.fscale[fem.Uy] = u, u
+}
+
+// merit is the scaled residual norm √(Σ_fields (‖R_f‖₂ / scale_f)²) over
+// free unknowns.
+func (s *Solver) merit(r []float64) float64 {
+	p := s.P
+	var sum [fem.NumFields]float64
+	for d, v := range r {
+		sum[p.Dofs.FieldOf[d]] += v * v
+	}
+	var m float64
+	for f, v := range sum {
+		if v == 0 {
+			continue
+		}
+		sc := s.fscale[f]
+		if sc == 0 {
+			return math.Inf(1)
+		}
+		m += v / (sc * sc)
+	}
+	return math.Sqrt(m)
+}
+
+// converged applies the per-field tests to p.Res and, if withCorr, to the
+// last correction s.du against the change over the increment.
+func (s *Solver) converged(withCorr bool) bool {
+	p, o := s.P, s.Opt
+	var rmax, cmax, dmax [fem.NumFields]float64
+	for d, v := range p.Res {
+		f := p.Dofs.FieldOf[d]
+		rmax[f] = math.Max(rmax[f], math.Abs(v))
+		if withCorr && !p.Constrained(d) {
+			cmax[f] = math.Max(cmax[f], math.Abs(s.du[d]))
+			dmax[f] = math.Max(dmax[f], math.Abs(p.U[d]-p.Committed[d]))
+		}
+	}
+	// the two displacement components share one test
+	for _, arr := range []*[fem.NumFields]float64{&rmax, &cmax, &dmax} {
+		m := math.Max(arr[fem.Ux], arr[fem.Uy])
+		arr[fem.Ux], arr[fem.Uy] = m, m
+	}
+	for f := fem.Field(0); f < fem.NumFields; f++ {
+		if !p.Dofs.Has(f) {
+			continue
+		}
+		sc := s.fscale[f]
+		if rmax[f] <= o.RTol*o.TightFactor*sc {
+			continue
+		}
+		if rmax[f] > o.RTol*sc || !withCorr {
+			return false
+		}
+		// the correction just made, or the next one estimated from the
+		// residual reduction it achieved, must be small against the
+		// field's change over the increment
+		if cmax[f]*s.rho > o.UTol*dmax[f] {
+			return false
+		}
+	}
+	return true
+}
+
+// Run advances from the committed time to Opt.TEnd with adaptive
+// increments, calling each (if not nil) after every converged step. It
+// returns a Result with Status Stopped and a Reason when the increment
+// falls below DtMin, MaxSteps is reached, or each returns ErrStop; other
+// errors from each end the run and are returned.
+func (s *Solver) Run(each func(Step) error) (Result, error) {
+	p, o := s.P, s.Opt
+	res := Result{T: p.TCommitted}
+	cuts := 0
+	lastCut := false
+	for {
+		if p.TCommitted >= o.TEnd*(1-1e-12) {
+			res.Status = Completed
+			return res, nil
+		}
+		if res.Steps >= o.MaxSteps {
+			res.Status, res.Reason = Stopped, fmt.Sprintf("step limit %d reached at t = %g", o.MaxSteps, p.TCommitted)
+			return res, nil
+		}
+		start := time.Now()
+		dt := math.Min(s.dt, o.TEnd-p.TCommitted)
+		var st Step
+		var err error
+		for {
+			st, err = s.Increment(p.TCommitted + dt)
+			if err == nil {
+				break
+			}
+			res.Cutbacks++
+			cuts++
+			lastCut = true
+			dt *= o.Cut
+			s.dt = dt
+			if dt < o.DtMin {
+				res.Status = Stopped
+				res.Reason = fmt.Sprintf("increment %.3g below the minimum %.3g at t = %g after %d cut-backs; last failure: %v", dt, o.DtMin, p.TCommitted, cuts, err)
+				res.T = p.TCommitted
+				return res, nil
+			}
+		}
+		res.Steps++
+		res.Iterations += st.Iterations
+		res.T = p.TCommitted
+		st.Index = res.Steps
+		st.Cutbacks = cuts
+		st.Wall = time.Since(start)
+		cuts = 0
+		if st.Iterations <= o.EasyIter && !lastCut {
+			s.dt = math.Min(dt*o.Grow, o.DtMax)
+		} else {
+			s.dt = dt
+		}
+		lastCut = false
+		if each != nil {
+			if err := each(st); err != nil {
+				if errors.Is(err, ErrStop) {
+					res.Status, res.Reason = Stopped, err.Error()
+					return res, nil
+				}
+				return res, err
+			}
+		}
+	}
+}
+
+// NextDt returns the increment the next step will try.
+func (s *Solver) NextDt() float64 { return s.dt }
