@@ -366,6 +366,17 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			used[n] = true
 		}
 	}
+	// Lengths below tol (relative to the mesh size) are round-off: a node of
+	// a blunt tip's surface a hair ahead of the apex is not growth.
+	lo := [2]float64{math.Inf(1), math.Inf(1)}
+	hi := [2]float64{math.Inf(-1), math.Inf(-1)}
+	for n, x := range m.X {
+		if used[n] {
+			lo = [2]float64{math.Min(lo[0], x[0]), math.Min(lo[1], x[1])}
+			hi = [2]float64{math.Max(hi[0], x[0]), math.Max(hi[1], x[1])}
+		}
+	}
+	tol := 1e-9 * dist2(lo, hi)
 	// Cracked nodes: f ≥ f_tip, or on a crack face ahead of some initial tip.
 	cracked := make([]bool, nn)
 	for n := range f {
@@ -386,7 +397,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 				}
 				for _, s := range opt.Tips {
 					d, _ := frame(s.Dir)
-					if (m.X[n][0]-s.X[0])*d[0]+(m.X[n][1]-s.X[1])*d[1] > 0 {
+					if (m.X[n][0]-s.X[0])*d[0]+(m.X[n][1]-s.X[1])*d[1] > tol {
 						cracked[n] = true
 					}
 				}
@@ -526,13 +537,15 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			}
 			path := pullTaut(r.path, vis)
 			if l := polyLength(path); l > best.DA || i == 0 {
-				best = Tip{Seed: s, X: r.c.x, DA: l, Path: path, Grown: l > 0}
+				best = Tip{Seed: s, X: r.c.x, DA: l, Path: path, Grown: true}
 			}
 		}
 		d0, _ := frame(opt.Tips[s].Dir)
 		sx := opt.Tips[s].X
 		best.DAProj = (best.X[0]-sx[0])*d0[0] + (best.X[1]-sx[1])*d0[1]
-		tips[s] = best
+		if best.DA > tol {
+			tips[s] = best
+		}
 	}
 	return tips
 }

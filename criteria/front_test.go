@@ -245,3 +245,29 @@ func TestLocateFrontBadInput(t *testing.T) {
 		}
 	}
 }
+
+// TestLocateFrontBluntApex checks that the nodes of a crack-face label a
+// round-off distance ahead of the initial tip (the apex of a blunt tip)
+// are not taken for growth: Δa = 0 and the tip stays put (common practice:
+// no growth without damage).
+func TestLocateFrontBluntApex(t *testing.T) {
+	m := faceStrip(2, 1, 1, 30, 3, false)
+	apex := -1
+	for n, x := range m.X {
+		if x == [2]float64{0, 0} {
+			apex = n
+		}
+	}
+	if apex < 0 {
+		t.Fatal("test set-up: no node at the apex")
+	}
+	m.X[apex][0] = 1e-13
+	gp := gaussFrom(m, porosity(nil))
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.02, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tp := fr.Tips[0]; tp.Grown || tp.DA != 0 || tp.X != [2]float64{0, 0} {
+		t.Errorf("undamaged blunt tip: %+v; want no growth", tp)
+	}
+}
