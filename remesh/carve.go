@@ -13,7 +13,7 @@ import (
 
 // CrackLabel is the boundary label of crack faces created by removing
 // broken material (DEVELOPERS.md, shared contracts).
-const CrackLabel = "crack"
+const CrackLabel = geom.LabelCrack
 
 // CarveOptions sets how Carve builds the new geometry.
 type CarveOptions struct {
@@ -141,6 +141,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	}
 	c := &carver{m: m, opt: opt, orig: orig, size: size}
 	c.removed = append([]bool(nil), broken...)
+	c.neighbours()
 	c.dropPinches()
 	c.keepLargestPart()
 	out := &Carved{Removed: c.removed}
@@ -190,6 +191,7 @@ type carver struct {
 	orig    *geom.Domain
 	size    func(x, y float64) float64
 	removed []bool
+	nbr     [][3]int // triangle across each edge, −1 none
 	// boundary edge data, by directed corner pair
 	label map[[2]int]string // old boundary label of an undirected edge (min, max)
 	mid   map[[2]int]int
@@ -222,115 +224,138 @@ func ukey(a, b int) [2]int {
 	return [2]int{a, b}
 }
 
-// nodeTris lists, per corner node, the kept triangles around it.
-func (c *carver) nodeTris() [][]int {
-	nt := make([][]int, c.m.NumCorners)
-	for e, t := range c.m.Tri {
-		if c.removed[e] {
-			continue
-		}
+// neighbours fills nbr: the triangle across edge k (t[k]–t[k+1]) of every
+// triangle, −1 on the mesh boundary.
+func (c *carver) neighbours() {
+	m := c.m
+	c.nbr = make([][3]int, len(m.Tri))
+	open := make(map[[2]int]int, 2*len(m.Tri))
+	for e, t := range m.Tri {
 		for k := 0; k < 3; k++ {
-			nt[t[k]] = append(nt[t[k]], e)
+			c.nbr[e][k] = -1
+			key := ukey(t[k], t[(k+1)%3])
+			if o, ok := open[key]; ok {
+				c.nbr[e][k] = o / 3
+				c.nbr[o/3][o%3] = e
+				delete(open, key)
+			} else {
+				open[key] = 3*e + k
+			}
 		}
 	}
-	return nt
 }
 
 // dropPinches removes every fan but the largest around nodes where kept
-// triangles touch only at the node.
+// triangles touch only at the node. Only nodes next to removed triangles
+// or on the old boundary can be pinched.
 func (c *carver) dropPinches() {
-	for pass := 0; pass < 100; pass++ {
-		changed := false
-		nt := c.nodeTris()
-		for n, tris := range nt {
-			if len(tris) < 2 {
-				continue
-			}
-			fans := c.fans(n, tris)
-			if len(fans) < 2 {
-				continue
-			}
-			best, ba := -1, -1.0
-			for i, f := range fans {
-				a := 0.0
-				for _, e := range f {
-					a += triArea(c.m, e)
-				}
-				if a > ba {
-					best, ba = i, a
-				}
-			}
-			for i, f := range fans {
-				if i == best {
-					continue
-				}
-				for _, e := range f {
-					if !c.removed[e] {
-						c.removed[e] = true
-						changed = true
-					}
-				}
-			}
-			if changed {
-				break // the node lists are stale
+	m := c.m
+	around := make([][]int, m.NumCorners) // all triangles around a corner node
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			around[t[k]] = append(around[t[k]], e)
+		}
+	}
+	var work []int
+	queued := make([]bool, m.NumCorners)
+	push := func(n int) {
+		if !queued[n] {
+			queued[n] = true
+			work = append(work, n)
+		}
+	}
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			if c.removed[e] || c.nbr[e][k] < 0 {
+				push(t[k])
+				push(t[(k+1)%3])
 			}
 		}
-		if !changed {
-			return
+	}
+	var kept []int
+	for len(work) > 0 {
+		n := work[len(work)-1]
+		work = work[:len(work)-1]
+		queued[n] = false
+		kept = kept[:0]
+		for _, e := range around[n] {
+			if !c.removed[e] {
+				kept = append(kept, e)
+			}
+		}
+		if len(kept) < 2 {
+			continue
+		}
+		fans := c.fans(n, kept)
+		if len(fans) < 2 {
+			continue
+		}
+		best, ba := -1, -1.0
+		for i, f := range fans {
+			a := 0.0
+			for _, e := range f {
+				a += triArea(m, e)
+			}
+			if a > ba {
+				best, ba = i, a
+			}
+		}
+		for i, f := range fans {
+			if i == best {
+				continue
+			}
+			for _, e := range f {
+				c.removed[e] = true
+				for k := 0; k < 3; k++ { // its nodes may now be pinched
+					push(m.Tri[e][k])
+				}
+			}
 		}
 	}
 }
 
-// fans groups the triangles around node n into fans connected through
+// fans groups the kept triangles around node n into fans connected through
 // edges incident to n.
 func (c *carver) fans(n int, tris []int) [][]int {
-	// union-find over tris by shared edge (n, o)
-	par := make([]int, len(tris))
-	for i := range par {
-		par[i] = i
-	}
-	var find func(i int) int
-	find = func(i int) int {
-		for par[i] != i {
-			par[i] = par[par[i]]
-			i = par[i]
-		}
-		return i
-	}
-	others := func(e int) [2]int {
-		t := c.m.Tri[e]
-		var o [2]int
-		j := 0
-		for k := 0; k < 3; k++ {
-			if t[k] != n {
-				o[j] = t[k]
-				j++
+	in := func(e int) int {
+		for i, o := range tris {
+			if o == e {
+				return i
 			}
 		}
-		return o
+		return -1
 	}
-	seen := map[int]int{}
-	for i, e := range tris {
-		for _, o := range others(e) {
-			if j, ok := seen[o]; ok {
-				par[find(i)] = find(j)
-			} else {
-				seen[o] = i
+	fan := make([]int, len(tris))
+	for i := range fan {
+		fan[i] = -1
+	}
+	var out [][]int
+	for s := range tris {
+		if fan[s] >= 0 {
+			continue
+		}
+		id := len(out)
+		out = append(out, nil)
+		stack := []int{s}
+		fan[s] = id
+		for len(stack) > 0 {
+			i := stack[len(stack)-1]
+			stack = stack[:len(stack)-1]
+			e := tris[i]
+			out[id] = append(out[id], e)
+			t := c.m.Tri[e]
+			for k := 0; k < 3; k++ {
+				if t[k] != n && t[(k+1)%3] != n {
+					continue // the edge opposite n
+				}
+				if o := c.nbr[e][k]; o >= 0 {
+					if j := in(o); j >= 0 && fan[j] < 0 {
+						fan[j] = id
+						stack = append(stack, j)
+					}
+				}
 			}
 		}
-	}
-	groups := map[int][]int{}
-	var order []int
-	for i, e := range tris {
-		r := find(i)
-		if _, ok := groups[r]; !ok {
-			order = append(order, r)
-		}
-		groups[r] = append(groups[r], e)
-	}
-	out := make([][]int, 0, len(order))
-	for _, r := range order {
-		out = append(out, groups[r])
 	}
 	return out
 }
@@ -338,40 +363,28 @@ func (c *carver) fans(n int, tris []int) [][]int {
 // keepLargestPart removes every edge-connected part of the kept triangles
 // but the one of largest area.
 func (c *carver) keepLargestPart() {
-	adj := map[[2]int][]int{}
-	for e, t := range c.m.Tri {
-		if c.removed[e] {
-			continue
-		}
-		for k := 0; k < 3; k++ {
-			key := ukey(t[k], t[(k+1)%3])
-			adj[key] = append(adj[key], e)
-		}
-	}
 	comp := make([]int, len(c.m.Tri))
 	for i := range comp {
 		comp[i] = -1
 	}
 	var areas []float64
+	var stack []int
 	for s := range c.m.Tri {
 		if c.removed[s] || comp[s] >= 0 {
 			continue
 		}
 		id := len(areas)
 		areas = append(areas, 0)
-		stack := []int{s}
+		stack = append(stack[:0], s)
 		comp[s] = id
 		for len(stack) > 0 {
 			e := stack[len(stack)-1]
 			stack = stack[:len(stack)-1]
 			areas[id] += triArea(c.m, e)
-			t := c.m.Tri[e]
-			for k := 0; k < 3; k++ {
-				for _, o := range adj[ukey(t[k], t[(k+1)%3])] {
-					if comp[o] < 0 {
-						comp[o] = id
-						stack = append(stack, o)
-					}
+			for _, o := range c.nbr[e] {
+				if o >= 0 && !c.removed[o] && comp[o] < 0 {
+					comp[o] = id
+					stack = append(stack, o)
 				}
 			}
 		}
@@ -399,26 +412,17 @@ func (c *carver) trace() error {
 		c.label[k] = m.Labels[ed.Label]
 		c.mid[k] = ed.Mid
 	}
-	count := map[[2]int]int{}
-	for e, t := range m.Tri {
-		if c.removed[e] {
-			continue
-		}
-		for k := 0; k < 3; k++ {
-			count[ukey(t[k], t[(k+1)%3])]++
-		}
-	}
 	next := map[int]int{}
 	for e, t := range m.Tri {
 		if c.removed[e] {
 			continue
 		}
 		for k := 0; k < 3; k++ {
-			a, b := t[k], t[(k+1)%3]
-			key := ukey(a, b)
-			if count[key] != 1 {
+			if o := c.nbr[e][k]; o >= 0 && !c.removed[o] {
 				continue
 			}
+			a, b := t[k], t[(k+1)%3]
+			key := ukey(a, b)
 			if _, dup := next[a]; dup {
 				return fmt.Errorf("remesh: carve: node %d at (%g, %g) starts two boundary edges after cleaning (non-manifold material)", a, m.X[a][0], m.X[a][1])
 			}

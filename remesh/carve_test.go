@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"tearline/remesh/geom"
+	"tearline/remesh/tri"
 	"tearline/solver/fem"
 )
 
@@ -503,4 +504,302 @@ func TestCarveErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// ssyCycle meshes the half SSY disk (sharp crack, radius R) with the tip
+// field at the origin, breaks the elements whose centroid lies in the strip
+// 0 < x < grow, y < band, and carves and remeshes with the tip moved to
+// (grow, 0). It returns the old mesh, the broken flags, the carve result,
+// the new field and the new mesh.
+type cycleOut struct {
+	m0, m1 *fem.Mesh
+	broken []bool
+	c      *Carved
+	f1     *TipField
+	rep    tri.Report
+}
+
+func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
+	tb.Helper()
+	d, err := geom.SSY{Radius: R}.Domain()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	fo := DefaultFollowOptions(ell, R/10)
+	tip0 := Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
+	f0, err := NewTipField([]Tip{tip0}, nil, nil, fo)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	broken := make([]bool, len(m0.Tri))
+	var damaged [][2]float64
+	for e, t := range m0.Tri {
+		a, b, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
+		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
+		switch {
+		case x[0] > 0 && x[0] < grow && x[1] < band:
+			broken[e] = true
+		case x[0] > -ell && x[0] < grow+ell && x[1] < band+ell:
+			damaged = append(damaged, x) // the flanks of the crack
+		}
+	}
+	tip1 := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
+	f1, err := NewTipField([]Tip{tip1}, damaged, nil, fo)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	c, err := Carve(m0, broken, d, []Tip{tip1}, f1.At, DefaultCarveOptions())
+	if err != nil {
+		tb.Fatal(err)
+	}
+	m1, rep, err := MeshDomain(c.Domain, f1.At, MeshOptions{})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return cycleOut{m0, m1, broken, c, f1, rep}
+}
+
+// insideMesh reports whether x lies in a triangle of m (closed, straight
+// sides).
+func insideMesh(m *fem.Mesh, x [2]float64) bool {
+	for _, t := range m.Tri {
+		l := fem.Barycentric(x, m.X[t[0]], m.X[t[1]], m.X[t[2]])
+		if l[0] >= 0 && l[1] >= 0 && l[2] >= 0 {
+			return true
+		}
+	}
+	return false
+}
+
+func TestCarveRemeshSSY(t *testing.T) {
+	// End to end: carve → MeshDomain gives a valid mesh (fem.Mesh.Check),
+	// minimum angle ≥ 20° (the mesher's bound, Shewchuk 2002, Comput.
+	// Geom. 22), crack faces labelled, and no removed material inside the
+	// new mesh beyond the simplification tolerance.
+	const R, ell, grow, band = 10, 0.2, 1.0, 0.12
+	o := ssyCycle(t, R, ell, grow, band)
+	if err := o.m1.Check(); err != nil {
+		t.Fatal(err)
+	}
+	if o.rep.MinAngleDeg < 20 {
+		t.Errorf("minimum angle %.2f° < 20°", o.rep.MinAngleDeg)
+	}
+	nb := 0
+	for e := range o.broken {
+		if !o.broken[e] {
+			continue
+		}
+		nb++
+		t0 := o.m0.Tri[e]
+		a, b, c := o.m0.X[t0[0]], o.m0.X[t0[1]], o.m0.X[t0[2]]
+		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
+		if !insideMesh(o.m1, x) {
+			continue
+		}
+		// allowed only within the simplification tolerance of the crack face
+		tol := DefaultCarveOptions().Simplify * o.f1.At(x[0], x[1])
+		if dd := domainDistance(o.c.Domain, x); dd > tol {
+			t.Errorf("removed element %d's centroid %v is inside the new mesh, %g from its boundary (tolerance %g)", e, x, dd, tol)
+		}
+	}
+	if nb == 0 {
+		t.Fatal("no element broken: the test set-up is wrong")
+	}
+	// labels: crack faces along the new faces, the symmetry plane only
+	// ahead of the new tip, the tip a node at (grow, 0) or on the face end
+	crack, sym := o.m1.Label(CrackLabel), o.m1.Label(geom.LabelSymmetry)
+	if crack < 0 || sym < 0 {
+		t.Fatalf("labels %v lack crack or symmetry", o.m1.Labels)
+	}
+	for _, ed := range o.m1.Boundary {
+		a, b := o.m1.X[ed.A], o.m1.X[ed.B]
+		if ed.Label == sym && (a[0] < grow-ell || b[0] < grow-ell || a[1] != 0 || b[1] != 0) {
+			t.Errorf("symmetry edge %v–%v is not on the ligament ahead of the new tip", a, b)
+		}
+	}
+	n, ok := o.m1.Points["tip"]
+	if !ok {
+		t.Fatal("the new mesh has no tip point")
+	}
+	if tp := o.m1.X[n]; math.Hypot(tp[0]-grow, tp[1]) > 2*band {
+		t.Errorf("tip node at %v, want near (%g, 0)", tp, grow)
+	}
+	t.Logf("old mesh %d triangles, %d broken; carved domain %d pieces (%d slivers); new mesh %d triangles, min angle %.1f°",
+		len(o.m0.Tri), nb, o.c.Domain.NumPieces(), o.c.Slivers, len(o.m1.Tri), o.rep.MinAngleDeg)
+}
+
+func TestCarveRemeshTwice(t *testing.T) {
+	// A second cycle on the carved-and-remeshed mesh: earlier crack faces
+	// (not pieces of the original domain) are re-simplified; the remote arc
+	// survives as arcs on the original circle.
+	const R, ell = 10, 0.2
+	o := ssyCycle(t, R, ell, 1.0, 0.12)
+	d, _ := geom.SSY{Radius: R}.Domain()
+	m := o.m1
+	broken := make([]bool, len(m.Tri))
+	for e, tr := range m.Tri {
+		a, b, c := m.X[tr[0]], m.X[tr[1]], m.X[tr[2]]
+		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
+		broken[e] = x[0] > 0.9 && x[0] < 2.2 && x[1] < 0.12
+	}
+	tip := Tip{Name: "tip", X: [2]float64{2.2, 0}, Dir: [2]float64{1, 0}}
+	f, err := NewTipField([]Tip{tip}, nil, nil, DefaultFollowOptions(ell, R/10))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	m2, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := m2.Check(); err != nil || rep.MinAngleDeg < 20 {
+		t.Fatalf("second mesh: %v, min angle %.2f°", err, rep.MinAngleDeg)
+	}
+	sweep := 0.0
+	for _, p := range c.Domain.Outer {
+		if p.Kind == geom.Arc && p.Label == geom.LabelRemote {
+			if p.Radius != R || p.Centre != [2]float64{} {
+				t.Errorf("remote arc on centre %v radius %g, want the original circle", p.Centre, p.Radius)
+			}
+			sweep += math.Abs(p.Sweep())
+		}
+	}
+	if math.Abs(sweep-math.Pi) > 1e-9 { // the half disk's arc, untouched
+		t.Errorf("remote arc sweep %g, want π", sweep)
+	}
+	// midside nodes of the remote edges lie on the circle (DESIGN.md §4)
+	rl := m2.Label(geom.LabelRemote)
+	for _, ed := range m2.Boundary {
+		if ed.Label == rl {
+			x := m2.X[ed.Mid]
+			if math.Abs(math.Hypot(x[0], x[1])-R) > 1e-9*R {
+				t.Fatalf("remote midside node %v off the circle", x)
+			}
+		}
+	}
+}
+
+func TestCarveTwoTips(t *testing.T) {
+	// Two slits, from the left and from the right edge, each with its own
+	// tip; both tips move to the slits' ends (snapped to the end vertices,
+	// which lie within Simplify·h of the tips).
+	const nx = 20
+	m := structMesh(0, 0, 10, 10, nx, nx)
+	broken := make([]bool, len(m.Tri))
+	for i := 0; i < 6; i++ {
+		for _, e := range cellTris(i, 6, nx) { // y 3–3.5, x 0–3
+			broken[e] = true
+		}
+		for _, e := range cellTris(nx-1-i, 13, nx) { // y 6.5–7, x 7–10
+			broken[e] = true
+		}
+	}
+	tips := []Tip{
+		{Name: "tip_left", X: [2]float64{3, 3.25}, Dir: [2]float64{1, 0}},
+		{Name: "tip_right", X: [2]float64{7, 6.75}, Dir: [2]float64{-1, 0.1}},
+	}
+	c, err := Carve(m, broken, squareDomain(10), tips, constSize(0.5), DefaultCarveOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name string
+		ends [][2]float64
+	}{{"tip_left", [][2]float64{{3, 3}, {3, 3.5}}}, {"tip_right", [][2]float64{{7, 6.5}, {7, 7}}}} {
+		p, ok := c.Domain.Points[tc.name]
+		if !ok || !p.Tip || math.Abs(math.Hypot(p.Dir[0], p.Dir[1])-1) > 1e-15 {
+			t.Fatalf("%s: %+v, %v; want a tip with a unit direction", tc.name, p, ok)
+		}
+		if p.X != tc.ends[0] && p.X != tc.ends[1] {
+			t.Errorf("%s at %v, want one of the slit's end vertices %v", tc.name, p.X, tc.ends)
+		}
+	}
+	if got, want := c.Domain.Area(), 100-12*0.25; math.Abs(got-want) > 1e-12 {
+		t.Errorf("area %g, want %g", got, want)
+	}
+	if got := lengthByLabel(c.Domain)[CrackLabel]; math.Abs(got-2*(3+3+0.5)) > 1e-12 {
+		t.Errorf("crack length %g, want 13", got)
+	}
+}
+
+// BenchmarkCarveRemesh times one carve + MeshDomain of the SSY disk meshed
+// to about 10⁴ triangles (ℓ = 0.1, h_far = 0.3, R = 10), the old mesh built outside the
+// timer.
+func BenchmarkCarveRemesh(b *testing.B) {
+	const R, ell, grow, band = 10, 0.1, 0.8, 0.06
+	d, _ := geom.SSY{Radius: R}.Domain()
+	fo := DefaultFollowOptions(ell, 0.3)
+	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
+	if err != nil {
+		b.Fatal(err)
+	}
+	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	broken := make([]bool, len(m0.Tri))
+	var damaged [][2]float64
+	for e, t := range m0.Tri {
+		a, bb, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
+		x := [2]float64{(a[0] + bb[0] + c[0]) / 3, (a[1] + bb[1] + c[1]) / 3}
+		switch {
+		case x[0] > 0 && x[0] < grow && x[1] < band:
+			broken[e] = true
+		case x[0] > -ell && x[0] < grow+ell && x[1] < band+ell:
+			damaged = append(damaged, x)
+		}
+	}
+	tip := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
+	f1, _ := NewTipField([]Tip{tip}, damaged, nil, fo)
+	b.ResetTimer()
+	var n1 int
+	for i := 0; i < b.N; i++ {
+		c, err := Carve(m0, broken, d, []Tip{tip}, f1.At, DefaultCarveOptions())
+		if err != nil {
+			b.Fatal(err)
+		}
+		m1, _, err := MeshDomain(c.Domain, f1.At, MeshOptions{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		n1 = len(m1.Tri)
+	}
+	b.ReportMetric(float64(len(m0.Tri)), "old-triangles")
+	b.ReportMetric(float64(n1), "new-triangles")
+}
+
+// BenchmarkCarve times Carve alone on the same mesh.
+func BenchmarkCarve(b *testing.B) {
+	const R, ell, grow, band = 10, 0.1, 0.8, 0.06
+	d, _ := geom.SSY{Radius: R}.Domain()
+	fo := DefaultFollowOptions(ell, 0.3)
+	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
+	if err != nil {
+		b.Fatal(err)
+	}
+	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	broken := make([]bool, len(m0.Tri))
+	for e, t := range m0.Tri {
+		a, bb, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
+		x := [2]float64{(a[0] + bb[0] + c[0]) / 3, (a[1] + bb[1] + c[1]) / 3}
+		broken[e] = x[0] > 0 && x[0] < grow && x[1] < band
+	}
+	tip := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := Carve(m0, broken, d, []Tip{tip}, f0.At, DefaultCarveOptions()); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(m0.Tri)), "old-triangles")
 }
