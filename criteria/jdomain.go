@@ -120,6 +120,10 @@ func checkGauss(m *fem.Mesh, gp *fem.GaussPoints, what string) error {
 //
 // The hoop term is what makes J vanish for a regular axisymmetric field
 // (checked on the Lamé cylinder).
+//
+// Broken Gauss points (State.Broken) are skipped: their material has left
+// the assembly and is removed at the next remesh, so J sees it as void both
+// before and after (common practice).
 func DomainJ(m *fem.Mesh, gp *fem.GaussPoints, opt JOptions) ([]float64, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, err
@@ -194,6 +198,9 @@ func DomainJ(m *fem.Mesh, gp *fem.GaussPoints, opt JOptions) ([]float64, error) 
 				qx := (yEta*qXi - yXi*qEta) / det
 				qy := (-xEta*qXi + xXi*qEta) / det
 				g := gp.At(e, i)
+				if g.State.Broken {
+					continue // broken material is void for J (it leaves assembly)
+				}
 				// ∂u_i/∂X₁ along the crack direction, from H = F − I.
 				g1 := (g.F[0]-1)*e1[0] + g.F[1]*e1[1]
 				g2 := g.F[2]*e1[0] + (g.F[3]-1)*e1[1]

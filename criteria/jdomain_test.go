@@ -198,3 +198,30 @@ func TestDomainJAxisymmetric(t *testing.T) {
 		}
 	}
 }
+
+// TestDomainJSkipsBroken checks that broken Gauss points, which carry no
+// stress and have left the assembly, do not enter J: marking points broken
+// and filling them with garbage gives the same J as zeroing them (void).
+func TestDomainJSkipsBroken(t *testing.T) {
+	m := crackedDisk(1, 8, 16, [2]float64{0, 0}, [2]float64{1, 0})
+	k := KField{K: 10, El: Elastic{E: 1000, Nu: 0.3}, Dir: [2]float64{1, 0}}
+	void := gaussFrom(m, williamsGauss(k, 0))
+	junk := gaussFrom(m, williamsGauss(k, 0))
+	for e := 0; e < len(m.Tri); e += 7 {
+		for i := 0; i < void.PerElement; i++ {
+			v, j := void.At(e, i), junk.At(e, i)
+			v.F, v.P, v.W = [5]float64{1, 0, 0, 1, 1}, [5]float64{}, 0
+			j.P, j.W = [5]float64{1e9, 2e9, 3e9, 4e9, 5e9}, 1e9
+			j.State.Broken = true
+		}
+	}
+	opt := JOptions{Dir: [2]float64{1, 0}, Rings: []Ring{{0.2, 0.8}}}
+	a, err1 := DomainJ(m, void, opt)
+	b, err2 := DomainJ(m, junk, opt)
+	if err1 != nil || err2 != nil {
+		t.Fatal(err1, err2)
+	}
+	if math.Abs(a[0]-b[0]) > 1e-12*math.Abs(a[0]) {
+		t.Errorf("J with broken points %g, with void points %g: broken points entered J", b[0], a[0])
+	}
+}
