@@ -11,6 +11,7 @@ package remesh
 
 import (
 	"fmt"
+	"math"
 
 	"tearline/remesh/geom"
 	"tearline/remesh/tri"
@@ -97,6 +98,17 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 		if renum[i] == 0 {
 			renum[i] = nc
 			nc++
+		}
+	}
+	// Guard against degenerate output: no edge may be shorter than the
+	// geometric tolerance (the input has no feature that small).
+	tiny := geom.RelTol * d.Scale()
+	for e, t := range tm.Triangles {
+		for k := 0; k < 3; k++ {
+			a, b := tm.Points[t[k]], tm.Points[t[(k+1)%3]]
+			if l := math.Hypot(a[0]-b[0], a[1]-b[1]); l <= tiny {
+				return nil, fmt.Errorf("mesh: the triangulation has a degenerate triangle %d with an edge of length %g at (%g, %g), below the geometric tolerance %g; a small input angle near there may be the cause", e, l, a[0], a[1], tiny)
+			}
 		}
 	}
 	ne := 3 * len(tm.Triangles) / 2
