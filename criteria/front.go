@@ -96,7 +96,7 @@ type Tip struct {
 // Front is the result of LocateFront.
 type Front struct {
 	Level float64        // the contour level f_front
-	Lines [][][2]float64 // the contour f = f_front as polylines, the longest first
+	Lines [][][2]float64 // the contour f = f_front as polylines, the longest first; a closed line repeats its first point at the end
 	Nodal []float64      // recovered porosity at every node
 	Tips  []Tip          // one per initial tip
 }
@@ -109,8 +109,8 @@ var subTri = [4][3]int{{0, 3, 5}, {3, 1, 4}, {5, 4, 2}, {3, 4, 5}}
 // Gauss points: in each element a linear least-squares fit of the Gauss-
 // point values (local smoothing, Hinton & Campbell 1974, IJNME 8) evaluated
 // at its six nodes, then the area-weighted mean over the elements around
-// each node (common practice). A linear fit cannot overshoot the way a
-// quadratic extrapolation does.
+// each node (common practice). A linear fit overshoots less than a
+// quadratic extrapolation from the Gauss points would.
 func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 	if err := checkGauss(m, gp, "porosity recovery"); err != nil {
 		return nil, err
@@ -188,18 +188,25 @@ func inverse3(a [3][3]float64) ([3][3]float64, bool) {
 // contour f = f_front on them (marching triangles), joined into polylines.
 //
 // The crack tip of each initial tip is the point of {f ≥ f_tip} farthest
-// along the crack path: a shortest-path search (Dijkstra 1959, Numer. Math.
-// 1) from the initial tips over the sub-triangle edges, where edges inside
-// cracked material cost their length and edges that bridge uncracked
-// material cost 20 times their length and may add up to at most MaxGap per
-// path. Several initial tips share the cracked material by nearest path
-// (the search runs from all of them at once), so each gets its own tip. The
-// tip lies on the edge where f falls through f_tip beyond the farthest
-// cracked node, or on that node. Δa is the length of the path after the
-// mesh zigzag is removed (Douglas & Peucker 1973, Cartographica 10, with a
-// tolerance of half the mean edge length along the path); it is the
-// shortest route through the cracked material, so a turning path cuts its
-// inside corner by up to half the band width. DAProj = (X − X₀)·d₀.
+// along the crack path. Cracked nodes are those with f ≥ f_tip and the
+// nodes of crack faces (CrackLabel) ahead of an initial tip. A shortest-path
+// search (Dijkstra 1959, Numer. Math. 1) runs from all initial tips at once
+// over the sub-triangle edges: edges between cracked nodes cost their
+// length, edges that bridge uncracked material cost 20 times their length
+// and may add up to at most MaxGap along a path. Each node goes to the tip
+// that reaches it first, so several tips share cracked material by nearest
+// path and each gets its own crack tip. Candidate tips are the cracked
+// nodes ahead of the initial tip ((X − X₀)·d₀ ≥ 0, so damage on the flanks
+// behind a blunting notch is not growth) and the points beyond them where
+// f falls through f_tip along an edge. Their paths are freed of the mesh
+// zigzag (Douglas & Peucker 1973, Cartographica 10, tolerance half the mean
+// edge length along the path) and the longest few are pulled taut inside
+// the cracked material (sampled straight-line visibility); the longest taut
+// path wins. Δa is its length — the shortest route through the cracked
+// material, so a turning path cuts its inside corner by up to half the band
+// width — and DAProj = (X − X₀)·d₀ its projection on the initial direction.
+//
+// Cost: about 0.13 s for 10⁵ elements (BenchmarkLocateFront).
 func LocateFront(m *fem.Mesh, gp *fem.GaussPoints, opt FrontOptions) (*Front, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, err
