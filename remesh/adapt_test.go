@@ -293,3 +293,39 @@ func TestTriggerValidate(t *testing.T) {
 		})
 	}
 }
+
+func TestNeedRemeshSeveralTips(t *testing.T) {
+	// Two tips growing apart (a two-sided crack): each zone is checked on
+	// its own; the trigger fires as soon as either tip nears its zone's end.
+	m := structMesh(-30, -10, 30, 10, 60, 20)
+	fo := DefaultFollowOptions(1, 4)
+	fo.Width, fo.Spread = 3, 3
+	t0 := []Tip{{Name: "right", X: [2]float64{2, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{-2, 0}, Dir: [2]float64{-1, 0}}}
+	field, err := NewTipField(t0, nil, nil, fo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := field.Zone()
+	to := DefaultTriggerOptions(1)
+	gp := gaussPoints(m, 0.001)
+	// zone ends at ±(2 + 6 + 3) = ±11; with margin 2 a tip fires beyond ±9
+	for _, c := range []struct {
+		right, left float64
+		want        bool
+		name        string
+	}{
+		{5, -5, false, ""},
+		{8.5, -8.5, false, ""},
+		{9.5, -5, true, "right"},
+		{5, -9.5, true, "left"},
+	} {
+		tips := []Tip{{Name: "right", X: [2]float64{c.right, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{c.left, 0}, Dir: [2]float64{-1, 0}}}
+		dec, err := NeedRemesh(m, gp, tips, &zone, 0, to)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if dec.Remesh != c.want || (c.want && !strings.Contains(dec.Reason, `"`+c.name+`"`)) {
+			t.Errorf("tips at %g and %g: %v (%s), want %v for tip %q", c.right, c.left, dec.Remesh, dec.Reason, c.want, c.name)
+		}
+	}
+}

@@ -105,9 +105,10 @@ func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 //     Simplify·size(x) (Douglas–Peucker), other labels lose only collinear
 //     vertices. Vertices where the label or the original piece changes and
 //     named points on the boundary are kept. Simplification never makes the
-//     boundary cross itself nor leaves a vertex or named point on the wrong
-//     side: a shortcut that would is split again (in the spirit of Saalfeld
-//     1999, Cartogr. Geogr. Inf. Sci. 26).
+//     boundary cross itself, nor leaves a vertex or named point on the wrong
+//     side or closer to a shortcut than the mesher accepts: a shortcut that
+//     would is split again (in the spirit of Saalfeld 1999, Cartogr. Geogr.
+//     Inf. Sci. 26).
 //   - Named points are carried over (from orig when given, for their kinds,
 //     else from m.Points): reference points as they are; points whose node
 //     is still in the material keep their place; a point whose name is that
@@ -914,6 +915,21 @@ func (c *carver) badSpans() []span {
 			}
 			return true
 		})
+		if !isBad && c.size != nil {
+			// no other vertex nearer the chord than the mesher accepts
+			// (geom.MinFeature·h, with a safety factor 4)
+			g := 4 * geom.MinFeature * math.Max(c.size(pa[0], pa[1]), c.size(pb[0], pb[1]))
+			pts.Search([2]float64{lo[0] - g, lo[1] - g}, [2]float64{hi[0] + g, hi[1] + g}, func(x, _ [2]float64, id int) bool {
+				if id == sg.a || id == sg.b {
+					return true
+				}
+				if segDistance(x, pa, pb) < 4*geom.MinFeature*c.size(x[0], x[1]) {
+					isBad = true
+					return false
+				}
+				return true
+			})
+		}
 		if !isBad {
 			// swept polygon: the chord's vertices i, interior…, j
 			poly := make([][2]float64, 0, len(inner)+2)

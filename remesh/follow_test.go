@@ -1,6 +1,7 @@
 package remesh
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -243,4 +244,27 @@ func TestInitialZone(t *testing.T) {
 			t.Fatalf("at %v: outside the zone description but h = h_fine", x)
 		}
 	}
+}
+
+// A size field with one tip growing in +x, ℓ = 0.2: h_fine = 0.1 at and
+// ahead of the tip, graded at 0.25 outside the zone, h_far far away. By
+// hand: the zone runs from (−0.4, 0), radius 0.4, to (1.2, 0), radius 0.8;
+// (0, 1) is 0.4683 outside it (nearest disc at s = 0.658), so h = 0.1 +
+// 0.25 × 0.4683; (−5, 5) is √(4.6² + 5²) − 0.4 = 6.394 from the back disc.
+func ExampleTipField() {
+	opt := DefaultFollowOptions(0.2, 2)
+	f, err := NewTipField([]Tip{{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}}, nil, nil, opt)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, x := range [][2]float64{{0, 0}, {1, 0}, {0, 1}, {-5, 5}, {40, 0}} {
+		fmt.Printf("h(%g, %g) = %.4g\n", x[0], x[1], f.At(x[0], x[1]))
+	}
+	// Output:
+	// h(0, 0) = 0.1
+	// h(1, 0) = 0.1
+	// h(0, 1) = 0.2171
+	// h(-5, 5) = 1.699
+	// h(40, 0) = 2
 }
