@@ -294,13 +294,20 @@ type gtnLocal struct {
 	aN         float64                 // flow stress A at the start of the step
 	hist       *[newtonMaxIter]float64 // residual history (tests), may be nil
 	nHist      int
+	// logF selects the first unknown y = ln f instead of Δε_p (when
+	// f_n > 0): it keeps f > 0 and resolves small porosities under high
+	// pressure, where Δε_p fixes f only to an absolute rounding error.
+	logF bool
 }
 
-// gtnEval is the local problem evaluated at u = (Δε_p, β, Δp).
+// gtnEval is the local problem evaluated at u = (Δε_p or ln f, β, Δp).
 type gtnEval struct {
 	ok      bool
 	sm, a   float64 // mean stress, A
 	f       float64
+	u1      float64 // Δε_p
+	u1y     float64 // ∂Δε_p/∂u₀
+	u1u3    float64 // ∂Δε_p/∂Δp
 	r       [3]float64
 	jac     [3][3]float64 // ∂r/∂u
 	ry      [3][4]float64 // ∂r/∂y, y = (σ_m^tr, σ_eq^tr², ā, λ)
@@ -311,12 +318,8 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	m := lp.m
 	par := &m.par
 	ev.ok = false
-	u1, beta, u3 := u[0], u[1], u[2]
+	beta, u3 := u[1], u[2]
 	if !(beta > 0 && beta <= 2 && u3 >= 0) {
-		return
-	}
-	sm := lp.smTr - m.bulk*u1
-	if sm*lp.smTr < 0 {
 		return
 	}
 	p := lp.pN + u3
@@ -328,19 +331,36 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	if !(A > 0) {
 		return
 	}
-	var aN, daN float64
-	if m.nuc != 0 {
-		z := (p - par.EpsN) / par.SN
-		aN = m.nuc * math.Exp(-0.5*z*z)
-		daN = -aN * z / par.SN
+	aN, daN := m.nucleation(p)
+	// Porosity and volumetric plastic strain, 1 − f = (1 − f_n − A_N Δp)
+	// e^{−Δε_p}, from the first unknown: Δε_p itself, or y = ln f.
+	var u1, f, omega, u1y, u1u3, fy, fu3 float64
+	if lp.logF {
+		f = math.Exp(u[0])
+		omega = 1 - f
+		u1 = math.Log1p(-lp.fN-aN*u3) - math.Log1p(-f)
+		u1y = f / omega
+		u1u3 = -(aN + daN*u3) / (1 - lp.fN - aN*u3)
+		fy = f
+	} else {
+		u1 = u[0]
+		e1 := math.Exp(-u1)
+		omega = (1 - lp.fN - aN*u3) * e1
+		f = 1 - omega
+		u1y = 1
+		fy = omega
+		fu3 = (aN + daN*u3) * e1
 	}
-	e1 := math.Exp(-u1)
-	omega := (1 - lp.fN - aN*u3) * e1
-	f := 1 - omega
 	if !(f >= 0 && f < m.fLim) {
 		return
 	}
-	f3 := (aN + daN*u3) * e1
+	// The volumetric plastic strain has the sign of σ_m, and σ_m keeps
+	// the sign of its trial value during the return (a wrong sign at the
+	// rounding level of ln f is tolerated).
+	sm := lp.smTr - m.bulk*u1
+	if sm*lp.smTr < 0 || u1*lp.smTr < -1e-15*math.Abs(lp.smTr) {
+		return
+	}
 	fs, dfs := par.FStar(f)
 	q1, q2, mu := par.Q1, par.Q2, m.mu
 
@@ -403,11 +423,13 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		{La * aQ, Lx * xS, La*aA + Lx*xA, Lb*bF - lkF},
 		{-beta * (1 - beta) / (3 * mu) / s0, -u1 / s0, (1 - f) * u3 / s0, -A * u3 / s0},
 	}
-	// ∂d/∂u: Q: 0; σ_m: (−K, 0, 0); A: (0, 0, A′); f: (1−f, 0, f3).
+	// Chain rule to the unknowns: Δε_p = Δε_p(u₀, Δp), f = f(u₀, Δp),
+	// σ_m = σ_m^tr − K Δε_p, A = A(p_n + Δp).
 	for i := 0; i < 3; i++ {
-		ev.jac[i][0] = ex[i][0] - m.bulk*dd[i][1] + omega*dd[i][3]
+		du1 := ex[i][0] - m.bulk*dd[i][1] // ∂r/∂Δε_p at fixed f
+		ev.jac[i][0] = du1*u1y + dd[i][3]*fy
 		ev.jac[i][1] = ex[i][1]
-		ev.jac[i][2] = ex[i][2] + dA*dd[i][2] + f3*dd[i][3]
+		ev.jac[i][2] = ex[i][2] + dA*dd[i][2] + du1*u1u3 + fu3*dd[i][3]
 		// ∂d/∂y: Q: (0,1,0,0); σ_m: (1,0,0,0); A: (0,0,−r,1) if regularised.
 		ev.ry[i][0] = dd[i][1]
 		ev.ry[i][1] = dd[i][0]
@@ -418,9 +440,29 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 			ev.ry[i][3] = dd[i][2]
 		}
 	}
-	ev.sm, ev.a, ev.f = sm, A, f
+	ev.sm, ev.a, ev.f, ev.u1 = sm, A, f, u1
+	ev.u1y, ev.u1u3 = u1y, u1u3
 	ev.normRes = math.Sqrt(ev.r[0]*ev.r[0] + ev.r[1]*ev.r[1] + ev.r[2]*ev.r[2])
 	ev.ok = finite(ev.normRes)
+}
+
+// nucleation returns the Chu–Needleman rate A_N(p) and its derivative.
+func (m *GTN) nucleation(p float64) (aN, daN float64) {
+	if m.nuc == 0 {
+		return 0, 0
+	}
+	z := (p - m.par.EpsN) / m.par.SN
+	aN = m.nuc * math.Exp(-0.5*z*z)
+	return aN, -aN * z / m.par.SN
+}
+
+// zeroFlow returns the first unknown for Δε_p = 0 at the given Δp.
+func (lp *gtnLocal) zeroFlow(u3 float64) float64 {
+	if !lp.logF {
+		return 0
+	}
+	aN, _ := lp.m.nucleation(lp.pN + u3)
+	return math.Log(lp.fN + aN*u3)
 }
 
 // solve3 solves J x = b by Cramer's rule; ok is false when J is singular.
@@ -444,6 +486,20 @@ func solve3(j *[3][3]float64, b [3]float64) (x [3]float64, ok bool) {
 	return x, finite(x[0]) && finite(x[1]) && finite(x[2])
 }
 
+// project clips an iterate onto the simple bounds of the local problem:
+// Δε_p has the sign of σ_m^tr, 0 < β ≤ 2, Δp ≥ 0. The remaining constraints
+// (σ_m keeps its sign, f < f_lim, A > 0) are left to the backtracking.
+func (lp *gtnLocal) project(u [3]float64) [3]float64 {
+	u[1] = math.Min(math.Max(u[1], 1e-12), 2)
+	u[2] = math.Max(u[2], 0)
+	z := lp.zeroFlow(u[2])
+	// Δε_p increases with u₀ in both parametrisations.
+	if (u[0]-z)*lp.smTr < 0 {
+		u[0] = z
+	}
+	return u
+}
+
 // errLocalNewton is returned when the local integration fails; the solver
 // cuts the increment back.
 var errLocalNewton = errors.New("gtn: local return mapping did not converge")
@@ -455,14 +511,15 @@ func (lp *gtnLocal) solve() (u [3]float64, ev gtnEval, err error) {
 	// start of the step, β₀ = A_n/σ_eq^tr, Δp₀ = (1−β₀)σ_eq^tr/(3μ),
 	// Δε_p = 0 (exact for perfectly plastic von Mises); fall back on the
 	// trial point (0, 1, 0) if it is not admissible.
-	u = [3]float64{0, 1, 0}
+	u = [3]float64{lp.zeroFlow(0), 1, 0}
 	if seq := math.Sqrt(lp.q); seq > lp.aN {
 		b0 := lp.aN / seq
-		u = [3]float64{0, b0, (1 - b0) * seq / (3 * lp.m.mu)}
+		u3 := (1 - b0) * seq / (3 * lp.m.mu)
+		u = [3]float64{lp.zeroFlow(u3), b0, u3}
 	}
 	lp.eval(u, &ev)
 	if !ev.ok {
-		u = [3]float64{0, 1, 0}
+		u = [3]float64{lp.zeroFlow(0), 1, 0}
 		lp.eval(u, &ev)
 		if !ev.ok {
 			return u, ev, errLocalNewton
@@ -482,7 +539,7 @@ func (lp *gtnLocal) solve() (u [3]float64, ev gtnEval, err error) {
 		alpha := 1.0
 		accepted := false
 		for k := 0; k < 40; k++ {
-			un := [3]float64{u[0] + alpha*du[0], u[1] + alpha*du[1], u[2] + alpha*du[2]}
+			un := lp.project([3]float64{u[0] + alpha*du[0], u[1] + alpha*du[1], u[2] + alpha*du[2]})
 			lp.eval(un, &trial)
 			if trial.ok && (final || trial.normRes < (1-1e-4*alpha)*ev.normRes) {
 				u, ev = un, trial
@@ -504,6 +561,16 @@ func (lp *gtnLocal) solve() (u [3]float64, ev gtnEval, err error) {
 			return u, ev, nil
 		}
 		if !accepted {
+			// Stagnation at rounding: the Newton correction is negligible
+			// although the residual is above newtonTol (ill-conditioned
+			// states, e.g. f → 0 under high pressure). Accept it.
+			small := true
+			for i := range du {
+				small = small && math.Abs(du[i]) <= 1e-13*(1+math.Abs(u[i]))
+			}
+			if small && ev.normRes < 1e-6 {
+				return u, ev, nil
+			}
 			return u, ev, errLocalNewton
 		}
 	}
@@ -567,7 +634,8 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 		out.Energy = 0.5 * tTr.Ddot(ee)
 		return nil
 	}
-	lp := gtnLocal{m: m, smTr: smTr, q: q, pN: old.P, fN: old.F, abar: in.Abar, lamb: in.Lambda, aN: aN, hist: hist}
+	lp := gtnLocal{m: m, smTr: smTr, q: q, pN: old.P, fN: old.F, abar: in.Abar, lamb: in.Lambda, aN: aN, hist: hist,
+		logF: old.F > 0}
 	u, ev, err := lp.solve()
 	if nHist != nil {
 		*nHist = lp.nHist
@@ -579,7 +647,7 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 		}
 		return fmt.Errorf("%w (trial σ_m = %g, σ_eq = %g, p = %g, f = %g)", err, smTr, math.Sqrt(q), old.P, old.F)
 	}
-	u1, beta, u3 := u[0], u[1], u[2]
+	u1, beta, u3 := ev.u1, u[1], u[2]
 	if ev.f >= m.fBreak {
 		m.broken(old, ev.f, new, out)
 		return nil
@@ -602,7 +670,9 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 		if !ok {
 			return fmt.Errorf("%w: singular tangent (p = %g, f = %g)", errLocalNewton, old.P, old.F)
 		}
-		dudy[0][l], dudy[1][l], dudy[2][l] = x[0], x[1], x[2]
+		// Row 0 becomes dΔε_p/dy from the derivative of the first unknown.
+		dudy[0][l] = ev.u1y*x[0] + ev.u1u3*x[2]
+		dudy[1][l], dudy[2][l] = x[1], x[2]
 	}
 
 	*out = Response{P: new.P, Plastic: true}
