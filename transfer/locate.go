@@ -22,6 +22,9 @@ type Locator struct {
 	// node maps the coordinates of every old node to its index, or to −1
 	// when several nodes share them (crack faces).
 	node map[[2]uint64]int
+	// curved flags the triangles whose midside nodes are off their edges'
+	// midpoints: their local coordinates come from the isoparametric map.
+	curved []bool
 }
 
 // Hit is the result of locating one point.
@@ -52,7 +55,8 @@ func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
 	if err := m.Check(); err != nil {
 		return nil, fmt.Errorf("transfer: locator: old mesh: %w", err)
 	}
-	lc := &Locator{mesh: m, tol: tol, size: make([]float64, len(m.Tri)), node: make(map[[2]uint64]int, len(m.X))}
+	lc := &Locator{mesh: m, tol: tol, size: make([]float64, len(m.Tri)), curved: make([]bool, len(m.Tri)),
+		node: make(map[[2]uint64]int, len(m.X))}
 	for n, p := range m.X {
 		k := pointKey(p)
 		if _, dup := lc.node[k]; dup {
@@ -67,6 +71,12 @@ func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
 		hi := [2]float64{math.Max(a[0], math.Max(b[0], c[0])), math.Max(a[1], math.Max(b[1], c[1]))}
 		lc.tree.Insert(lo, hi, e)
 		lc.size[e] = math.Sqrt(math.Max(dist2(a, b), math.Max(dist2(b, c), dist2(c, a))))
+		for k := 0; k < 3; k++ {
+			p, q, mid := m.X[t[k]], m.X[t[(k+1)%3]], m.X[t[3+k]]
+			if math.Hypot(mid[0]-0.5*(p[0]+q[0]), mid[1]-0.5*(p[1]+q[1])) > 1e-12*lc.size[e] {
+				lc.curved[e] = true
+			}
+		}
 	}
 	return lc, nil
 }
@@ -181,7 +191,11 @@ func (lc *Locator) locate(p [2]float64, toward *[2]float64) Hit {
 		return true
 	})
 	if best >= 0 {
-		return Hit{Elem: best, L: clampL(bestL), Inside: true, Node: -1}
+		h := Hit{Elem: best, L: clampL(bestL), Inside: true, Node: -1}
+		if lc.curved[best] {
+			h.L, h.Inside = lc.isoparametric(best, p, h.L, true)
+		}
+		return h
 	}
 	// Nearest triangle: the R-tree returns items by increasing distance
 	// (box distance as the lower bound for nodes, the exact point–triangle
@@ -206,7 +220,59 @@ func (lc *Locator) locate(p [2]float64, toward *[2]float64) Hit {
 	if near < 0 {
 		return miss
 	}
-	return Hit{Elem: near, L: nearL, Inside: math.Sqrt(nearD2) <= lc.tol*lc.size[near], Node: -1}
+	h := Hit{Elem: near, L: nearL, Inside: math.Sqrt(nearD2) <= lc.tol*lc.size[near], Node: -1}
+	if lc.curved[near] {
+		h.L, h.Inside = lc.isoparametric(near, p, h.L, h.Inside)
+	}
+	return h
+}
+
+// isoparametric returns the area coordinates of p under the quadratic map of
+// the curved triangle e, by Newton's method from the chord's coordinates l0,
+// and whether p lies in the curved triangle (within the tolerance). Outside
+// it the coordinates are clamped onto the triangle; when Newton fails (a
+// badly distorted element) l0 and inside0 are kept.
+func (lc *Locator) isoparametric(e int, p [2]float64, l0 [3]float64, inside0 bool) ([3]float64, bool) {
+	t := lc.mesh.Tri[e]
+	var x [6][2]float64
+	for k, n := range t {
+		x[k] = lc.mesh.X[n]
+	}
+	xi, eta := l0[0], l0[1]
+	tol := 1e-14 * lc.size[e]
+	for it := 0; it < 25; it++ {
+		l := [3]float64{xi, eta, 1 - xi - eta}
+		N := fem.ShapeP2(l)
+		dxi, deta := fem.ShapeP2Deriv(l)
+		var r [2]float64
+		var j00, j01, j10, j11 float64
+		for k := range x {
+			r[0] += N[k] * x[k][0]
+			r[1] += N[k] * x[k][1]
+			j00 += dxi[k] * x[k][0]
+			j01 += deta[k] * x[k][0]
+			j10 += dxi[k] * x[k][1]
+			j11 += deta[k] * x[k][1]
+		}
+		r[0], r[1] = r[0]-p[0], r[1]-p[1]
+		if math.Hypot(r[0], r[1]) <= tol {
+			// Inside the curved triangle when no coordinate is negative
+			// beyond the tolerance (relative to the element size, as for
+			// straight-sided triangles).
+			in := math.Min(l[0], math.Min(l[1], l[2])) >= -lc.tol
+			return clampL(l), in
+		}
+		det := j00*j11 - j01*j10
+		if !(math.Abs(det) > 0) {
+			break
+		}
+		xi -= (j11*r[0] - j01*r[1]) / det
+		eta -= (-j10*r[0] + j00*r[1]) / det
+		if !finite(xi) || !finite(eta) || math.Abs(xi) > 10 || math.Abs(eta) > 10 {
+			break
+		}
+	}
+	return l0, inside0
 }
 
 // contains reports whether the closed straight-sided triangle e contains p,

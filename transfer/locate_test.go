@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"tearline/solver/fem"
+	"tearline/solver/material"
 )
 
 // TestOrientNearDegenerate checks the orientation sign on the classic
@@ -216,15 +217,15 @@ func TestNewLocatorErrors(t *testing.T) {
 	}
 }
 
-// TestArcBoundary: a coarse mesh of an annular sector replaces the arc
-// r = 1 by chords; the new boundary vertices of a finer mesh lie on the arc,
-// outside the old chords, and must be handled by the nearest old triangle.
-// The distance from an arc point at angle φ to the chord of [θ₀, θ₁] is
-// cos(φ − θm) − cos(Δθ/2) in the chord's normal direction (θm the chord's
-// mid-angle) — closed form of circle geometry.
+// TestArcBoundary: a coarse mesh of an annular sector with straight-sided
+// elements replaces the arc r = 1 by chords; the new boundary vertices of a
+// finer mesh lie on the arc, outside the old chords, and must be handled by
+// the nearest old triangle. The distance from an arc point at angle φ to the
+// chord of [θ₀, θ₁] is cos(φ − θm) − cos(Δθ/2) in the chord's normal
+// direction (θm the chord's mid-angle) — closed form of circle geometry.
 func TestArcBoundary(t *testing.T) {
-	old := sectorMesh(3, 4, 0.5)
-	nw := sectorMesh(5, 7, 0.5)
+	old := sectorMesh(3, 4, 0.5, false)
+	nw := sectorMesh(5, 7, 0.5, true)
 	lc, err := NewLocator(old, 1e-9)
 	if err != nil {
 		t.Fatal(err)
@@ -256,6 +257,101 @@ func TestArcBoundary(t *testing.T) {
 	}
 	if outside == 0 {
 		t.Fatal("no new arc vertex fell outside the old chords: the test checks nothing")
+	}
+	// Through Map: a linear field is exact at points inside the old mesh;
+	// outside it takes the value at the nearest old point, so its error is
+	// at most |∇u| × the distance to the old mesh (closed form).
+	ux, uy := linear{0.1, 0.3, -0.2}, linear{-0.2, 0.05, 0.4}
+	grad := math.Hypot(ux[1], ux[2])
+	st := linear{0.2, 0.1, 0.1}
+	from := fieldsFrom(old, func(p [2]float64) [2]float64 { return [2]float64{ux.at(p), uy.at(p)} }, nil,
+		func(p [2]float64) material.State { return material.State{P: st.at(p), F: 0.01} }, nil)
+	to, rec, err := Map(old, from, nw, DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rec.NodesOutside == 0 || rec.Extrapolated == 0 {
+		t.Fatalf("no node (%d) or Gauss point (%d) extrapolated", rec.NodesOutside, rec.Extrapolated)
+	}
+	for n, p := range nw.X {
+		d := bruteDistance(old, p)
+		if err := math.Abs(to.U[n][0] - ux.at(p)); err > grad*d+1e-13 {
+			t.Errorf("node %d at %v, %g outside: u_x error %g > |∇u| d = %g", n, p, d, err, grad*d)
+		}
+	}
+	t.Logf("straight-sided old mesh: %d nodes and %d Gauss points outside the old chords", rec.NodesOutside, rec.Extrapolated)
+}
+
+// TestCurvedElements: with curved old boundary elements (midside nodes on
+// the arc) local coordinates come from the inverse isoparametric map, so a
+// point between a chord and the arc is inside its curved element and a
+// linear field — which the quadratic isoparametric element reproduces
+// exactly (isoparametric concept, Ergatoudis, Irons & Zienkiewicz 1968,
+// Int. J. Solids Struct. 4) — is transferred exactly there; points beyond
+// the curved boundary get a point of the curved element closer to them than
+// the chord.
+func TestCurvedElements(t *testing.T) {
+	old := sectorMesh(3, 4, 0.5, true)
+	nw := sectorMesh(5, 7, 0.5, true)
+	lc, err := NewLocator(old, 1e-9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	iso := func(e int, l [3]float64) [2]float64 {
+		N := fem.ShapeP2(l)
+		var q [2]float64
+		for k, n := range old.Tri[e] {
+			q[0] += N[k] * old.X[n][0]
+			q[1] += N[k] * old.X[n][1]
+		}
+		return q
+	}
+	bulge, beyond := 0, 0
+	// The new nodes, and points just inside the arc (r = 0.999, within the
+	// chords' sagitta 1 − cos(Δθ/2) ≈ 0.019 of the arc).
+	pts := append([][2]float64(nil), nw.X...)
+	for k := 0; k <= 50; k++ {
+		phi := 0.5 * math.Pi * float64(k) / 50
+		pts = append(pts, [2]float64{0.999 * math.Cos(phi), 0.999 * math.Sin(phi)})
+	}
+	for _, p := range pts {
+		e, l, in := lc.Locate(p)
+		q := iso(e, l)
+		d := math.Hypot(q[0]-p[0], q[1]-p[1])
+		chord := bruteDistance(old, p)
+		switch {
+		case in && d > 1e-13:
+			t.Errorf("%v inside curved triangle %d, but its area coordinates map to %v", p, e, q)
+		case !in && !(d <= chord+1e-14):
+			t.Errorf("%v outside: nearest curved point %v at %g, not closer than the chord's %g", p, q, d, chord)
+		case in && chord > 1e-9:
+			bulge++
+		case !in:
+			beyond++
+		}
+	}
+	t.Logf("new nodes between chord and arc, inside curved elements: %d; beyond the curved boundary: %d", bulge, beyond)
+	if bulge == 0 {
+		t.Fatal("no new node between an old chord and the arc: the test checks nothing")
+	}
+	ux := linear{0.1, 0.3, -0.2}
+	from := fieldsFrom(old, func(p [2]float64) [2]float64 { return [2]float64{ux.at(p), 0} }, nil,
+		func(p [2]float64) material.State { return material.State{P: ux.at(p), F: 0.01} }, nil)
+	to, _, err := Map(old, from, nw, DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	for n, p := range nw.X {
+		if e, l, in := lc.Locate(p); in {
+			if err := math.Abs(to.U[n][0] - ux.at(p)); err > 1e-13 {
+				t.Errorf("node %d at %v in curved triangle %d: u_x error %g", n, p, e, err)
+			}
+		} else {
+			q := iso(e, l)
+			if err := math.Abs(to.U[n][0] - ux.at(q)); err > 1e-13 {
+				t.Errorf("node %d at %v beyond the curved boundary: u_x %g, want the value %g at the nearest point %v", n, p, to.U[n][0], ux.at(q), q)
+			}
+		}
 	}
 }
 

@@ -94,9 +94,9 @@ func squareMesh(nx, ny int, perturb float64, seed uint64) *fem.Mesh {
 }
 
 // sectorMesh is an nr×nt triangulation of the annular sector r in [r0, 1],
-// angle in [0, π/2]; vertices and midside nodes of the outer edges lie on
-// the arc r = 1.
-func sectorMesh(nr, nt int, r0 float64) *fem.Mesh {
+// angle in [0, π/2]; vertices lie on the arc r = 1, and so do the midside
+// nodes of the outer edges when curved (else at the chords' midpoints).
+func sectorMesh(nr, nt int, r0 float64, curved bool) *fem.Mesh {
 	var x [][2]float64
 	for j := 0; j <= nt; j++ {
 		th := 0.5 * math.Pi * float64(j) / float64(nt)
@@ -107,7 +107,7 @@ func sectorMesh(nr, nt int, r0 float64) *fem.Mesh {
 	}
 	onArc := func(a, b [2]float64) [2]float64 {
 		p := [2]float64{0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])}
-		if ra, rb := math.Hypot(a[0], a[1]), math.Hypot(b[0], b[1]); math.Abs(ra-1) < 1e-12 && math.Abs(rb-1) < 1e-12 {
+		if ra, rb := math.Hypot(a[0], a[1]), math.Hypot(b[0], b[1]); curved && math.Abs(ra-1) < 1e-12 && math.Abs(rb-1) < 1e-12 {
 			r := math.Hypot(p[0], p[1])
 			p = [2]float64{p[0] / r, p[1] / r}
 		}

@@ -638,7 +638,7 @@ func TestConcurrentAndDeterministic(t *testing.T) {
 // edges on the arc, off the chords), renumbered and rotated, takes every
 // nodal value and every Gauss-point state verbatim.
 func TestCurvedUnchanged(t *testing.T) {
-	old := sectorMesh(4, 6, 0.4)
+	old := sectorMesh(4, 6, 0.4, true)
 	nw := shuffled(old, 3)
 	rng := rand.New(rand.NewPCG(2, 2))
 	from := fieldsFrom(old, func([2]float64) [2]float64 { return [2]float64{rng.NormFloat64(), rng.NormFloat64()} },
