@@ -271,3 +271,89 @@ func TestLocateFrontBluntApex(t *testing.T) {
 		t.Errorf("undamaged blunt tip: %+v; want no growth", tp)
 	}
 }
+
+// TestLocateFrontHalfModel checks the tip of a band on the mirror plane of
+// a half model (the boundary-layer case): the cracked set is the upper half
+// of the dilated segment, Δa = L + ρ (geometry as in TestLocateFrontTips).
+func TestLocateFrontHalfModel(t *testing.T) {
+	m := gridMesh(-0.5, 2, 0, 1, 100, 40, true)
+	gp := gaussFrom(m, porosity([]band{{[][2]float64{{0, 0}, {1.2, 0}}, 0.1}}))
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rho := reach(0.1, 0.1)
+	tp := fr.Tips[0]
+	t.Logf("half model: X %.4f Δa %.4f (want %.4f)", tp.X, tp.DA, 1.2+rho)
+	if math.Abs(tp.DA-(1.2+rho)) > 0.025 || math.Abs(tp.X[0]-(1.2+rho)) > 0.025 || tp.X[1] > 0.025 {
+		t.Errorf("half model tip %v, Δa %g; want (%g, 0), Δa %g", tp.X, tp.DA, 1.2+rho, 1.2+rho)
+	}
+}
+
+// jitter moves the interior corner nodes of a structured mesh by up to amp
+// in each direction (deterministic pseudo-random) and puts the midside
+// nodes back at the chord midpoints: an irregular mesh.
+func jitter(m *fem.Mesh, amp float64, seed uint64) {
+	onBoundary := map[int]bool{}
+	for _, e := range m.Boundary {
+		onBoundary[e.A], onBoundary[e.B] = true, true
+	}
+	s := seed
+	next := func() float64 { // xorshift64*, in [−1, 1)
+		s ^= s >> 12
+		s ^= s << 25
+		s ^= s >> 27
+		return float64((s*2685821657736338717)>>11)/float64(1<<52) - 1
+	}
+	for n := 0; n < m.NumCorners; n++ {
+		if !onBoundary[n] {
+			m.X[n][0] += amp * next()
+			m.X[n][1] += amp * next()
+		}
+	}
+	for _, t := range m.Tri {
+		for k, e := range [3][2]int{{0, 1}, {1, 2}, {2, 0}} {
+			a, b := m.X[t[e[0]]], m.X[t[e[1]]]
+			m.X[t[3+k]] = [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+		}
+	}
+}
+
+// TestLocateFrontIrregularMesh repeats the straight and turned cases of
+// TestLocateFrontTips on an irregular mesh (nodes jittered by 20% of the
+// spacing), where shortest paths along edges zigzag most.
+func TestLocateFrontIrregularMesh(t *testing.T) {
+	const h = 0.025
+	m := gridMesh(-0.5, 2, -0.5, 1.2, 100, 68, false)
+	jitter(m, 0.2*h, 7)
+	if err := m.Check(); err != nil {
+		t.Fatalf("jittered mesh: %v", err)
+	}
+	rho := reach(0.1, 0.1)
+	c := [2]float64{1 - rho, rho}
+	turn := 0.0
+	for k := 0; k <= 2000; k++ {
+		phi := -math.Pi/2 + math.Pi*float64(k)/2000
+		p := [2]float64{1 + rho*math.Sin(phi), 0.6 + rho*math.Cos(phi)}
+		turn = math.Max(turn, math.Hypot(c[0], c[1])+math.Hypot(p[0]-c[0], p[1]-c[1]))
+	}
+	for _, tc := range []struct {
+		name string
+		line [][2]float64
+		da   float64
+	}{
+		{"straight", [][2]float64{{0, 0}, {1, 0}}, 1 + rho},
+		{"turned", [][2]float64{{0, 0}, {1, 0}, {1, 0.6}}, turn},
+	} {
+		gp := gaussFrom(m, porosity([]band{{tc.line, 0.1}}))
+		fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tp := fr.Tips[0]
+		t.Logf("irregular %s: X %.4f Δa %.4f (want %.4f)", tc.name, tp.X, tp.DA, tc.da)
+		if math.Abs(tp.DA-tc.da) > h {
+			t.Errorf("irregular %s: Δa = %.4f, want %.4f within %g", tc.name, tp.DA, tc.da, h)
+		}
+	}
+}
