@@ -11,12 +11,20 @@
 // orientation signs are computed with a floating-point filter and, when the
 // filter cannot decide, exactly — by an error-free split of the products when
 // the coordinate differences are exact, else in rational arithmetic (the
-// adaptive-predicate idea of Shewchuk 1997, Discrete Comput. Geom. 18). Elements are treated as
-// straight-sided: a curved boundary element is replaced by its chord. A point
-// that no triangle contains (a new boundary vertex on an arc lies outside the
-// old chords) gets the nearest triangle with the area coordinates of the
-// nearest point on it (clamped to the triangle); it counts as inside when it
-// is within Options.Tol × the triangle's longest edge.
+// adaptive-predicate idea of Shewchuk 1997, Discrete Comput. Geom. 18).
+//
+// Containment is decided on the straight-sided triangle of the corner nodes:
+// a curved boundary element is replaced by its chord. In a curved element (a
+// midside node off its edge's midpoint) the area coordinates then come from
+// inverting the element's quadratic isoparametric map by Newton's method, so
+// a point between the chord and the arc — a new boundary vertex on the arc —
+// lies inside it and a linear field is reproduced there exactly. A point
+// that no triangle contains gets the nearest triangle (by chord distance)
+// with the area coordinates of the nearest point on it (clamped to the
+// triangle, or to the curved element); it counts as inside when it is within
+// Options.Tol × the triangle's longest edge. Only boundary edges are
+// expected to be curved: the bulge of a curved interior edge into its
+// neighbour's chord triangle is not searched.
 //
 // # Nodal fields
 //

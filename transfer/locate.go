@@ -13,7 +13,10 @@ import (
 
 // Locator finds the old triangle that contains a point. It indexes the
 // bounding boxes of the triangles' corner nodes in an R-tree; a mesh
-// change after NewLocator is not seen. Queries are safe for concurrent use.
+// change after NewLocator is not seen. Containment is tested on the chords
+// (corner nodes); area coordinates in curved triangles come from the inverse
+// isoparametric map (see the package documentation). Queries are safe for
+// concurrent use.
 type Locator struct {
 	mesh *fem.Mesh
 	tree rtree.RTreeG[int]
@@ -33,7 +36,8 @@ type Hit struct {
 	// old mesh has no triangles.
 	Elem int
 	// L holds the area coordinates of the point in Elem (of the nearest
-	// point of Elem when the point lies outside it).
+	// point of Elem when the point lies outside it); in a curved triangle
+	// those of its isoparametric map.
 	L [3]float64
 	// Inside reports that Elem contains the point (within the tolerance).
 	Inside bool
