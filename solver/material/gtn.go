@@ -187,6 +187,12 @@ func NewGTN(p GTNParams) (*GTN, error) {
 // Params returns the parameters the model was built with.
 func (m *GTN) Params() GTNParams { return m.par }
 
+// Sigma0 returns the initial yield stress σ₀ = R(0).
+func (m *GTN) Sigma0() float64 { return m.sigma0 }
+
+// BreakPorosity returns the porosity f_break at which a point breaks.
+func (m *GTN) BreakPorosity() float64 { return m.fBreak }
+
 // Initial returns the virgin state: f = f₀, no plastic strain.
 func (m *GTN) Initial() State { return State{F: m.par.F0} }
 

@@ -125,6 +125,35 @@ func TestGTNUniaxialLargeStretchJ2(t *testing.T) {
 	}
 }
 
+// Reference: von Mises yield in shear, τ_y = σ₀/√3 (Hill 1950, ch. II) — the
+// shear yield stress k of the limit-load checks V6 and V7. GTN with f₀ = 0,
+// no nucleation and perfect plasticity, driven in plane-strain simple shear
+// (E₁₂ only) well past yield, must hold T₁₂ = σ₀/√3 with no normal stress.
+func TestGTNShearYieldJ2(t *testing.T) {
+	par := j2Params(PerfectlyPlastic{Sigma0: 400})
+	m := mustGTN(t, par)
+	st := m.Initial()
+	k := 400 / math.Sqrt(3)
+	for n := 1; n <= 40; n++ {
+		nw, out, err := gtnStep(m, Sym{0, 0, 0, 5e-4 * float64(n)}, 0, 0, st)
+		if err != nil {
+			t.Fatal(err)
+		}
+		st = nw
+		mu := par.Elastic.Young / (2 * (1 + par.Elastic.Poisson))
+		want := math.Min(2*mu*5e-4*float64(n), k)
+		if math.Abs(out.T[3]-want) > 1e-9*k || math.Abs(out.T[0])+math.Abs(out.T[1])+math.Abs(out.T[2]) > 1e-9*k {
+			t.Errorf("E12 = %g: T = %v, want T12 = %g", 5e-4*float64(n), out.T, want)
+		}
+	}
+	if st.P == 0 || st.F != 0 {
+		t.Errorf("final state %+v: want plastic flow without porosity", st)
+	}
+	if m.Sigma0() != 400 || m.BreakPorosity() != par.BreakPorosity() {
+		t.Errorf("Sigma0 %g, BreakPorosity %g", m.Sigma0(), m.BreakPorosity())
+	}
+}
+
 // Reference: under pure hydrostatic stress the GTN yield condition gives
 // σ_m = (2σ*/(3q₂)) arccosh((1 + (q₁f*)²)/(2q₁f*)) (Gurson 1977; Tvergaard
 // 1981). Checked (a) as the elastic limit of a virgin point, (b) at the end
@@ -807,6 +836,7 @@ func benchUpdates(b *testing.B, ms []*GTN, ins []Input, olds []State) {
 	var nw State
 	var out Response
 	n := 0
+	cpu0 := processCPUSeconds()
 	b.ResetTimer()
 	for b.Loop() {
 		k := n % len(ms)
@@ -816,4 +846,9 @@ func benchUpdates(b *testing.B, ms []*GTN, ins []Input, olds []State) {
 		n++
 	}
 	b.ReportMetric(float64(n)/b.Elapsed().Seconds(), "updates/s")
+	// Throughput per CPU-second of this (single-goroutine) process: the
+	// per-core figure on a machine shared with other work.
+	if cpu := processCPUSeconds() - cpu0; cpu > 0 {
+		b.ReportMetric(float64(n)/cpu, "updates/cpu-s")
+	}
 }
