@@ -728,14 +728,8 @@ func (c *carver) simplify() error {
 			l.keep[k0], l.keep[k1] = true, true
 		}
 		// the runs between kept vertices
-		for k := 0; k < n; k++ {
-			if !l.keep[k] {
-				continue
-			}
-			j := (k + 1) % n
-			for !l.keep[j] {
-				j = (j + 1) % n
-			}
+		for _, sp := range c.spans(li) {
+			k, j := sp.i, sp.j
 			if l.pc[k] >= 0 {
 				continue // on an original piece: its ends are enough
 			}
@@ -816,16 +810,13 @@ func (c *carver) atLeastThree(li int) {
 			return
 		}
 		// keep the interior vertex farthest from its chord
-		best, bk := -1.0, -1
+		best, bs := -1.0, span{}
 		for _, s := range c.spans(li) {
-			a, b := c.m.X[l.v[s.i]], c.m.X[l.v[s.j]]
-			for _, k := range l.interior(s.i, s.j) {
-				if d := segDistance(c.m.X[l.v[k]], a, b); d > best {
-					best, bk = d, k
-				}
+			if _, d := c.farthest(s); d > best {
+				best, bs = d, s
 			}
 		}
-		l.keep[bk] = true
+		c.splitSpan(bs)
 	}
 }
 
@@ -849,6 +840,14 @@ func (c *carver) spans(li int) []span {
 
 // splitSpan keeps the interior vertex of s farthest from its chord.
 func (c *carver) splitSpan(s span) {
+	if k, _ := c.farthest(s); k >= 0 {
+		c.loops[s.loop].keep[k] = true
+	}
+}
+
+// farthest returns the interior vertex of s farthest from its chord and
+// its distance (−1, −1 when s has no interior vertex).
+func (c *carver) farthest(s span) (int, float64) {
 	l := &c.loops[s.loop]
 	a, b := c.m.X[l.v[s.i]], c.m.X[l.v[s.j]]
 	best, bk := -1.0, -1
@@ -857,9 +856,7 @@ func (c *carver) splitSpan(s span) {
 			best, bk = d, k
 		}
 	}
-	if bk >= 0 {
-		l.keep[bk] = true
-	}
+	return bk, best
 }
 
 // badSpans returns the simplified chords that cross another boundary

@@ -258,6 +258,16 @@ func domainDistance(d *geom.Domain, x [2]float64) float64 {
 	return best
 }
 
+// breakWhere marks the triangles of m whose centroid satisfies in.
+func breakWhere(m *fem.Mesh, in func(x, y float64) bool) []bool {
+	broken := make([]bool, len(m.Tri))
+	for e, t := range m.Tri {
+		a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
+		broken[e] = in((a[0]+b[0]+c[0])/3, (a[1]+b[1]+c[1])/3)
+	}
+	return broken
+}
+
 func TestCarveSimplify(t *testing.T) {
 	// A wavy crack: the triangles whose centroid lies in the band
 	// |y − 5 − 0.8 sin x| < 0.45, x < 7, are removed from a 10 × 10 square
@@ -268,14 +278,7 @@ func TestCarveSimplify(t *testing.T) {
 	// domain.
 	const nx = 40
 	m := structMesh(0, 0, 10, 10, nx, nx)
-	broken := make([]bool, len(m.Tri))
-	for e, tri := range m.Tri {
-		a, b, cc := m.X[tri[0]], m.X[tri[1]], m.X[tri[2]]
-		x, y := (a[0]+b[0]+cc[0])/3, (a[1]+b[1]+cc[1])/3
-		if x < 7 && math.Abs(y-5-0.8*math.Sin(x)) < 0.45 {
-			broken[e] = true
-		}
-	}
+	broken := breakWhere(m, func(x, y float64) bool { return x < 7 && math.Abs(y-5-0.8*math.Sin(x)) < 0.45 })
 	base := -1 // vertices dropped without simplification (collinear ones)
 	for _, sc := range []struct {
 		name     string
@@ -340,14 +343,7 @@ func TestCarveTwoFacesClose(t *testing.T) {
 	// topology check keeps them apart and the domain stays valid.
 	const nx = 40
 	m := structMesh(0, 0, 10, 10, nx, nx)
-	broken := make([]bool, len(m.Tri))
-	for e, tri := range m.Tri {
-		a, b, cc := m.X[tri[0]], m.X[tri[1]], m.X[tri[2]]
-		x, y := (a[0]+b[0]+cc[0])/3, (a[1]+b[1]+cc[1])/3
-		if x < 8 && math.Abs(y-5-1.5*math.Sin(0.9*x)) < 0.15 {
-			broken[e] = true
-		}
-	}
+	broken := breakWhere(m, func(x, y float64) bool { return x < 8 && math.Abs(y-5-1.5*math.Sin(0.9*x)) < 0.15 })
 	opt := DefaultCarveOptions()
 	opt.Simplify = 2
 	c, err := Carve(m, broken, squareDomain(10), nil, constSize(0.25), opt)
@@ -519,15 +515,27 @@ type cycleOut struct {
 	rep    tri.Report
 }
 
-func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
+// ssySetup meshes the half SSY disk (sharp crack, radius R, far size
+// hFar) with the tip field at the origin and breaks the elements whose
+// centroid lies in the strip 0 < x < grow, y < band; the centroids within
+// ℓ of the strip are the damaged points. The moved tip is at (grow, 0).
+type ssySetup struct {
+	d       *geom.Domain
+	fo      FollowOptions
+	m0      *fem.Mesh
+	broken  []bool
+	damaged [][2]float64
+	tip     Tip
+}
+
+func newSSYSetup(tb testing.TB, R, hFar, ell, grow, band float64) ssySetup {
 	tb.Helper()
 	d, err := geom.SSY{Radius: R}.Domain()
 	if err != nil {
 		tb.Fatal(err)
 	}
-	fo := DefaultFollowOptions(ell, R/10)
-	tip0 := Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
-	f0, err := NewTipField([]Tip{tip0}, nil, nil, fo)
+	fo := DefaultFollowOptions(ell, hFar)
+	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -535,24 +543,31 @@ func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	broken := make([]bool, len(m0.Tri))
-	var damaged [][2]float64
+	s := ssySetup{d: d, fo: fo, m0: m0, broken: make([]bool, len(m0.Tri)),
+		tip: Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}}
 	for e, t := range m0.Tri {
 		a, b, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
 		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
 		switch {
 		case x[0] > 0 && x[0] < grow && x[1] < band:
-			broken[e] = true
+			s.broken[e] = true
 		case x[0] > -ell && x[0] < grow+ell && x[1] < band+ell:
-			damaged = append(damaged, x) // the flanks of the crack
+			s.damaged = append(s.damaged, x) // the flanks of the crack
 		}
 	}
-	tip1 := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
-	f1, err := NewTipField([]Tip{tip1}, damaged, nil, fo)
+	return s
+}
+
+// ssyCycle carves and remeshes an ssySetup with the tip field of the moved
+// tip and the damaged points.
+func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
+	tb.Helper()
+	s := newSSYSetup(tb, R, R/10, ell, grow, band)
+	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		tb.Fatal(err)
 	}
-	c, err := Carve(m0, broken, d, []Tip{tip1}, f1.At, DefaultCarveOptions())
+	c, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions())
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -560,7 +575,7 @@ func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	return cycleOut{m0, m1, broken, c, f1, rep}
+	return cycleOut{s.m0, m1, s.broken, c, f1, rep}
 }
 
 // insideMesh reports whether x lies in a triangle of m (closed, straight
@@ -730,38 +745,18 @@ func TestCarveTwoTips(t *testing.T) {
 }
 
 // BenchmarkCarveRemesh times one carve + MeshDomain of the SSY disk meshed
-// to about 10⁴ triangles (ℓ = 0.1, h_far = 0.3, R = 10), the old mesh built outside the
-// timer.
+// to about 10⁴ triangles (ℓ = 0.1, h_far = 0.3, R = 10), the old mesh built
+// outside the timer.
 func BenchmarkCarveRemesh(b *testing.B) {
-	const R, ell, grow, band = 10, 0.1, 0.8, 0.06
-	d, _ := geom.SSY{Radius: R}.Domain()
-	fo := DefaultFollowOptions(ell, 0.3)
-	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
+	s := newSSYSetup(b, 10, 0.3, 0.1, 0.8, 0.06)
+	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		b.Fatal(err)
 	}
-	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
-	if err != nil {
-		b.Fatal(err)
-	}
-	broken := make([]bool, len(m0.Tri))
-	var damaged [][2]float64
-	for e, t := range m0.Tri {
-		a, bb, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
-		x := [2]float64{(a[0] + bb[0] + c[0]) / 3, (a[1] + bb[1] + c[1]) / 3}
-		switch {
-		case x[0] > 0 && x[0] < grow && x[1] < band:
-			broken[e] = true
-		case x[0] > -ell && x[0] < grow+ell && x[1] < band+ell:
-			damaged = append(damaged, x)
-		}
-	}
-	tip := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
-	f1, _ := NewTipField([]Tip{tip}, damaged, nil, fo)
 	b.ResetTimer()
 	var n1 int
 	for i := 0; i < b.N; i++ {
-		c, err := Carve(m0, broken, d, []Tip{tip}, f1.At, DefaultCarveOptions())
+		c, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions())
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -771,35 +766,22 @@ func BenchmarkCarveRemesh(b *testing.B) {
 		}
 		n1 = len(m1.Tri)
 	}
-	b.ReportMetric(float64(len(m0.Tri)), "old-triangles")
+	b.ReportMetric(float64(len(s.m0.Tri)), "old-triangles")
 	b.ReportMetric(float64(n1), "new-triangles")
 }
 
 // BenchmarkCarve times Carve alone on the same mesh.
 func BenchmarkCarve(b *testing.B) {
-	const R, ell, grow, band = 10, 0.1, 0.8, 0.06
-	d, _ := geom.SSY{Radius: R}.Domain()
-	fo := DefaultFollowOptions(ell, 0.3)
-	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
+	s := newSSYSetup(b, 10, 0.3, 0.1, 0.8, 0.06)
+	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		b.Fatal(err)
 	}
-	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
-	if err != nil {
-		b.Fatal(err)
-	}
-	broken := make([]bool, len(m0.Tri))
-	for e, t := range m0.Tri {
-		a, bb, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
-		x := [2]float64{(a[0] + bb[0] + c[0]) / 3, (a[1] + bb[1] + c[1]) / 3}
-		broken[e] = x[0] > 0 && x[0] < grow && x[1] < band
-	}
-	tip := Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := Carve(m0, broken, d, []Tip{tip}, f0.At, DefaultCarveOptions()); err != nil {
+		if _, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions()); err != nil {
 			b.Fatal(err)
 		}
 	}
-	b.ReportMetric(float64(len(m0.Tri)), "old-triangles")
+	b.ReportMetric(float64(len(s.m0.Tri)), "old-triangles")
 }
