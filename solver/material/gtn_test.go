@@ -852,3 +852,76 @@ func benchUpdates(b *testing.B, ms []*GTN, ins []Input, olds []State) {
 		b.ReportMetric(float64(n)/cpu, "updates/cpu-s")
 	}
 }
+
+// Reference: closed forms of the GTN effective stress (Gurson 1977;
+// Tvergaard 1981): for a deviatoric stress σ* = σ_eq/(1 − q₁f*); for a
+// hydrostatic one σ* = 3q₂σ_m/(2 arccosh((1 + (q₁f*)²)/(2q₁f*))); for f = 0
+// σ* = σ_eq (von Mises). For mixed states the root must zero the yield
+// function.
+func TestGTNEffectiveStress(t *testing.T) {
+	par := DefaultGTN()
+	m := mustGTN(t, par)
+	q1, q2 := par.Q1, par.Q2
+	for _, f := range []float64{0, 0.001, 0.05, 0.2, 0.24} {
+		fs, _ := par.FStar(f)
+		dev := Sym{200, -100, -100, 50}
+		seq := math.Sqrt(1.5 * dev.Ddot(dev))
+		got, err := m.EffectiveStress(dev, f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want := seq / (1 - q1*fs); math.Abs(got-want) > 1e-12*want {
+			t.Errorf("f=%g deviatoric: σ* = %.15g, closed form %.15g", f, got, want)
+		}
+		if f > 0 {
+			for _, sm := range []float64{300, -2000} {
+				got, err := m.EffectiveStress(Sym{sm, sm, sm, 0}, f)
+				if err != nil {
+					t.Fatal(err)
+				}
+				want := 3 * q2 * math.Abs(sm) / (2 * math.Acosh((1+q1*q1*fs*fs)/(2*q1*fs)))
+				if math.Abs(got-want) > 1e-12*want {
+					t.Errorf("f=%g hydrostatic %g: σ* = %.15g, closed form %.15g", f, sm, got, want)
+				}
+			}
+		}
+		mixed := Sym{900, 400, 300, 250}
+		ss, err := m.EffectiveStress(mixed, f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sm := mixed.Trace() / 3
+		s := Sym{mixed[0] - sm, mixed[1] - sm, mixed[2] - sm, mixed[3]}
+		seq2 := 1.5 * s.Ddot(s)
+		phi := seq2/(ss*ss) + 2*q1*fs*math.Cosh(1.5*q2*sm/ss) - 1 - q1*q1*fs*fs
+		if math.Abs(phi) > 1e-13 {
+			t.Errorf("f=%g mixed: yield function %g at σ* = %g", f, phi, ss)
+		}
+	}
+	if s, err := m.EffectiveStress(Sym{}, 0.01); err != nil || s != 0 {
+		t.Errorf("zero stress: σ* = %g, %v", s, err)
+	}
+}
+
+// Bad input gives an error value, never a panic or NaN.
+func TestGTNBadInputErrors(t *testing.T) {
+	par := DefaultGTN()
+	par.Length = 0.1
+	m := mustGTN(t, par)
+	cases := []struct {
+		name string
+		E    Sym
+		lam  float64
+		want string
+	}{
+		{"NaN strain", Sym{math.NaN(), 0, 0, 0}, 0, "not finite"},
+		{"Inf strain", Sym{0, math.Inf(1), 0, 0}, 0, "not finite"},
+		{"negative flow stress", Sym{0.01, 0, 0, 0}, -1000, "must stay > 0"},
+	}
+	for _, tc := range cases {
+		_, _, err := gtnStep(m, tc.E, 0, tc.lam, m.Initial())
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want one mentioning %q", tc.name, err, tc.want)
+		}
+	}
+}
