@@ -280,6 +280,9 @@ func TestPorosityBounds(t *testing.T) {
 					}
 				}
 			}
+			if n := rec.Verbatim + rec.Broken + rec.Projected + rec.Extrapolated; n != len(to.State) {
+				t.Errorf("%v: record counts %d points of %d", method, n, len(to.State))
+			}
 			if rec.ClampedF == 0 || rec.ClampedP == 0 || rec.Broken == 0 {
 				t.Errorf("%v: the peaks clamped no f (%d) or no p (%d) or left no broken point (%d): the test checks nothing", method, rec.ClampedF, rec.ClampedP, rec.Broken)
 			}
