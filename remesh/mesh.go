@@ -71,13 +71,6 @@ func MeshDomain(d *geom.Domain, size func(x, y float64) float64, opt MeshOptions
 	return m, tri.Quality(tm, size), nil
 }
 
-func edgeKey(a, b int) uint64 {
-	if a > b {
-		a, b = b, a
-	}
-	return uint64(a)<<32 | uint64(uint32(b))
-}
-
 // quadratic converts the linear triangulation to the 6-node fem.Mesh.
 func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 	if len(tm.Triangles) == 0 {
@@ -111,9 +104,9 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 			}
 		}
 	}
-	ne := 3 * len(tm.Triangles) / 2
+	ne := 3*len(tm.Triangles)/2 + len(tm.Segments)
 	m := &fem.Mesh{
-		X:          make([][2]float64, nc, nc+ne+len(tm.Segments)),
+		X:          make([][2]float64, nc, nc+ne),
 		NumCorners: nc,
 		Tri:        make([][6]int, len(tm.Triangles)),
 		Labels:     d.Labels(),
@@ -128,59 +121,97 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 	for i, l := range m.Labels {
 		labelOf[l] = i
 	}
-	mark := make(map[uint64]int, len(tm.Segments))
-	for i, s := range tm.Segments {
-		mark[edgeKey(s[0], s[1])] = tm.SegmentMarks[i]
-	}
-	type edgeInfo struct {
-		mid, count, tri, a, b int
-	}
-	edges := make(map[uint64]*edgeInfo, ne+len(tm.Segments))
-	order := make([]uint64, 0, ne+len(tm.Segments))
-	for e, t := range tm.Triangles {
-		var tt [6]int
-		for k := 0; k < 3; k++ {
-			tt[k] = renum[t[k]]
-		}
+	// Edges: bucket every triangle edge under its lower vertex (CSR by
+	// vertex), so that each is found by a short scan; ids in first-seen order.
+	nv := len(tm.Points)
+	start := make([]int32, nv+1)
+	for _, t := range tm.Triangles {
 		for k := 0; k < 3; k++ {
 			a, b := t[k], t[(k+1)%3]
-			key := edgeKey(a, b)
-			info, ok := edges[key]
-			if !ok {
-				x := [2]float64{0.5 * (tm.Points[a][0] + tm.Points[b][0]), 0.5 * (tm.Points[a][1] + tm.Points[b][1])}
-				if mk, on := mark[key]; on {
-					if p := d.PieceOfMark(mk); p != nil && p.Kind == geom.Arc {
-						x = p.Split(tm.Points[a], tm.Points[b])
-					}
-				}
-				info = &edgeInfo{mid: len(m.X), tri: e, a: a, b: b}
-				m.X = append(m.X, x)
-				edges[key] = info
-				order = append(order, key)
-			}
-			info.count++
-			tt[3+k] = info.mid
+			start[min(a, b)+1]++
 		}
-		m.Tri[e] = tt
 	}
-	for _, key := range order {
-		info := edges[key]
-		if info.count > 2 {
-			return nil, fmt.Errorf("mesh: edge (%g, %g)–(%g, %g) belongs to %d triangles", tm.Points[info.a][0], tm.Points[info.a][1], tm.Points[info.b][0], tm.Points[info.b][1], info.count)
+	for i := 0; i < nv; i++ {
+		start[i+1] += start[i]
+	}
+	fill := make([]int32, nv)
+	copy(fill, start[:nv])
+	hiOf := make([]int32, 3*len(tm.Triangles))
+	idOf := make([]int32, 3*len(tm.Triangles))
+	find := func(a, b int) int32 {
+		lo, hi := min(a, b), int32(max(a, b))
+		for j := start[lo]; j < fill[lo]; j++ {
+			if hiOf[j] == hi {
+				return idOf[j]
+			}
 		}
-		if info.count != 1 {
+		return -1
+	}
+	triEdge := make([][3]int32, len(tm.Triangles))
+	var ea, eb, etri []int32
+	var ecount []uint8
+	for e, t := range tm.Triangles {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			id := find(a, b)
+			if id < 0 {
+				id = int32(len(ea))
+				lo := min(a, b)
+				hiOf[fill[lo]] = int32(max(a, b))
+				idOf[fill[lo]] = id
+				fill[lo]++
+				ea = append(ea, int32(a))
+				eb = append(eb, int32(b))
+				etri = append(etri, int32(e))
+				ecount = append(ecount, 0)
+			}
+			if ecount[id] < 255 {
+				ecount[id]++
+			}
+			triEdge[e][k] = id
+		}
+	}
+	emark := make([]int32, len(ea)) // 0: not on a segment
+	for i, sg := range tm.Segments {
+		if id := find(sg[0], sg[1]); id >= 0 {
+			emark[id] = int32(tm.SegmentMarks[i])
+			if emark[id] == 0 {
+				emark[id] = -1 // a segment with mark 0
+			}
+		}
+	}
+	// Midside nodes, in edge order; on the arc for edges on arc pieces.
+	for id := range ea {
+		pa, pb := tm.Points[ea[id]], tm.Points[eb[id]]
+		x := [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
+		if mk := emark[id]; mk > 0 {
+			if p := d.PieceOfMark(int(mk)); p != nil && p.Kind == geom.Arc {
+				x = p.Split(pa, pb)
+			}
+		}
+		m.X = append(m.X, x)
+	}
+	for e, t := range tm.Triangles {
+		m.Tri[e] = [6]int{renum[t[0]], renum[t[1]], renum[t[2]], nc + int(triEdge[e][0]), nc + int(triEdge[e][1]), nc + int(triEdge[e][2])}
+	}
+	for id := range ea {
+		pa, pb := tm.Points[ea[id]], tm.Points[eb[id]]
+		if ecount[id] > 2 {
+			return nil, fmt.Errorf("mesh: edge (%g, %g)–(%g, %g) belongs to %d triangles", pa[0], pa[1], pb[0], pb[1], ecount[id])
+		}
+		if ecount[id] != 1 {
 			continue
 		}
-		mk, on := mark[key]
-		if !on {
-			return nil, fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) lies on no boundary piece", tm.Points[info.a][0], tm.Points[info.a][1], tm.Points[info.b][0], tm.Points[info.b][1])
+		mk := int(emark[id])
+		if mk == 0 {
+			return nil, fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) lies on no boundary piece", pa[0], pa[1], pb[0], pb[1])
 		}
 		p := d.PieceOfMark(mk)
 		if p == nil {
-			return nil, fmt.Errorf("mesh: boundary edge with mark %d of no piece", mk)
+			return nil, fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) has mark %d of no piece", pa[0], pa[1], pb[0], pb[1], mk)
 		}
 		// a→b is the triangle's own counter-clockwise edge: domain on its left.
-		m.Boundary = append(m.Boundary, fem.Edge{A: renum[info.a], B: renum[info.b], Mid: info.mid, Label: labelOf[p.Label], Tri: info.tri})
+		m.Boundary = append(m.Boundary, fem.Edge{A: renum[ea[id]], B: renum[eb[id]], Mid: nc + id, Label: labelOf[p.Label], Tri: int(etri[id])})
 	}
 	for name, i := range g.Named {
 		if i >= len(renum) || renum[i] < 0 {
