@@ -510,30 +510,36 @@ func (lp *gtnLocal) project(u [3]float64) [3]float64 {
 // cuts the increment back.
 var errLocalNewton = errors.New("gtn: local return mapping did not converge")
 
-// solve runs the damped Newton iteration from u = (0, 1, 0). It returns the
-// solution and the evaluation at it; on failure the last accepted iterate.
+// solve runs the local Newton iteration from up to two starting points. It
+// returns the solution and the evaluation at it; on failure the last
+// accepted iterate.
 func (lp *gtnLocal) solve() (u [3]float64, ev gtnEval, err error) {
-	// Predictor: the von Mises radial return with the flow stress of the
+	// First start: the von Mises radial return with the flow stress of the
 	// start of the step, β₀ = A_n/σ_eq^tr, Δp₀ = (1−β₀)σ_eq^tr/(3μ),
-	// Δε_p = 0 (exact for perfectly plastic von Mises); fall back on the
-	// trial point (0, 1, 0) if it is not admissible.
-	u = [3]float64{lp.zeroFlow(0), 1, 0}
+	// Δε_p = 0 (exact for perfectly plastic von Mises). Second start, if
+	// the first is not admissible or its iteration fails: the trial point
+	// (Δε_p, β, Δp) = (0, 1, 0).
 	if seq := math.Sqrt(lp.q); seq > lp.aN {
 		b0 := lp.aN / seq
 		u3 := (1 - b0) * seq / (3 * lp.m.mu)
-		u = [3]float64{lp.zeroFlow(u3), b0, u3}
+		u, ev, err = lp.iterate([3]float64{lp.zeroFlow(u3), b0, u3})
+		if err == nil {
+			return u, ev, nil
+		}
 	}
+	return lp.iterate([3]float64{lp.zeroFlow(0), 1, 0})
+}
+
+// iterate runs the damped, projected Newton iteration from u0.
+func (lp *gtnLocal) iterate(u0 [3]float64) (u [3]float64, ev gtnEval, err error) {
+	u = u0
 	lp.eval(u, &ev)
 	if !ev.ok {
-		u = [3]float64{lp.zeroFlow(0), 1, 0}
-		lp.eval(u, &ev)
-		if !ev.ok {
-			return u, ev, errLocalNewton
-		}
+		return u, ev, errLocalNewton
 	}
 	var trial gtnEval
 	for it := 0; it < newtonMaxIter; it++ {
-		if lp.hist != nil {
+		if lp.hist != nil && lp.nHist < newtonMaxIter {
 			lp.hist[lp.nHist] = ev.normRes
 			lp.nHist++
 		}

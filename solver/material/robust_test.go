@@ -24,7 +24,8 @@ func TestGTNRandomStepsNoNaN(t *testing.T) {
 	close.FBreak = base.FF - 1e-6 // break only at f* within 1e-5 of 1/q₁
 	models := []*GTN{mustGTN(t, base), mustGTN(t, nuc), mustGTN(t, reg), mustGTN(t, close)}
 	// Steps up to ten times the yield strain (2e-3) must always converge;
-	// larger ones may fail rarely (the solver then cuts back).
+	// larger ones (up to 50×) may fail rarely, here at most 1 in 1000 (the
+	// solver then cuts back).
 	n, fails := 0, 0
 	for trial := 0; trial < 4000; trial++ {
 		m := models[trial%len(models)]
@@ -71,7 +72,7 @@ func TestGTNRandomStepsNoNaN(t *testing.T) {
 		}
 	}
 	t.Logf("%d random updates, %d local failures", n, fails)
-	if fails > n/100 {
+	if fails > n/1000 {
 		t.Errorf("%d of %d random updates failed", fails, n)
 	}
 }
