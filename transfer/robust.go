@@ -8,14 +8,14 @@ import (
 // ccwErrBound is the relative error bound of the floating-point orientation
 // determinant evaluated as in orient (Shewchuk 1997, Discrete Comput. Geom.
 // 18, ccwerrboundA = (3 + 16ε)ε with ε = 2⁻⁵³).
-var ccwErrBound = (3 + 16*epsilon) * epsilon
+const ccwErrBound = (3 + 16*epsilon) * epsilon
 
 const epsilon = 1.0 / (1 << 53)
 
 // minSafe is 2⁻⁹⁶⁹: products at least this large are normal numbers whose
 // fused-multiply-add error terms are exact, and Shewchuk's relative bound
 // holds for them.
-var minSafe = math.Ldexp(1, -969)
+const minSafe = 0x1p-969
 
 // orient returns a value whose sign is the exact sign of the orientation
 // determinant of a, b, c: positive when they turn counter-clockwise, zero
