@@ -130,3 +130,44 @@ func hdLog(c [4]hd, spectral bool) [4]hd {
 	}
 	return hdLogSeries(c)
 }
+
+// complexDLogSpectral returns ∂E/∂C (Sym convention, C₁₂ one variable) for
+// complex C by the closed-form derivative of an isotropic tensor function in
+// terms of the eigenprojections (Miehe, Apel & Lambrecht 2002; Carlson &
+// Hoger 1986, Q. Appl. Math. 44):
+//
+//	∂f(C)/∂C = Σₐ f′(λₐ) Pₐ⊗Pₐ + θ (P₁⊠P₂ + P₂⊠P₁),  θ = (f(λ₁)−f(λ₂))/(λ₁−λ₂),
+//
+// with (A⊠B)ᵢⱼₖₗ = ½(AᵢₖBⱼₗ + AᵢₗBⱼₖ); the 12 column counts C₁₂ and C₂₁.
+func complexDLogSpectral(c [4]complex128) [4][4]complex128 {
+	a, b, s := c[0], c[1], c[3]
+	m := (a + b) / 2
+	d := (a - b) / 2
+	r := cmplx.Sqrt(d*d + s*s)
+	l1, l2 := m+r, m-r
+	f1, f2 := cmplx.Log(l1)/2, cmplx.Log(l2)/2
+	g1, g2 := 1/(2*l1), 1/(2*l2)
+	th := (f1 - f2) / (l1 - l2)
+	p1 := [2][2]complex128{{(a - l2) / (2 * r), s / (2 * r)}, {s / (2 * r), (b - l2) / (2 * r)}}
+	p2 := [2][2]complex128{{1 - p1[0][0], -p1[0][1]}, {-p1[1][0], 1 - p1[1][1]}}
+	t4 := func(i, j, k, l int) complex128 {
+		return g1*p1[i][j]*p1[k][l] + g2*p2[i][j]*p2[k][l] +
+			th*0.5*(p1[i][k]*p2[j][l]+p1[i][l]*p2[j][k]+p2[i][k]*p1[j][l]+p2[i][l]*p1[j][k])
+	}
+	pairs := [4][2]int{{0, 0}, {1, 1}, {-1, -1}, {0, 1}}
+	var D [4][4]complex128
+	for I, pi := range pairs {
+		for J, pj := range pairs {
+			if pi[0] < 0 || pj[0] < 0 {
+				continue
+			}
+			v := t4(pi[0], pi[1], pj[0], pj[1])
+			if pj[0] != pj[1] {
+				v *= 2
+			}
+			D[I][J] = v
+		}
+	}
+	D[2][2] = 1 / (2 * c[2])
+	return D
+}

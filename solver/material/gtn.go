@@ -147,10 +147,19 @@ func (p *GTNParams) BreakPorosity() float64 {
 //
 // with f from the exact integral of the matrix volume balance,
 // 1 − f = (1 − f_n − A_N Δp) exp(−Δε_p), so that without nucleation
-// (1 − f) exp(tr Eᵖ) is conserved to rounding. The logarithmic form of the
-// yield condition is evaluated without overflow for any σ_m/A and is nearly
-// linear in σ_m where cosh is steep, which keeps the damped Newton robust up
-// to f* → 1/q₁.
+// (1 − f) exp(tr Eᵖ) is conserved to rounding (nucleation is added before
+// growth within the step). The logarithmic form of the yield condition is
+// evaluated without overflow for any σ_m/A and is nearly linear in σ_m where
+// cosh is steep. When f_n > 0 the first unknown is ln f instead of Δε_p, so
+// that f stays positive and small porosities under high pressure are
+// resolved to relative precision. The Newton iteration is damped
+// (backtracking on the residual norm), projected onto the sign bounds
+// (Δε_p has the sign of σ_m, 0 < β, Δp ≥ 0, f < f_F), starts from the von
+// Mises radial return and, if that fails, from the trial point; it stops
+// one step after the scaled residual falls below 1e-10, so the state is
+// converged to rounding and the tangent is exact. The consistent tangent
+// follows from the implicit-function theorem on the converged system.
+// When the iteration reaches f ≥ f_break the point is broken.
 type GTN struct {
 	par                 GTNParams
 	lambda, mu, bulk    float64
