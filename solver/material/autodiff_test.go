@@ -12,23 +12,28 @@ import (
 // Both are written from the textbook eigen-decomposition, independently of
 // the invariant form in logstrain.go.
 
-// complexLogSpectral returns ½ ln C for complex components, from the explicit
-// eigenvalues λ₁,₂ = m ± r and the projection P₁ = (C − λ₂I)/(λ₁ − λ₂).
-func complexLogSpectral(c [4]complex128) [4]complex128 {
+// complexEigen2 returns the eigenvalues λ₁,₂ = m ± r of the complex in-plane
+// block and the projection P₁ = (C − λ₂I)/(λ₁ − λ₂).
+func complexEigen2(c [4]complex128) (l1, l2 complex128, p1 [2][2]complex128) {
 	a, b, s := c[0], c[1], c[3]
 	m := (a + b) / 2
 	d := (a - b) / 2
 	r := cmplx.Sqrt(d*d + s*s)
-	l1, l2 := m+r, m-r
+	l1, l2 = m+r, m-r
+	p1 = [2][2]complex128{{(a - l2) / (2 * r), s / (2 * r)}, {s / (2 * r), (b - l2) / (2 * r)}}
+	return l1, l2, p1
+}
+
+// complexLogSpectral returns ½ ln C for complex components by the spectral
+// sum ½ ln λ₁ P₁ + ½ ln λ₂ (I − P₁).
+func complexLogSpectral(c [4]complex128) [4]complex128 {
+	l1, l2, p1 := complexEigen2(c)
 	f1, f2 := cmplx.Log(l1)/2, cmplx.Log(l2)/2
-	p11 := (a - l2) / (2 * r)
-	p22 := (b - l2) / (2 * r)
-	p12 := s / (2 * r)
 	return [4]complex128{
-		f2 + (f1-f2)*p11,
-		f2 + (f1-f2)*p22,
+		f2 + (f1-f2)*p1[0][0],
+		f2 + (f1-f2)*p1[1][1],
 		cmplx.Log(c[2]) / 2,
-		(f1 - f2) * p12,
+		(f1 - f2) * p1[0][1],
 	}
 }
 
@@ -140,15 +145,10 @@ func hdLog(c [4]hd, spectral bool) [4]hd {
 //
 // with (A⊠B)ᵢⱼₖₗ = ½(AᵢₖBⱼₗ + AᵢₗBⱼₖ); the 12 column counts C₁₂ and C₂₁.
 func complexDLogSpectral(c [4]complex128) [4][4]complex128 {
-	a, b, s := c[0], c[1], c[3]
-	m := (a + b) / 2
-	d := (a - b) / 2
-	r := cmplx.Sqrt(d*d + s*s)
-	l1, l2 := m+r, m-r
+	l1, l2, p1 := complexEigen2(c)
 	f1, f2 := cmplx.Log(l1)/2, cmplx.Log(l2)/2
 	g1, g2 := 1/(2*l1), 1/(2*l2)
 	th := (f1 - f2) / (l1 - l2)
-	p1 := [2][2]complex128{{(a - l2) / (2 * r), s / (2 * r)}, {s / (2 * r), (b - l2) / (2 * r)}}
 	p2 := [2][2]complex128{{1 - p1[0][0], -p1[0][1]}, {-p1[1][0], 1 - p1[1][1]}}
 	t4 := func(i, j, k, l int) complex128 {
 		return g1*p1[i][j]*p1[k][l] + g2*p2[i][j]*p2[k][l] +
