@@ -245,9 +245,10 @@ func TestNeedRemeshRareAfterRemesh(t *testing.T) {
 	zone := field.Zone()
 	to := DefaultTriggerOptions(1)
 	grown := 0.0
+	gp := gaussPoints(m, 0.001)
 	for da := 0.0; da < 20; da += 0.25 {
 		cur := Tip{X: [2]float64{10 + da, 0}, Dir: [2]float64{1, 0}}
-		dec, err := NeedRemesh(m, gaussPoints(m, 0.001), []Tip{cur}, &zone, 0, to)
+		dec, err := NeedRemesh(m, gp, []Tip{cur}, &zone, 0, to)
 		if err != nil {
 			t.Fatal(err)
 		}

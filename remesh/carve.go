@@ -22,6 +22,11 @@ type CarveOptions struct {
 	// Simplify·h(x) of the simplified line, h the new size field (≥ 0;
 	// 0 keeps every vertex that is not collinear).
 	Simplify float64
+	// MinCorner is the smallest corner angle (degrees, inside the
+	// material) simplification may create where the unsimplified boundary
+	// had a larger one: the mesher cannot make angles larger than the
+	// corners it is given (Shewchuk 2002, Comput. Geom. 22). In [0, 90).
+	MinCorner float64
 	// MatchTol is the distance, relative to the original domain's size, within
 	// which a mesh boundary edge (both ends and its midside node) is taken to
 	// lie on a piece of the original domain (> 0).
@@ -29,14 +34,20 @@ type CarveOptions struct {
 }
 
 // DefaultCarveOptions returns Simplify = 0.5 (half the local size: the
-// zigzag of a crack face cut from a triangulation is below one element) and
-// MatchTol = 1e-8.
-func DefaultCarveOptions() CarveOptions { return CarveOptions{Simplify: 0.5, MatchTol: 1e-8} }
+// zigzag of a crack face cut from a triangulation is below one element),
+// MinCorner = 40° (above the mesher's default angle bound of 28° with a
+// margin) and MatchTol = 1e-8.
+func DefaultCarveOptions() CarveOptions {
+	return CarveOptions{Simplify: 0.5, MinCorner: 40, MatchTol: 1e-8}
+}
 
 // Validate checks the options.
 func (o *CarveOptions) Validate() error {
 	if !(o.Simplify >= 0) || math.IsInf(o.Simplify, 0) {
 		return fmt.Errorf("remesh: carve option Simplify = %g must be finite and ≥ 0", o.Simplify)
+	}
+	if !(o.MinCorner >= 0 && o.MinCorner < 90) {
+		return fmt.Errorf("remesh: carve option MinCorner = %g° must be in [0, 90)", o.MinCorner)
 	}
 	if !(o.MatchTol > 0) || o.MatchTol >= 1e-2 {
 		return fmt.Errorf("remesh: carve option MatchTol = %g must be in (0, 0.01)", o.MatchTol)
@@ -749,6 +760,9 @@ func (c *carver) simplify() error {
 	for iter := 0; iter < 10000; iter++ {
 		bad := c.badSpans()
 		if len(bad) == 0 {
+			bad = c.sharpSpans()
+		}
+		if len(bad) == 0 {
 			return nil
 		}
 		for _, s := range bad {
@@ -955,6 +969,79 @@ func (c *carver) badSpans() []span {
 		}
 	}
 	return bad
+}
+
+// sharpSpans returns the simplified chords next to a kept vertex whose
+// corner angle inside the material fell below MinCorner and below the
+// angle the unsimplified boundary makes there.
+func (c *carver) sharpSpans() []span {
+	var bad []span
+	lim := c.opt.MinCorner
+	for li := range c.loops {
+		l := &c.loops[li]
+		sp := c.spans(li)
+		n := len(l.v)
+		for q := range sp {
+			in, out := sp[(q+len(sp)-1)%len(sp)], sp[q]
+			k := out.i
+			x := c.m.X[l.v[k]]
+			// directions leaving the vertex backwards and forwards
+			u := c.spanDir(in, false)
+			v := c.spanDir(out, true)
+			now := cornerDeg(u, v)
+			p0, n0 := c.m.X[l.v[(k+n-1)%n]], c.m.X[l.v[(k+1)%n]]
+			was := cornerDeg([2]float64{p0[0] - x[0], p0[1] - x[1]}, [2]float64{n0[0] - x[0], n0[1] - x[1]})
+			if now >= lim || now >= was-0.5 {
+				continue
+			}
+			for _, s := range []span{in, out} {
+				if len(l.interior(s.i, s.j)) > 0 {
+					bad = append(bad, s)
+				}
+			}
+		}
+	}
+	return bad
+}
+
+// spanDir returns the direction of span s leaving its start (start true)
+// or leaving its end backwards: along the chord, or along the tangent of
+// the original arc the span lies on.
+func (c *carver) spanDir(s span, start bool) [2]float64 {
+	l := &c.loops[s.loop]
+	a, b := c.m.X[l.v[s.i]], c.m.X[l.v[s.j]]
+	if pc := l.pc[s.i]; pc >= 0 {
+		if p, _, _ := c.orig.Piece(pc); p.Kind == geom.Arc {
+			x := b
+			if start {
+				x = a
+			}
+			t := [2]float64{-(x[1] - p.Centre[1]), x[0] - p.Centre[0]} // counter-clockwise tangent
+			if p.CW {
+				t = [2]float64{-t[0], -t[1]}
+			}
+			if start {
+				return t
+			}
+			return [2]float64{-t[0], -t[1]}
+		}
+	}
+	if start {
+		return [2]float64{b[0] - a[0], b[1] - a[1]}
+	}
+	return [2]float64{a[0] - b[0], a[1] - b[1]}
+}
+
+// cornerDeg returns the corner angle in degrees inside the material at a
+// boundary vertex, given the directions back along the incoming edge (u)
+// and forward along the outgoing one (v): the material lies on the left of
+// the boundary, so the angle runs counter-clockwise from v to u.
+func cornerDeg(u, v [2]float64) float64 {
+	a := math.Atan2(v[0]*u[1]-v[1]*u[0], v[0]*u[0]+v[1]*u[1]) * 180 / math.Pi
+	if a < 0 {
+		a += 360
+	}
+	return a
 }
 
 // segmentsClash reports whether segments p1–p2 (nodes a1, a2) and q1–q2

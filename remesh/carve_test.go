@@ -2,6 +2,9 @@ package remesh
 
 import (
 	"math"
+	"math/rand/v2"
+	"os"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -784,4 +787,177 @@ func BenchmarkCarve(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(len(s.m0.Tri)), "old-triangles")
+}
+
+func TestCarveRandomDamage(t *testing.T) {
+	// Random clusters of broken elements around the tip of the SSY disk
+	// (blobs, isolated elements, clusters touching the symmetry plane and
+	// the crack faces): every carve must give a valid domain that meshes
+	// into a valid mesh with the mesher's angle bound (Shewchuk 2002,
+	// Comput. Geom. 22: ≥ 20° away from small input angles).
+	s := newSSYSetup(t, 10, 1, 0.2, 0, 0)
+	rng := rand.New(rand.NewPCG(11, 12))
+	n := 12
+	if v := os.Getenv("TEARLINE_CARVE_TRIALS"); v != "" {
+		n, _ = strconv.Atoi(v)
+	}
+	if testing.Short() {
+		n = 4
+	}
+	for trial := 0; trial < n; trial++ {
+		type disc struct{ x, y, r float64 }
+		var ds []disc
+		for k := 0; k < 1+rng.IntN(4); k++ {
+			ds = append(ds, disc{rng.Float64()*2 - 0.5, rng.Float64() * 0.6, 0.05 + 0.25*rng.Float64()})
+		}
+		broken := breakWhere(s.m0, func(x, y float64) bool {
+			for _, d := range ds {
+				if math.Hypot(x-d.x, y-d.y) < d.r {
+					return true
+				}
+			}
+			return false
+		})
+		for k := 0; k < 5; k++ { // isolated broken elements near the tip
+			broken[rng.IntN(len(broken))] = true
+		}
+		tip := Tip{Name: "tip", X: [2]float64{ds[0].x + ds[0].r, ds[0].y}, Dir: [2]float64{1, 0.2}}
+		f, err := NewTipField([]Tip{tip}, nil, nil, s.fo)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c, err := Carve(s.m0, broken, s.d, []Tip{tip}, f.At, DefaultCarveOptions())
+		if err != nil {
+			t.Fatalf("trial %d (discs %v): %v", trial, ds, err)
+		}
+		m, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+		if err != nil {
+			t.Fatalf("trial %d (discs %v): mesh: %v", trial, ds, err)
+		}
+		if err := m.Check(); err != nil {
+			t.Fatalf("trial %d: %v", trial, err)
+		}
+		if rep.MinAngleDeg < 20 {
+			t.Errorf("trial %d (discs %v): minimum angle %.2f°", trial, ds, rep.MinAngleDeg)
+		}
+		if math.Abs(c.Domain.Area()-c.Area) > 0.05*c.Area {
+			t.Errorf("trial %d: carved area %g differs from the kept triangles' %g by more than 5%%", trial, c.Domain.Area(), c.Area)
+		}
+	}
+}
+
+func TestCarveTurningPaths(t *testing.T) {
+	// Cracks that leave the symmetry plane: from every tip of a domain a
+	// band of broken elements follows a path that turns at a random rate;
+	// the tips move to the ends of the paths, turned. Domains: the full SSY
+	// disk with a blunt tip (one tip) and the DENT plate (two tips growing
+	// towards each other). Every carve must mesh into a valid mesh with
+	// the angle bound, and the fine zone must contain each new tip.
+	ssy, err := geom.SSY{Radius: 10, TipRadius: 0.05, Full: true}.Domain()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dent, err := geom.DENT{Width: 10, Height: 20, NotchDepth: 2, TipRadius: 0.1}.Domain()
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(13, 14))
+	n := 6
+	if v := os.Getenv("TEARLINE_CARVE_TRIALS"); v != "" {
+		n, _ = strconv.Atoi(v)
+	}
+	for _, dc := range []struct {
+		name string
+		d    *geom.Domain
+		ell  float64
+	}{{"ssy", ssy, 0.2}, {"dent", dent, 0.2}} {
+		fo := DefaultFollowOptions(dc.ell, 1)
+		var tips0 []Tip
+		for _, name := range dc.d.Tips() {
+			p := dc.d.Points[name]
+			tips0 = append(tips0, Tip{Name: name, X: p.X, Dir: p.Dir})
+		}
+		f0, err := NewTipField(tips0, nil, nil, fo)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m0, _, err := MeshDomain(dc.d, f0.At, MeshOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for trial := 0; trial < n; trial++ {
+			var paths [][][2]float64
+			var tips []Tip
+			for _, t0 := range tips0 {
+				ang := math.Atan2(t0.Dir[1], t0.Dir[0])
+				rate := (rng.Float64()*2 - 1) * 1.2 // turning rate, rad per unit length
+				x := t0.X
+				path := [][2]float64{x}
+				for s := 0.0; s < 1.5; s += 0.02 {
+					ang += rate * 0.02
+					x = [2]float64{x[0] + 0.02*math.Cos(ang), x[1] + 0.02*math.Sin(ang)}
+					path = append(path, x)
+				}
+				paths = append(paths, path)
+				tips = append(tips, Tip{Name: t0.Name, X: x, Dir: [2]float64{math.Cos(ang), math.Sin(ang)}})
+			}
+			half := 0.05 + 0.1*rng.Float64()
+			broken := breakWhere(m0, func(x, y float64) bool {
+				for _, p := range paths {
+					for i := 1; i < len(p); i++ {
+						if segDistance([2]float64{x, y}, p[i-1], p[i]) < half {
+							return true
+						}
+					}
+				}
+				return false
+			})
+			f, err := NewTipField(tips, nil, nil, fo)
+			if err != nil {
+				t.Fatal(err)
+			}
+			c, err := Carve(m0, broken, dc.d, tips, f.At, DefaultCarveOptions())
+			if err != nil {
+				t.Fatalf("%s trial %d: %v", dc.name, trial, err)
+			}
+			m, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+			if err != nil {
+				t.Fatalf("%s trial %d: mesh: %v", dc.name, trial, err)
+			}
+			if err := m.Check(); err != nil {
+				t.Fatalf("%s trial %d: %v", dc.name, trial, err)
+			}
+			if rep.MinAngleDeg < 20 {
+				t.Errorf("%s trial %d: minimum angle %.2f°", dc.name, trial, rep.MinAngleDeg)
+			}
+			z := f.Zone()
+			for _, tp := range tips {
+				p, ok := c.Domain.Points[tp.Name]
+				if !ok || !p.Tip {
+					t.Fatalf("%s trial %d: tip %q lost", dc.name, trial, tp.Name)
+				}
+				if z.Depth(p.X) < fo.Width*dc.ell-2*half {
+					t.Errorf("%s trial %d: tip %q at %v only %g inside the new zone", dc.name, trial, tp.Name, p.X, z.Depth(p.X))
+				}
+			}
+		}
+	}
+}
+
+func TestCornerDeg(t *testing.T) {
+	// Corners of a counter-clockwise square (90° inside) and of its
+	// clockwise hole reading (270°), a 45° wedge (elementary geometry).
+	for _, c := range []struct {
+		u, v [2]float64
+		want float64
+	}{
+		{[2]float64{-1, 0}, [2]float64{0, 1}, 90},
+		{[2]float64{0, 1}, [2]float64{-1, 0}, 270},
+		{[2]float64{1, 1}, [2]float64{1, 0}, 45},
+		{[2]float64{-1, 0}, [2]float64{1, 0}, 180},
+	} {
+		if got := cornerDeg(c.u, c.v); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("corner of u %v, v %v: %g°, want %g°", c.u, c.v, got, c.want)
+		}
+	}
 }
