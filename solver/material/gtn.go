@@ -313,6 +313,9 @@ type gtnLocal struct {
 	// f_n > 0): it keeps f > 0 and resolves small porosities under high
 	// pressure, where Δε_p fixes f only to an absolute rounding error.
 	logF bool
+	// sgn is the sign of σ_m^tr, 0 when it is at the rounding level of the
+	// trial stress.
+	sgn float64
 }
 
 // gtnEval is the local problem evaluated at u = (Δε_p or ln f, β, Δp).
@@ -370,10 +373,11 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		return
 	}
 	// The volumetric plastic strain has the sign of σ_m, and σ_m keeps
-	// the sign of its trial value during the return (a wrong sign at the
-	// rounding level of ln f is tolerated).
+	// the sign of its trial value during the return (wrong signs at the
+	// rounding level are tolerated; a trial σ_m at rounding level has no
+	// sign).
 	sm := lp.smTr - m.bulk*u1
-	if sm*lp.smTr < 0 || u1*lp.smTr < -1e-15*math.Abs(lp.smTr) {
+	if lp.sgn != 0 && (sm*lp.sgn < -1e-12*A || u1*lp.sgn < -1e-15) {
 		return
 	}
 	fs, dfs := par.FStar(f)
@@ -509,7 +513,7 @@ func (lp *gtnLocal) project(u [3]float64) [3]float64 {
 	u[2] = math.Max(u[2], 0)
 	z := lp.zeroFlow(u[2])
 	// Δε_p increases with u₀ in both parametrisations.
-	if (u[0]-z)*lp.smTr < 0 {
+	if (u[0]-z)*lp.sgn < 0 {
 		u[0] = z
 	}
 	return u
@@ -657,6 +661,9 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 	}
 	lp := gtnLocal{m: m, smTr: smTr, q: q, pN: old.P, fN: old.F, abar: in.Abar, lamb: in.Lambda, aN: aN, hist: hist,
 		logF: old.F > 0}
+	if math.Abs(smTr) > 1e-13*(math.Abs(smTr)+math.Sqrt(q)+aN) {
+		lp.sgn = math.Copysign(1, smTr)
+	}
 	u, ev, err := lp.solve()
 	if nHist != nil {
 		*nHist = lp.nHist

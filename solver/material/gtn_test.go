@@ -925,3 +925,45 @@ func TestGTNBadInputErrors(t *testing.T) {
 		}
 	}
 }
+
+// Reference: strain-controlled nucleation (Chu & Needleman 1980): with the
+// normal-distribution rate A_N(p) = f_N/(s_N√(2π)) exp(−½((p−ε_N)/s_N)²) the
+// nucleated porosity after p is (f_N/2)[erf((p−ε_N)/(s_N√2)) +
+// erf(ε_N/(s_N√2))]. Under pure shear (σ_m = 0) voids do not grow, so f − f₀
+// is the nucleated part alone: each backward-Euler step adds exactly
+// A_N(p_{n+1})Δp, and the sum approaches the erf closed form as the steps
+// shrink (rectangle rule, error O(Δp)).
+func TestGTNNucleationShear(t *testing.T) {
+	par := DefaultGTN()
+	par.F0 = 0.001
+	par.FN, par.SN, par.EpsN = 0.04, 0.1, 0.3
+	par.Hardening = PerfectlyPlastic{Sigma0: 400}
+	m := mustGTN(t, par)
+	closed := func(p float64) float64 {
+		s := par.SN * math.Sqrt2
+		return 0.5 * par.FN * (math.Erf((p-par.EpsN)/s) + math.Erf(par.EpsN/s))
+	}
+	st := m.Initial()
+	for k := 1; k <= 1200; k++ {
+		nw, out, err := gtnStep(m, Sym{0, 0, 0, 5e-4 * float64(k)}, 0, 0, st)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(out.T.Trace()) > 1e-9 {
+			t.Fatalf("step %d: mean stress %g in pure shear", k, out.T.Trace()/3)
+		}
+		aN, _ := m.nucleation(nw.P)
+		if want := st.F + aN*(nw.P-st.P); math.Abs(nw.F-want) > 1e-15 {
+			t.Errorf("step %d: f = %.16g, f_n + A_N Δp = %.16g", k, nw.F, want)
+		}
+		st = nw
+	}
+	if st.P < 0.6 {
+		t.Fatalf("p = %g, want the nucleation range covered", st.P)
+	}
+	got, want := st.F-par.F0, closed(st.P)
+	if math.Abs(got-want) > 0.01*want {
+		t.Errorf("nucleated porosity %g at p = %g, erf closed form %g", got, st.P, want)
+	}
+	t.Logf("nucleated f %.6g, closed form %.6g (p = %.4g)", got, want, st.P)
+}
