@@ -318,10 +318,12 @@ func TestMeshDegenerate(t *testing.T) {
 	}
 }
 
-// randomPolygon returns a star-shaped polygon (valid) or, when scramble is
-// set, the same vertices in a random order (usually self-intersecting),
-// with some edges replaced by arcs.
-func randomPolygon(rng *rand.Rand, n int, scramble, arcs bool) *geom.Domain {
+// randomPolygon returns a star-shaped polygon about the origin (valid) or,
+// when scramble is set, the same vertices in a random order (usually
+// self-intersecting), with some edges replaced by arcs. The bits of extra
+// add: 1 a round hole at the origin, 2 collinear vertices on some edges,
+// 4 a vertex 1e-7 from its neighbour (nearly coincident).
+func randomPolygon(rng *rand.Rand, n int, scramble, arcs bool, extra uint8) *geom.Domain {
 	pts := make([][2]float64, n)
 	for i := range pts {
 		a := 2 * math.Pi * (float64(i) + 0.8*rng.Float64()) / float64(n)
@@ -331,10 +333,23 @@ func randomPolygon(rng *rand.Rand, n int, scramble, arcs bool) *geom.Domain {
 	if scramble {
 		rng.Shuffle(n, func(i, j int) { pts[i], pts[j] = pts[j], pts[i] })
 	}
+	if extra&4 != 0 {
+		k := rng.Intn(n)
+		q := pts[k]
+		pts = append(pts[:k+1], append([][2]float64{{q[0] * (1 + 1e-7), q[1] * (1 + 1e-7)}}, pts[k+1:]...)...)
+		n++
+	}
 	var l geom.Loop
 	for i := range pts {
 		a, b := pts[i], pts[(i+1)%n]
-		p := geom.Piece{Kind: geom.Line, A: a, B: b, Label: fmt.Sprintf("e%d", i%3)}
+		lab := fmt.Sprintf("e%d", i%3)
+		if extra&2 != 0 && rng.Intn(2) == 0 {
+			// a run of collinear pieces
+			m := [2]float64{a[0] + 0.37*(b[0]-a[0]), a[1] + 0.37*(b[1]-a[1])}
+			l = append(l, geom.Piece{Kind: geom.Line, A: a, B: m, Label: lab})
+			a = m
+		}
+		p := geom.Piece{Kind: geom.Line, A: a, B: b, Label: lab}
 		if arcs && rng.Intn(3) == 0 {
 			// a shallow arc bulging outwards: centre on the inner side
 			m := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
@@ -346,18 +361,26 @@ func randomPolygon(rng *rand.Rand, n int, scramble, arcs bool) *geom.Domain {
 		}
 		l = append(l, p)
 	}
-	return &geom.Domain{Outer: l}
+	d := &geom.Domain{Outer: l}
+	if extra&1 != 0 {
+		r := 0.05 + 0.1*rng.Float64()
+		d.Holes = []geom.Loop{{
+			{Kind: geom.Arc, A: [2]float64{0, r}, B: [2]float64{0, -r}, Radius: r, CW: true, Label: "hole"},
+			{Kind: geom.Arc, A: [2]float64{0, -r}, B: [2]float64{0, r}, Radius: r, CW: true, Label: "hole"},
+		}}
+	}
+	return d
 }
 
 // FuzzDomain meshes random polygons: each ends in a valid mesh or a clear
 // error, never a panic or an endless loop (MaxPoints bounds the work).
 func FuzzDomain(f *testing.F) {
-	for s := int64(0); s < 12; s++ {
-		f.Add(s, uint8(3+s), s%3 == 0, s%2 == 0, uint8(s))
+	for s := int64(0); s < 16; s++ {
+		f.Add(s, uint8(3+s), s%3 == 0, s%2 == 0, uint8(s), uint8(s%8))
 	}
-	f.Fuzz(func(t *testing.T, seed int64, n uint8, scramble, arcs bool, hk uint8) {
+	f.Fuzz(func(t *testing.T, seed int64, n uint8, scramble, arcs bool, hk uint8, extra uint8) {
 		rng := rand.New(rand.NewSource(seed))
-		d := randomPolygon(rng, 3+int(n%20), scramble, arcs)
+		d := randomPolygon(rng, 3+int(n%20), scramble, arcs, extra)
 		hv := 0.02 + 0.3*float64(hk)/255
 		size := func(x, y float64) float64 { return hv * (1 + math.Abs(x)) }
 		d.Orient()
