@@ -304,3 +304,39 @@ func TestPolygonOrientsAndSplits(t *testing.T) {
 		t.Errorf("split point %v at radius %.17g, want %v on the arc", m, r, hp.At(0.25))
 	}
 }
+
+func TestDiscretiseRefinesCrossingChords(t *testing.T) {
+	// A half disk of radius 10 with a small hole just inside its arc: at the
+	// coarsest chords (22.5°) the hole sticks out through a chord, whose
+	// sagitta is R(1 − cos 11.25°) ≈ 0.19 (elementary geometry), so the arc
+	// must be split further.
+	a := 33.75 * math.Pi / 180
+	c := [2]float64{9.85 * math.Cos(a), 9.85 * math.Sin(a)}
+	r := 0.05
+	d := &Domain{
+		Outer: Loop{
+			line([2]float64{-10, 0}, [2]float64{10, 0}, "base"),
+			arc([2]float64{0, 0}, [2]float64{10, 0}, [2]float64{-10, 0}, false, "arc"),
+		},
+		Holes: []Loop{{
+			arc(c, [2]float64{c[0], c[1] + r}, [2]float64{c[0], c[1] - r}, true, "hole"),
+			arc(c, [2]float64{c[0], c[1] - r}, [2]float64{c[0], c[1] + r}, true, "hole"),
+		}},
+	}
+	g, err := d.Discretise(func(x, y float64) float64 { return 50 })
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, _, crossing := crossingSegments(g, 1e-9*d.Scale()); crossing {
+		t.Fatal("chords still cross")
+	}
+	arcSegs := 0
+	for _, m := range g.SegmentMarks {
+		if m == 2 {
+			arcSegs++
+		}
+	}
+	if arcSegs <= 8 {
+		t.Errorf("outer arc kept %d chords; the crossing needs more than 8", arcSegs)
+	}
+}
