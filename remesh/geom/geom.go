@@ -389,10 +389,9 @@ func (p *Piece) box() (lo, hi [2]float64) {
 	if p.Kind != Arc {
 		return lo, hi
 	}
-	for k, ang := range []float64{0, math.Pi / 2, math.Pi, -math.Pi / 2} {
+	for _, ang := range []float64{0, math.Pi / 2, math.Pi, -math.Pi / 2} {
 		if p.onArcAngle(ang, 0) {
 			x := [2]float64{p.Centre[0] + p.Radius*math.Cos(ang), p.Centre[1] + p.Radius*math.Sin(ang)}
-			_ = k
 			for j := 0; j < 2; j++ {
 				lo[j] = math.Min(lo[j], x[j])
 				hi[j] = math.Max(hi[j], x[j])
