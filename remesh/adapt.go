@@ -27,8 +27,10 @@ type TriggerOptions struct {
 	// Length is the internal length ℓ (> 0).
 	Length float64
 	// Margin: remesh when a tip or a front point comes within Margin·ℓ of
-	// the edge of the fine zone (> 0). With the default zone (6ℓ ahead)
-	// and margin 2ℓ a remesh follows about every 4ℓ of growth.
+	// the edge of the fine zone (> 0). With the default zone (edge 8ℓ
+	// ahead of the tip) and margin 1.5ℓ a remesh follows about every 6ℓ
+	// of growth. The zone's half-width beside the tip must exceed the
+	// margin plus the damage band's half-width, or the flanks trigger.
 	Margin float64
 	// FrontLevel is the porosity on the damage front, f_front (default
 	// 2·f_c = 0.3 for f_c = 0.15, Tvergaard & Needleman 1984, Acta Metall.
@@ -51,11 +53,11 @@ type TriggerOptions struct {
 }
 
 // DefaultTriggerOptions returns the defaults for internal length ell:
-// margin 2ℓ, front level 0.3, wake 1ℓ, alert levels f ≥ 0.02 and p ≥ 0.1
+// margin 1.5ℓ, front level 0.3, wake 1ℓ, alert levels f ≥ 0.02 and p ≥ 0.1
 // (common practice: well above f₀ and the elastic range, well below the
 // front), size tolerance 1.5, at most 200 remeshes.
 func DefaultTriggerOptions(ell float64) TriggerOptions {
-	return TriggerOptions{Length: ell, Margin: 2, FrontLevel: 0.3, Wake: 1,
+	return TriggerOptions{Length: ell, Margin: 1.5, FrontLevel: 0.3, Wake: 1,
 		FAlert: 0.02, PAlert: 0.1, SizeTol: 1.5, MaxRemesh: 200}
 }
 

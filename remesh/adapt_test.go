@@ -2,9 +2,11 @@ package remesh
 
 import (
 	"math"
+	"os"
 	"strings"
 	"testing"
 
+	"tearline/remesh/geom"
 	"tearline/solver/fem"
 	"tearline/solver/material"
 )
@@ -107,7 +109,7 @@ func TestNeedRemeshFront(t *testing.T) {
 	// line on the axis is x = 17 (capsule geometry, by definition).
 	m := structMesh(0, -10, 40, 10, 80, 40)
 	fo := DefaultFollowOptions(1, 4)
-	fo.Width, fo.Spread = 3, 3
+	fo.Ahead, fo.Behind, fo.Width, fo.Spread = 6, 2, 3, 3
 	tip := Tip{Name: "tip", X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
 	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
 	if err != nil {
@@ -115,6 +117,7 @@ func TestNeedRemeshFront(t *testing.T) {
 	}
 	zone := field.Zone()
 	to := DefaultTriggerOptions(1)
+	to.Margin = 2
 	to.FAlert, to.PAlert = 0, 0 // this test checks the front alone
 	a, b := zone.Pieces[0].A, zone.Pieces[0].B
 	for _, c := range []struct {
@@ -300,7 +303,7 @@ func TestNeedRemeshSeveralTips(t *testing.T) {
 	// its own; the trigger fires as soon as either tip nears its zone's end.
 	m := structMesh(-30, -10, 30, 10, 60, 20)
 	fo := DefaultFollowOptions(1, 4)
-	fo.Width, fo.Spread = 3, 3
+	fo.Ahead, fo.Behind, fo.Width, fo.Spread = 6, 2, 3, 3
 	t0 := []Tip{{Name: "right", X: [2]float64{2, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{-2, 0}, Dir: [2]float64{-1, 0}}}
 	field, err := NewTipField(t0, nil, nil, fo)
 	if err != nil {
@@ -308,6 +311,7 @@ func TestNeedRemeshSeveralTips(t *testing.T) {
 	}
 	zone := field.Zone()
 	to := DefaultTriggerOptions(1)
+	to.Margin = 2
 	gp := gaussPoints(m, 0.001)
 	// zone ends at ±(2 + 6 + 3) = ±11; with margin 2 a tip fires beyond ±9
 	for _, c := range []struct {
@@ -328,5 +332,118 @@ func TestNeedRemeshSeveralTips(t *testing.T) {
 		if dec.Remesh != c.want || (c.want && !strings.Contains(dec.Reason, `"`+c.name+`"`)) {
 			t.Errorf("tips at %g and %g: %v (%s), want %v for tip %q", c.right, c.left, dec.Remesh, dec.Reason, c.want, c.name)
 		}
+	}
+}
+
+// growSSY drives the trigger, size field and carve through a crack that
+// grows along the symmetry plane of the half SSY disk (R = 10, ℓ = 0.2) in
+// steps of ℓ/4 up to da·ℓ, without mechanics: at each step the Gauss
+// points behind the tip are broken, those up to ℓ/2 ahead are on the
+// front, those within ℓ of the crack are damaged. It returns Δa/ℓ at each
+// remesh and the triangle counts after it (first entry: the initial mesh).
+func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
+	tb.Helper()
+	const R, ell, band = 10, 0.2, 0.1
+	d, err := geom.SSY{Radius: R}.Domain()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	fo := DefaultFollowOptions(ell, 1)
+	to := DefaultTriggerOptions(ell)
+	tip := Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
+	f, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	m, _, err := MeshDomain(d, f.At, MeshOptions{})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	zone := f.Zone()
+	at, tris = []float64{0}, []int{len(m.Tri)}
+	remeshes := 0
+	for a := ell / 4; a <= da*ell+1e-9; a += ell / 4 {
+		tip.X = [2]float64{a, 0}
+		gp := gaussPoints(m, 0.001)
+		for i := range gp.Points {
+			g := &gp.Points[i]
+			x := g.X
+			switch {
+			case x[0] < a && x[1] < band && x[0] > 0:
+				g.State.F, g.State.Broken = 0.5, true
+			case x[0] < a+ell/2 && x[1] < band+ell/2 && x[0] > 0:
+				g.State.F = 0.35
+			case x[0] < a+ell && x[1] < band+ell && x[0] > -ell:
+				g.State.F = 0.05
+			}
+		}
+		dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, remeshes, to)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		if !dec.Remesh {
+			continue
+		}
+		if testing.Verbose() {
+			tb.Logf("Δa = %.2fℓ: %s", a/ell, dec.Reason)
+		}
+		broken, err := BrokenElements(gp)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		dmg, err := DamagedPoints(gp, broken, to.FAlert, to.PAlert)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		f, err = NewTipField([]Tip{tip}, dmg, nil, fo)
+		if err != nil {
+			tb.Fatal(err)
+		}
+		c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+		if err != nil {
+			tb.Fatalf("Δa = %gℓ: %v", a/ell, err)
+		}
+		m, _, err = MeshDomain(c.Domain, f.At, MeshOptions{})
+		if err != nil {
+			tb.Fatalf("Δa = %gℓ: %v", a/ell, err)
+		}
+		zone = f.Zone()
+		remeshes++
+		at, tris = append(at, a/ell), append(tris, len(m.Tri))
+		// right after a remesh the trigger is quiet (DESIGN.md §4: rare)
+		gp2 := gaussPoints(m, 0.001)
+		for i := range gp2.Points {
+			x := gp2.Points[i].X
+			if x[0] < a+ell && x[1] < band+ell && x[0] > -ell {
+				gp2.Points[i].State.F = 0.05
+			}
+		}
+		if dec, err := NeedRemesh(m, gp2, []Tip{tip}, &zone, remeshes, to); err != nil || dec.Remesh {
+			tb.Fatalf("Δa = %gℓ: trigger fires right after the remesh: %s (%v)", a/ell, dec.Reason, err)
+		}
+	}
+	return at, tris
+}
+
+func TestGrowthRemeshesRare(t *testing.T) {
+	// Remeshes come every few ℓ (DESIGN.md §4) and the problem size stays
+	// about constant (issue 6, V14: within 30% of the first remesh's).
+	da := 12.0
+	if os.Getenv("TEARLINE_LONG") == "1" {
+		da = 40
+	}
+	at, tris := growSSY(t, da)
+	t.Logf("remesh at Δa/ℓ = %v; triangles %v", at, tris)
+	if len(at) < 3 {
+		t.Fatalf("only %d remeshes over %gℓ of growth", len(at)-1, da)
+	}
+	for i := 2; i < len(at); i++ {
+		if gap := at[i] - at[i-1]; gap < 2 {
+			t.Errorf("remeshes %d and %d only %gℓ apart", i-1, i, gap)
+		}
+	}
+	first, last := float64(tris[1]), float64(tris[len(tris)-1])
+	if math.Abs(last-first) > 0.3*first {
+		t.Errorf("triangles after the last remesh %g, after the first %g: more than 30%% apart", last, first)
 	}
 }

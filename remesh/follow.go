@@ -3,6 +3,8 @@ package remesh
 import (
 	"fmt"
 	"math"
+
+	"tearline/remesh/geom"
 )
 
 // Tip is a crack tip as the adaptive cycle sees it: where it is now and
@@ -55,12 +57,14 @@ type FollowOptions struct {
 }
 
 // DefaultFollowOptions returns the defaults for internal length ell and far
-// size hFar: κ = 2, a zone from 2ℓ behind to 6ℓ ahead of the tip, 2ℓ wide
-// at the back and 4ℓ at the front, grade 0.25, wake 4·h_fine.
+// size hFar: κ = 2; a zone whose axis runs from 1ℓ behind to 4ℓ ahead of
+// the tip, with half-width 3ℓ at the back and 4ℓ at the front (so its edge
+// is 8ℓ ahead of the tip, about 3ℓ beside it and 4ℓ behind it: a damage
+// band of width 1.5ℓ, V10, sits well inside); grade 0.25; wake 4·h_fine.
 func DefaultFollowOptions(ell, hFar float64) FollowOptions {
 	return FollowOptions{
 		Length: ell, Kappa: 2, HFar: hFar,
-		Ahead: 6, Behind: 2, Width: 2, Spread: 4,
+		Ahead: 4, Behind: 1, Width: 3, Spread: 4,
 		Grade: 0.25, Wake: 4,
 	}
 }
@@ -273,4 +277,66 @@ func InitialZone(s *SizeField, hWake float64) FineZone {
 		})
 	}
 	return z
+}
+
+// FeatureSizes returns a feature size function for NewTipField that keeps
+// geometry features at their own sizes: within the pieces of d whose label
+// has a size in byLabel and at the named points with a size in byPoint,
+// h ≤ size + grade·distance (so the feature's size grades like the rest of
+// the field). Sizes must be positive; unknown labels or points are errors.
+func FeatureSizes(d *geom.Domain, byLabel, byPoint map[string]float64, grade float64) (func(x, y float64) float64, error) {
+	if d == nil {
+		return nil, fmt.Errorf("remesh: feature sizes: no domain given")
+	}
+	if !(grade > 0 && grade <= 1) {
+		return nil, fmt.Errorf("remesh: feature sizes: grade %g must lie in (0, 1]", grade)
+	}
+	type feat struct {
+		p *geom.Piece
+		x [2]float64
+		h float64
+	}
+	var fs []feat
+	labels := map[string]bool{}
+	for _, l := range d.Labels() {
+		labels[l] = true
+	}
+	for lab, h := range byLabel {
+		if !(h > 0) || math.IsInf(h, 0) {
+			return nil, fmt.Errorf("remesh: feature sizes: label %q size %g must be finite and > 0", lab, h)
+		}
+		if !labels[lab] {
+			return nil, fmt.Errorf("remesh: feature sizes: the domain has no label %q (it has %v)", lab, d.Labels())
+		}
+	}
+	for i := 0; i < d.NumPieces(); i++ {
+		p, _, _ := d.Piece(i)
+		if h, ok := byLabel[p.Label]; ok {
+			fs = append(fs, feat{p: p, h: h})
+		}
+	}
+	for name, h := range byPoint {
+		pt, ok := d.Points[name]
+		if !ok {
+			return nil, fmt.Errorf("remesh: feature sizes: the domain has no point %q", name)
+		}
+		if !(h > 0) || math.IsInf(h, 0) {
+			return nil, fmt.Errorf("remesh: feature sizes: point %q size %g must be finite and > 0", name, h)
+		}
+		fs = append(fs, feat{x: pt.X, h: h})
+	}
+	return func(x, y float64) float64 {
+		h := math.Inf(1)
+		q := [2]float64{x, y}
+		for i := range fs {
+			var dd float64
+			if fs[i].p != nil {
+				dd = fs[i].p.Distance(q)
+			} else {
+				dd = math.Hypot(x-fs[i].x[0], y-fs[i].x[1])
+			}
+			h = math.Min(h, fs[i].h+grade*dd)
+		}
+		return h
+	}, nil
 }

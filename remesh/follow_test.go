@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 	"strings"
 	"testing"
+
+	"tearline/remesh/geom"
 )
 
 // discsDistance is the distance-like function of a tapered capsule from its
@@ -50,6 +52,7 @@ func TestZonePieceDistance(t *testing.T) {
 func TestTipFieldSizes(t *testing.T) {
 	const ell = 0.2
 	o := DefaultFollowOptions(ell, 2)
+	o.Ahead, o.Behind, o.Width, o.Spread = 6, 2, 2, 4
 	hf, hw := o.HFine(), o.HWake()
 	tips := []Tip{
 		{Name: "right", X: [2]float64{3, 0}, Dir: [2]float64{1, 0}},
@@ -253,6 +256,7 @@ func TestInitialZone(t *testing.T) {
 // 0.25 × 0.4683; (−5, 5) is √(4.6² + 5²) − 0.4 = 6.394 from the back disc.
 func ExampleTipField() {
 	opt := DefaultFollowOptions(0.2, 2)
+	opt.Ahead, opt.Behind, opt.Width, opt.Spread = 6, 2, 2, 4
 	f, err := NewTipField([]Tip{{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}}, nil, nil, opt)
 	if err != nil {
 		fmt.Println(err)
@@ -267,4 +271,58 @@ func ExampleTipField() {
 	// h(0, 1) = 0.2171
 	// h(-5, 5) = 1.699
 	// h(40, 0) = 2
+}
+
+func TestFeatureSizes(t *testing.T) {
+	// A C(T) half model: the pin hole at 0.5 and the load-line point at
+	// 0.2; the size grows by the grade with the distance (definition), and
+	// the combined field keeps the feature sizes and the grade bound.
+	d, err := geom.DefaultCT().Domain()
+	if err != nil {
+		t.Fatal(err)
+	}
+	feat, err := FeatureSizes(d, map[string]float64{geom.LabelPin: 0.5}, map[string]float64{"loadline": 0.2}, 0.25)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pin *geom.Piece
+	for i := 0; i < d.NumPieces(); i++ {
+		if p, _, _ := d.Piece(i); p.Label == geom.LabelPin {
+			pin = p
+		}
+	}
+	ll := d.Points["loadline"].X
+	for _, x := range [][2]float64{pin.At(0.3), ll, {ll[0] + 3, ll[1]}, {20, 20}} {
+		want := math.Min(0.5+0.25*pin.Distance(x), 0.2+0.25*math.Hypot(x[0]-ll[0], x[1]-ll[1]))
+		for i := 0; i < d.NumPieces(); i++ { // the nearest pin piece
+			if p, _, _ := d.Piece(i); p.Label == geom.LabelPin {
+				want = math.Min(want, 0.5+0.25*p.Distance(x))
+			}
+		}
+		if got := feat(x[0], x[1]); math.Abs(got-want) > 1e-12 {
+			t.Errorf("feature size at %v: %g, want %g", x, got, want)
+		}
+	}
+	f, err := NewTipField([]Tip{{X: d.Points["tip"].X, Dir: d.Points["tip"].Dir}}, nil, feat, DefaultFollowOptions(0.2, 5))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := f.At(ll[0], ll[1]); got != 0.2 {
+		t.Errorf("field at the load line %g, want the feature's 0.2", got)
+	}
+	for _, c := range []struct {
+		lab map[string]float64
+		pt  map[string]float64
+		g   float64
+		bad string
+	}{
+		{map[string]float64{"nowhere": 1}, nil, 0.25, "no label"},
+		{nil, map[string]float64{"nopoint": 1}, 0.25, "no point"},
+		{map[string]float64{geom.LabelPin: -1}, nil, 0.25, "size"},
+		{nil, nil, 0, "grade"},
+	} {
+		if _, err := FeatureSizes(d, c.lab, c.pt, c.g); err == nil || !strings.Contains(err.Error(), c.bad) {
+			t.Errorf("FeatureSizes(%v, %v, %g): error %v, want one about %q", c.lab, c.pt, c.g, err, c.bad)
+		}
+	}
 }
