@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"tearline/remesh/geom"
+	"tearline/remesh/tri"
 	"tearline/solver/fem"
 	"tearline/solver/material"
 )
@@ -445,5 +446,114 @@ func TestGrowthRemeshesRare(t *testing.T) {
 	first, last := float64(tris[1]), float64(tris[len(tris)-1])
 	if math.Abs(last-first) > 0.3*first {
 		t.Errorf("triangles after the last remesh %g, after the first %g: more than 30%% apart", last, first)
+	}
+}
+
+// pathDistance returns the distance from x to the polyline p and the arc
+// length at the nearest point.
+func pathDistance(x [2]float64, p [][2]float64) (d, s float64) {
+	d, acc := math.Inf(1), 0.0
+	for i := 1; i < len(p); i++ {
+		a, b := p[i-1], p[i]
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		l := math.Hypot(dx, dy)
+		t := math.Max(0, math.Min(1, ((x[0]-a[0])*dx+(x[1]-a[1])*dy)/(l*l)))
+		if q := math.Hypot(x[0]-a[0]-t*dx, x[1]-a[1]-t*dy); q < d {
+			d, s = q, acc+t*l
+		}
+		acc += l
+	}
+	return d, s
+}
+
+func TestGrowthTurningPath(t *testing.T) {
+	// A crack that leaves the symmetry plane (issue 6: the fine zone follows
+	// a turning path): in the full SSY disk with a blunt tip the crack turns
+	// by 0.4 rad per mm (ℓ = 0.2) for 15ℓ. Every remesh is called by the
+	// front or the tip, never by damage found in a coarse element: broken
+	// material is never inside a coarse element.
+	const R, ell, band, rate = 10, 0.2, 0.1, 0.4
+	d, err := geom.SSY{Radius: R, TipRadius: 0.05, Full: true}.Domain()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var path [][2]float64
+	var tang [][2]float64
+	x, ang := [2]float64{0, 0}, 0.0
+	for s := 0.0; s <= 4; s += 0.02 {
+		path, tang = append(path, x), append(tang, [2]float64{math.Cos(ang), math.Sin(ang)})
+		x = [2]float64{x[0] + 0.02*math.Cos(ang), x[1] + 0.02*math.Sin(ang)}
+		ang += rate * 0.02
+	}
+	fo := DefaultFollowOptions(ell, 1)
+	to := DefaultTriggerOptions(ell)
+	tip := Tip{Name: "tip", X: path[0], Dir: tang[0]}
+	f, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, _, err := MeshDomain(d, f.At, MeshOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	zone := f.Zone()
+	var ds, ss []float64
+	locate := func() {
+		gp := gaussPoints(m, 0.001)
+		ds, ss = make([]float64, len(gp.Points)), make([]float64, len(gp.Points))
+		for i := range gp.Points {
+			ds[i], ss[i] = pathDistance(gp.Points[i].X, path)
+		}
+	}
+	locate()
+	remeshes := 0
+	for a := ell / 4; a <= 15*ell+1e-9; a += ell / 4 {
+		k := int(math.Round(a / 0.02))
+		tip = Tip{Name: "tip", X: path[k], Dir: tang[k]}
+		gp := gaussPoints(m, 0.001)
+		for i := range gp.Points {
+			g := &gp.Points[i]
+			switch {
+			case ss[i] > 0 && ss[i] < a && ds[i] < band:
+				g.State.F, g.State.Broken = 0.5, true
+			case ss[i] < a+ell/2 && ds[i] < band+ell/2:
+				g.State.F = 0.35
+			case ss[i] < a+ell && ds[i] < band+ell:
+				g.State.F = 0.05
+			}
+		}
+		dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, remeshes, to)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !dec.Remesh {
+			continue
+		}
+		if dec.Cause != FrontNearEdge && dec.Cause != TipNearEdge {
+			t.Fatalf("Δa = %gℓ: remesh called by %v: %s", a/ell, dec.Cause, dec.Reason)
+		}
+		broken, _ := BrokenElements(gp)
+		dmg, _ := DamagedPoints(gp, broken, to.FAlert, to.PAlert)
+		if f, err = NewTipField([]Tip{tip}, dmg, nil, fo); err != nil {
+			t.Fatal(err)
+		}
+		c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+		if err != nil {
+			t.Fatalf("Δa = %gℓ: %v", a/ell, err)
+		}
+		var rep tri.Report
+		if m, rep, err = MeshDomain(c.Domain, f.At, MeshOptions{}); err != nil {
+			t.Fatalf("Δa = %gℓ: %v", a/ell, err)
+		}
+		if rep.MinAngleDeg < 20 {
+			t.Errorf("Δa = %gℓ: minimum angle %.2f°", a/ell, rep.MinAngleDeg)
+		}
+		zone = f.Zone()
+		remeshes++
+		locate()
+		t.Logf("Δa = %.2fℓ (tip turned %.0f°): %s; %d triangles", a/ell, math.Atan2(tip.Dir[1], tip.Dir[0])*180/math.Pi, dec.Cause, len(m.Tri))
+	}
+	if remeshes < 2 {
+		t.Errorf("%d remeshes over 15ℓ, want the zone to follow the tip", remeshes)
 	}
 }
