@@ -375,9 +375,11 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	// The volumetric plastic strain has the sign of σ_m, and σ_m keeps
 	// the sign of its trial value during the return (wrong signs at the
 	// rounding level are tolerated; a trial σ_m at rounding level has no
-	// sign).
+	// sign). Where no admissible solution exists — backward Euler cannot
+	// follow void growth faster than e-fold per step, as from f ≈ 0 under
+	// extreme triaxiality — the iteration fails and the solver cuts back.
 	sm := lp.smTr - m.bulk*u1
-	if lp.sgn != 0 && (sm*lp.sgn < -1e-12*A || u1*lp.sgn < -1e-15) {
+	if lp.sgn != 0 && (sm*lp.sgn < -1e-12*A || u1*lp.sgn < -1e-15*math.Max(f, lp.fN)) {
 		return
 	}
 	fs, dfs := par.FStar(f)
@@ -560,6 +562,11 @@ func (lp *gtnLocal) iterate(u0 [3]float64) (u [3]float64, ev gtnEval, err error)
 		du, ok := solve3(&ev.jac, [3]float64{-ev.r[0], -ev.r[1], -ev.r[2]})
 		if !ok {
 			return u, ev, errLocalNewton
+		}
+		if lp.logF && math.Abs(du[0]) > 5 {
+			// At most a factor e⁵ in f per iteration.
+			sc := 5 / math.Abs(du[0])
+			du = [3]float64{du[0] * sc, du[1] * sc, du[2] * sc}
 		}
 		alpha := 1.0
 		accepted := false
