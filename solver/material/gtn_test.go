@@ -452,13 +452,19 @@ type tangentCase struct {
 	plastic    bool
 }
 
-func tangentCases() []tangentCase {
-	loc := DefaultGTN()
-	loc.F0 = 0.01
-	reg := loc
-	reg.Length = 0.1
-	nuc := loc
+// gtnVariants returns the default parameters with initial porosity f0:
+// local, with nucleation (f_N = 0.04) and regularised (ℓ = 0.1).
+func gtnVariants(f0 float64) (loc, nuc, reg GTNParams) {
+	loc = DefaultGTN()
+	loc.F0 = f0
+	nuc, reg = loc, loc
 	nuc.FN = 0.04
+	reg.Length = 0.1
+	return loc, nuc, reg
+}
+
+func tangentCases() []tangentCase {
+	loc, nuc, reg := gtnVariants(0.01)
 	nucReg := nuc
 	nucReg.Length = 0.2
 	voce := loc

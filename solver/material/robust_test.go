@@ -91,12 +91,7 @@ func TestGTNRandomStepsNoNaN(t *testing.T) {
 // triaxiality and large steps are expected. Reference: DESIGN.md §3 (robust
 // local Newton up to f* → 1/q₁, cut back on failure); no outside source.
 func TestGTNStrainPathsConverge(t *testing.T) {
-	base := DefaultGTN()
-	base.F0 = 0.005
-	nuc := base
-	nuc.FN = 0.04
-	reg := base
-	reg.Length = 0.1
+	base, nuc, reg := gtnVariants(0.005)
 	type path struct {
 		name string
 		at   func(s float64) Sym // strain at path parameter s ≥ 0
