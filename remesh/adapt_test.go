@@ -557,3 +557,30 @@ func TestGrowthTurningPath(t *testing.T) {
 		t.Errorf("%d remeshes over 15ℓ, want the zone to follow the tip", remeshes)
 	}
 }
+
+// BenchmarkNeedRemesh times the trigger (called after every converged
+// step) on a structured mesh of 2·10⁴ triangles with a damaged band.
+func BenchmarkNeedRemesh(b *testing.B) {
+	m := structMesh(0, -10, 40, 10, 200, 50)
+	gp := gaussPoints(m, 0.001)
+	for i := range gp.Points {
+		if x := gp.Points[i].X; x[0] < 12 && math.Abs(x[1]) < 0.5 {
+			gp.Points[i].State.F = 0.05
+		}
+	}
+	fo := DefaultFollowOptions(1, 4)
+	tip := Tip{X: [2]float64{12, 0}, Dir: [2]float64{1, 0}}
+	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	if err != nil {
+		b.Fatal(err)
+	}
+	zone := field.Zone()
+	to := DefaultTriggerOptions(1)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := NeedRemesh(m, gp, []Tip{tip}, &zone, 0, to); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(m.Tri)), "triangles")
+}

@@ -189,11 +189,14 @@ func ZoneFor(t Tip, opt *FollowOptions) (ZonePiece, error) {
 // TipField is the tip-following size field of DESIGN.md §4:
 //
 //	h(x) = min( h_fine + g·dist(x, zone),          around and ahead of every tip
-//	            h_wake + g·dist(x, damaged points), the wake
+//	            h_wake + g·dist(x, damaged points), the wake (see below)
 //	            feature(x),                          geometry features
 //	            h_far )
 //
-// with g = Grade, h_wake = Wake·h_fine. Each of the first two terms is
+// with g = Grade, h_wake = Wake·h_fine. The damaged points are thinned to
+// one per cell of diagonal δ = 0.1·h_wake/g and the wake term's base
+// lowered by g·δ (so h ≤ h_wake at every damaged point still holds, and h
+// is at most 10% finer than h_wake there). Each of the first two terms is
 // g-Lipschitz (a distance function is 1-Lipschitz) and so is their minimum
 // with a constant: the field grades at most at rate g wherever the feature
 // function does not set the size. The feature function is the caller's
@@ -205,6 +208,7 @@ type TipField struct {
 	feature func(x, y float64) float64
 	// reach is the distance beyond which a term exceeds h_far.
 	zoneReach, wakeReach float64
+	wakeBase             float64 // h_wake less the thinning allowance
 }
 
 // NewTipField builds the size field for the given tips (several at once),
@@ -228,10 +232,16 @@ func NewTipField(tips []Tip, damaged [][2]float64, feature func(x, y float64) fl
 			return nil, fmt.Errorf("remesh: damaged point %d (%g, %g) must be finite", i, p[0], p[1])
 		}
 	}
-	f.wake = newKDPoints(damaged)
 	g := opt.Grade
+	// Thin the damaged points to one per cell of diagonal δ = 0.1·h_wake/g
+	// and lower the wake base by g·δ: every damaged point is within δ of a
+	// kept one, so h ≤ h_wake still holds at every damaged point, the
+	// field stays g-Lipschitz, and a query visits far fewer points.
+	delta := 0.1 * f.zone.HWake / g
+	f.wakeBase = f.zone.HWake - g*delta
+	f.wake = newKDPoints(thinPoints(damaged, delta/math.Sqrt2))
 	f.zoneReach = (opt.HFar - f.zone.HFine) / g
-	f.wakeReach = (opt.HFar - f.zone.HWake) / g
+	f.wakeReach = (opt.HFar - f.wakeBase) / g
 	return f, nil
 }
 
@@ -244,7 +254,7 @@ func (f *TipField) At(x, y float64) float64 {
 		h = math.Min(h, f.zone.HFine+o.Grade*math.Max(0, d))
 	}
 	if d := f.wake.nearest(p, f.wakeReach); d < f.wakeReach {
-		h = math.Min(h, f.zone.HWake+o.Grade*d)
+		h = math.Min(h, f.wakeBase+o.Grade*d)
 	}
 	if f.feature != nil {
 		if v := f.feature(x, y); v > 0 && v < h {
@@ -252,6 +262,20 @@ func (f *TipField) At(x, y float64) float64 {
 		}
 	}
 	return h
+}
+
+// thinPoints keeps the first point of every square cell of side c.
+func thinPoints(pts [][2]float64, c float64) [][2]float64 {
+	seen := make(map[[2]int64]bool, len(pts))
+	var out [][2]float64
+	for _, p := range pts {
+		k := [2]int64{int64(math.Floor(p[0] / c)), int64(math.Floor(p[1] / c))}
+		if !seen[k] {
+			seen[k] = true
+			out = append(out, p)
+		}
+	}
+	return out
 }
 
 // Zone returns the fine zone's description for the trigger.

@@ -91,10 +91,7 @@ func TestTipFieldSizes(t *testing.T) {
 		{"at left tip", [2]float64{-3, 0}, hf},
 		{"ahead of left tip", [2]float64{-3 - 5*ell, 0}, hf},
 		{"along the turned direction", [2]float64{5 * ell * math.Sqrt2 / 2, 4 + 5*ell*math.Sqrt2/2}, hf},
-		// the wake: h_wake at the damaged points, coarser than the zone
-		{"wake at damaged point", [2]float64{0.5, 0.02}, hw},
-		// graded: h_wake + g·distance (distance 0.3 from (0.5, 0.02))
-		{"wake graded", [2]float64{0.5, 0.32}, hw + o.Grade*0.3},
+
 		// far away: h_far
 		{"far", [2]float64{0, -20}, o.HFar},
 		// the feature size wins where it is smaller
@@ -107,6 +104,18 @@ func TestTipFieldSizes(t *testing.T) {
 	}
 	if !(hw > hf) {
 		t.Errorf("wake size %g is not coarser than the zone's %g", hw, hf)
+	}
+	// the wake: h ≤ h_wake at every damaged point and at most 10% finer
+	// (the thinning allowance); graded by g away from them
+	// (or the zone's graded size, where that is finer)
+	for _, p := range dmg {
+		lo := math.Min(0.9*hw, hf+o.Grade*math.Max(0, zone.Distance(p)))
+		if h := f.At(p[0], p[1]); h > hw || h < lo-1e-12 {
+			t.Errorf("wake at damaged point %v: h = %g, want in [%g, %g]", p, h, lo, hw)
+		}
+	}
+	if h, want := f.At(0.5, 0.32), hw+o.Grade*0.3; math.Abs(h-want) > 0.1*hw+1e-12 {
+		t.Errorf("wake graded 0.3 from the damaged points: h = %g, want %g ± %g", h, want, 0.1*hw)
 	}
 }
 
@@ -324,5 +333,33 @@ func TestFeatureSizes(t *testing.T) {
 		if _, err := FeatureSizes(d, c.lab, c.pt, c.g); err == nil || !strings.Contains(err.Error(), c.bad) {
 			t.Errorf("FeatureSizes(%v, %v, %g): error %v, want one about %q", c.lab, c.pt, c.g, err, c.bad)
 		}
+	}
+}
+
+// BenchmarkTipFieldAt times one size query with two tips and 5000 damaged
+// points (the mesher calls At for every candidate triangle).
+func BenchmarkTipFieldAt(b *testing.B) {
+	var dmg [][2]float64
+	for i := 0; i < 5000; i++ {
+		s := float64(i) / 5000
+		dmg = append(dmg, [2]float64{-10 * s, 0.3 * math.Sin(20*s)})
+	}
+	f, err := NewTipField([]Tip{{X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}, {X: [2]float64{-10, 0}, Dir: [2]float64{-1, 0}}}, dmg, nil, DefaultFollowOptions(0.2, 2))
+	if err != nil {
+		b.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(9, 10))
+	pts := make([][2]float64, 1024)
+	for i := range pts {
+		pts[i] = [2]float64{rng.Float64()*30 - 20, rng.Float64()*20 - 10}
+	}
+	b.ResetTimer()
+	s := 0.0
+	for i := 0; i < b.N; i++ {
+		p := pts[i%len(pts)]
+		s += f.At(p[0], p[1])
+	}
+	if s < 0 {
+		b.Fatal(s)
 	}
 }
