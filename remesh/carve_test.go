@@ -177,9 +177,10 @@ func TestCarveStrip(t *testing.T) {
 	}
 }
 
-// TestCarveGoneNode checks a named node that leaves with the removed
-// material is reported dropped.
-func TestCarveGoneNode(t *testing.T) {
+// TestCarveSplitBody: removing a full row splits the square in two; the
+// larger part is kept, and a named node in the other part is reported
+// dropped.
+func TestCarveSplitBody(t *testing.T) {
 	const nx = 20
 	m := structMesh(0, 0, 10, 10, nx, nx)
 	m.Points["load"] = 20*(nx+1) + 20 // (10, 10), in the upper part
