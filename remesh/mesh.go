@@ -185,7 +185,9 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 		pa, pb := tm.Points[ea[id]], tm.Points[eb[id]]
 		x := [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
 		if mk := emark[id]; mk > 0 {
-			if p := d.PieceOfMark(int(mk)); p != nil && p.Kind == geom.Arc {
+			if p := d.PieceOfMark(int(mk)); p != nil && p.Kind == geom.Arc && onCircle(p, pa) && onCircle(p, pb) {
+				// On the arc; an edge whose ends the triangulator left
+				// off the arc keeps its straight midpoint (a valid element).
 				x = p.Split(pa, pb)
 			}
 		}
@@ -223,4 +225,9 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 		return nil, err
 	}
 	return m, nil
+}
+
+// onCircle reports whether x lies on the arc's circle (to 1e-9 relative).
+func onCircle(p *geom.Piece, x [2]float64) bool {
+	return math.Abs(math.Hypot(x[0]-p.Centre[0], x[1]-p.Centre[1])-p.Radius) <= 1e-9*p.Radius
 }

@@ -77,14 +77,14 @@ func (d *Domain) Discretise(h func(x, y float64) float64) (*PSLG, error) {
 	np := d.NumPieces()
 	minN := make([]int, np)
 	for try := 0; ; try++ {
-		out, crossing, err := d.discretise(size, tol, minN)
+		out, crossing, err := d.discretise(size, tol, minN, try < 8)
 		if err != nil {
 			return nil, err
 		}
 		if crossing == nil {
 			return out, nil
 		}
-		if try >= 12 {
+		if try >= 16 {
 			return nil, fmt.Errorf("geometry: the boundary chords of %s and %s still cross after refining the arcs; the arcs come too close to other pieces", crossing[0], crossing[1])
 		}
 	}
@@ -205,7 +205,7 @@ func divisions(p *Piece, size func([2]float64) (float64, error), n0 int, ta, tb 
 // discretise builds the PSLG with at least minN[g] segments on piece g. It
 // returns the names of two pieces whose chords cross (after doubling minN
 // for the arcs among them) instead of a PSLG when that happens.
-func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64, minN []int) (*PSLG, []string, error) {
+func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64, minN []int, clearance bool) (*PSLG, []string, error) {
 	out := &PSLG{Named: map[string]int{}}
 	names := make([]string, 0, len(d.Points))
 	for n, p := range d.Points {
@@ -311,27 +311,38 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 			}
 		}
 	}
+	segCount := make([]int, len(minN))
+	for _, g := range owners {
+		segCount[g]++
+	}
+	grow := func(g int) bool {
+		if p, _, _ := d.Piece(g); p.Kind == Arc {
+			minN[g] = 2 * segCount[g]
+			return true
+		}
+		return false
+	}
 	// Chords must not cross (an arc's chord may cut a piece near the arc).
 	if a, b, found := crossingSegments(out, tol); found {
 		ga, gb := owners[a], owners[b]
 		pa, la, ia := d.Piece(ga)
 		pb, lb, ib := d.Piece(gb)
 		nm := []string{pieceName(la, ia, pa), pieceName(lb, ib, pb)}
-		grown := false
-		for _, gg := range []int{ga, gb} {
-			if p, _, _ := d.Piece(gg); p.Kind == Arc {
-				cur := minN[gg]
-				if cur == 0 {
-					cur = int(math.Ceil(math.Abs(p.Sweep()) / (MaxArcChordDeg * math.Pi / 180)))
-				}
-				minN[gg] = 2 * cur
-				grown = true
-			}
-		}
-		if !grown {
+		ok1, ok2 := grow(ga), grow(gb)
+		if !ok1 && !ok2 {
 			return nil, nil, fmt.Errorf("geometry: boundary segments of %s and %s cross", nm[0], nm[1])
 		}
 		return nil, nm, nil
+	}
+	// An arc's chords must be much closer to the arc than any other piece
+	// is, so that the triangulator can put every split point on the arc.
+	if clearance {
+		if gs := d.crowdedArcs(out, owners); len(gs) > 0 {
+			for _, g := range gs {
+				grow(g)
+			}
+			return nil, []string{"", ""}, nil
+		}
 	}
 	// One point inside each hole's chord polygon.
 	for k := range d.Holes {
@@ -348,6 +359,57 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 		out.Holes = append(out.Holes, x)
 	}
 	return out, nil, nil
+}
+
+// crowdedArcs returns the arc pieces that have a chord whose sagitta
+// exceeds a quarter of the distance from its arc midpoint to another piece.
+func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
+	type pbox struct {
+		p      *Piece
+		lo, hi [2]float64
+	}
+	n := d.NumPieces()
+	boxes := make([]pbox, n)
+	for i := 0; i < n; i++ {
+		p, _, _ := d.Piece(i)
+		lo, hi := p.box()
+		boxes[i] = pbox{p, lo, hi}
+	}
+	bad := map[int]bool{}
+	var out []int
+	for s, seg := range g.Segments {
+		gi := owners[s]
+		if bad[gi] {
+			continue
+		}
+		p := boxes[gi].p
+		if p.Kind != Arc {
+			continue
+		}
+		a, b := g.Points[seg[0]], g.Points[seg[1]]
+		half := 0.5 * dist(a, b)
+		sag := p.Radius - math.Sqrt(math.Max(0, p.Radius*p.Radius-half*half))
+		if !(sag > 0) {
+			continue
+		}
+		m := p.Split(a, b)
+		reach := 4 * sag
+		for j := range boxes {
+			if j == gi {
+				continue
+			}
+			bx := &boxes[j]
+			if m[0] < bx.lo[0]-reach || m[0] > bx.hi[0]+reach || m[1] < bx.lo[1]-reach || m[1] > bx.hi[1]+reach {
+				continue
+			}
+			if bx.p.Distance(m) < reach {
+				bad[gi] = true
+				out = append(out, gi)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // polyWinding returns the winding number of the closed polygon about x.
