@@ -222,12 +222,14 @@ func partialLU(F []float64, m, nfs int, rows, cols []int, tau, tiny float64, ws 
 	bad = -1
 	for j < nfs {
 		p0 := j
-		pend := min(p0+panelWidth, nfs)
-		failed := false
-		for j < pend {
+		// Candidate columns are [j, nc); a column that fails is moved to
+		// [nc, nfs) and tried again in the next panel, after the blocked
+		// update has brought it up to date.
+		nc := nfs
+		bad, badMag = -1, 0
+		for j < p0+panelWidth && j < nc {
 			found := false
-			colMag := 0.0
-			for q := j; q < nfs; q++ {
+			for q := j; q < nc; {
 				w := j - p0
 				// U entries of column q for the panel's pivots so far.
 				for t := p0; t < j; t++ {
@@ -264,8 +266,15 @@ func partialLU(F []float64, m, nfs int, rows, cols []int, tau, tiny float64, ws 
 					r = best
 				}
 				if r < 0 {
-					if q == j {
-						colMag = bmag
+					if bad < 0 {
+						bad, badMag = cols[q], bmag
+					}
+					nc--
+					if q != nc {
+						for i := 0; i < m; i++ {
+							F[i*m+q], F[i*m+nc] = F[i*m+nc], F[i*m+q]
+						}
+						cols[q], cols[nc] = cols[nc], cols[q]
 					}
 					continue
 				}
@@ -297,19 +306,18 @@ func partialLU(F []float64, m, nfs int, rows, cols []int, tau, tiny float64, ws 
 				break
 			}
 			if !found {
-				bad, badMag = cols[j], colMag
-				failed = true
 				break
 			}
 			j++
 		}
 		// Blocked update of the rest of the front by the panel's pivots.
-		if w := j - p0; w > 0 && j < m {
+		w := j - p0
+		if w > 0 && j < m {
 			impl.Dtrsm(blas.Left, blas.Lower, blas.NoTrans, blas.Unit, w, m-j, 1, F[p0*m+p0:], m, F[p0*m+j:], m)
 			impl.Dgemm(blas.NoTrans, blas.NoTrans, m-j, m-j, w, -1, F[j*m+p0:], m, F[p0*m+j:], m, 1, F[j*m+j:], m)
 		}
-		if failed {
-			break
+		if w == 0 {
+			break // no column of the remaining ones has an acceptable pivot
 		}
 	}
 	return j, bad, badMag
