@@ -171,8 +171,8 @@ func lame(a, b, p, nu, r float64) (srr, stt, szz, ur float64) {
 // (L2) error over the area relative to p, the signed error of
 // u_r at the bore relative to the exact value, the largest deviation of the mean
 // stress at the Gauss points from the exact one relative to p, and the
-// number of Newton iterations.
-func lameProblem(t *testing.T, kin fem.Kinematics, nr int, nu float64, disp bool) (serr, l2, uerr, perr float64, iters int) {
+// problem.
+func lameProblem(t *testing.T, kin fem.Kinematics, nr int, nu float64, disp bool) (serr, l2, uerr, perr float64, p *fem.Problem) {
 	t.Helper()
 	const a, b, pr = 1.0, 2.0, 10.0
 	var m *fem.Mesh
@@ -189,7 +189,7 @@ func lameProblem(t *testing.T, kin fem.Kinematics, nr int, nu float64, disp bool
 		t.Fatal(err)
 	}
 	bcs.Tractions = []fem.Traction{{Label: "left", Pressure: pr}}
-	p, res, _ := run(t, m, hencky(t, nu), fem.Options{Kinematics: kin, DisplacementOnly: disp}, bcs)
+	p, _, _ = run(t, m, hencky(t, nu), fem.Options{Kinematics: kin, DisplacementOnly: disp}, bcs)
 	var gps fem.GaussPoints
 	p.GaussPoints(&gps)
 	var area float64
@@ -216,7 +216,7 @@ func lameProblem(t *testing.T, kin fem.Kinematics, nr int, nu float64, disp bool
 	ur, _ := p.Nodal(p.Committed, n, fem.Ux)
 	_, _, _, want := lame(a, b, pr, nu, a)
 	l2 = math.Sqrt(l2/area) / pr
-	return serr, l2, (ur - want) / want, perr, res.Iterations
+	return serr, l2, (ur - want) / want, perr, p
 }
 
 // TestLame is V2: the thick cylinder under internal pressure (Lamé;
@@ -268,5 +268,117 @@ func TestLinearOneIteration(t *testing.T) {
 	_, res, steps := run(t, m, hencky(t, 0.3), fem.Options{}, bcs)
 	if res.Steps != 1 || steps[0].Iterations != 1 {
 		t.Errorf("%d steps, iterations %d (residuals %.3g), want one step of one iteration", res.Steps, steps[0].Iterations, steps[0].Residuals)
+	}
+}
+
+// kirsch returns the Cartesian stress (xx, yy, xy) of an infinite plate
+// with a hole of radius a under remote tension s along x (Kirsch 1898;
+// Timoshenko & Goodier, Theory of Elasticity, §35).
+func kirsch(a, s float64, X [2]float64) [3]float64 {
+	r, th := math.Hypot(X[0], X[1]), math.Atan2(X[1], X[0])
+	q2, q4 := a*a/(r*r), a*a*a*a/(r*r*r*r)
+	c2, s2 := math.Cos(2*th), math.Sin(2*th)
+	srr := s/2*(1-q2) + s/2*(1-4*q2+3*q4)*c2
+	stt := s/2*(1+q2) - s/2*(1+3*q4)*c2
+	srt := -s / 2 * (1 + 2*q2 - 3*q4) * s2
+	c, sn := math.Cos(th), math.Sin(th)
+	return [3]float64{
+		srr*c*c + stt*sn*sn - 2*srt*c*sn,
+		srr*sn*sn + stt*c*c + 2*srt*c*sn,
+		(srr-stt)*c*sn + srt*(c*c-sn*sn),
+	}
+}
+
+// TestKirsch is V3: a plate with a circular hole under remote tension σ
+// has σ_θθ = 3σ at the hole on the axis normal to the load (Kirsch 1898;
+// Timoshenko & Goodier §35). The quarter plate 1 ≤ r ≤ 5 carries the
+// exact Kirsch traction on its outer arc and symmetry on both axes; the
+// stress at the hole is evaluated at the node (0, a) from the element's
+// displacement gradient.
+func TestKirsch(t *testing.T) {
+	const a, sig = 1.0, 100.0
+	for _, disp := range []bool{false, true} {
+		m, err := fem.Structured(16, 16, fem.AnnularSector(a, 5*a, 0, math.Pi/2, 8))
+		if err != nil {
+			t.Fatal(err)
+		}
+		bcs := fem.BCs{
+			Symmetries: []fem.Symmetry{{Label: "bottom", Comp: 1}, {Label: "top", Comp: 0}},
+			Tractions: []fem.Traction{{Label: "right", Func: func(X, n [2]float64) [2]float64 {
+				s := kirsch(a, sig, X)
+				return [2]float64{s[0]*n[0] + s[2]*n[1], s[2]*n[0] + s[1]*n[1]}
+			}}},
+		}
+		mat := hencky(t, 0.3)
+		p, _, _ := run(t, m, mat, fem.Options{DisplacementOnly: disp}, bcs)
+		node := m.Points["t1"]
+		var got float64
+		found := false
+		for e, tri := range m.Tri {
+			for k := 0; k < 3; k++ {
+				if tri[k] != node {
+					continue
+				}
+				var l [3]float64
+				l[k] = 1
+				F, err := p.DeformationGradient(e, l, p.Committed)
+				if err != nil {
+					t.Fatal(err)
+				}
+				got = cauchyFromF(t, mat, F)[0] // σ_θθ = σ_xx at (0, a)
+				found = true
+			}
+		}
+		if !found {
+			t.Fatal("no element at the hole's top node")
+		}
+		t.Logf("displacement-only %v: σ_θθ/σ at the hole = %.4f", disp, got/sig)
+		if math.Abs(got/sig-3) > 0.03 {
+			t.Errorf("displacement-only %v: σ_θθ/σ = %.4f at the hole, want 3 within 1%%", disp, got/sig)
+		}
+	}
+}
+
+// TestNearlyIncompressible: at ν = 0.4999 the mixed u–θ–P element gives
+// the Lamé solution (Timoshenko & Goodier §28) with a smooth pressure —
+// mean stress at every Gauss point and the nodal P field within 0.5% of
+// p — while the displacement-only element of the same mesh locks: its
+// mean stress oscillates by more than p itself and its bore displacement
+// is off (Simo, Taylor & Pister 1985, CMAME 51, for the mixed cure;
+// Hughes, The Finite Element Method, 1987, §4 for locking of displacement
+// elements).
+func TestNearlyIncompressible(t *testing.T) {
+	const nu, a, b, pr = 0.4999, 1.0, 2.0, 10.0
+	for _, kin := range []fem.Kinematics{fem.PlaneStrain, fem.Axisymmetric} {
+		t.Run(kin.String(), func(t *testing.T) {
+			serr, _, uerr, perr, p := lameProblem(t, kin, 8, nu, false)
+			Pn := make([]float64, len(p.Mesh.X))
+			if err := p.NodalField(fem.Pressure, Pn); err != nil {
+				t.Fatal(err)
+			}
+			var nerr float64
+			for n := 0; n < p.Mesh.NumCorners; n++ {
+				X := p.Mesh.X[n]
+				r := math.Hypot(X[0], X[1])
+				if kin == fem.Axisymmetric {
+					r = X[0]
+				}
+				er, et, ez, _ := lame(a, b, pr, nu, r)
+				nerr = math.Max(nerr, math.Abs(Pn[n]-(er+et+ez)/3)/pr)
+			}
+			_, _, uerrD, perrD, _ := lameProblem(t, kin, 8, nu, true)
+			_, _, uerrD4, perrD4, _ := lameProblem(t, kin, 4, nu, true)
+			t.Logf("mixed: stress error %.3g p, mean-stress error %.3g p, nodal P error %.3g p, bore u_r error %.3g", serr, perr, nerr, uerr)
+			t.Logf("displacement-only: mean-stress error %.3g p (n=8), %.3g p (n=4); bore u_r error %.3g (n=8), %.3g (n=4)", perrD, perrD4, uerrD, uerrD4)
+			if perr > 0.005 || nerr > 0.005 || serr > 0.01 {
+				t.Errorf("mixed element: mean stress error %.3g p, nodal P error %.3g p, stress error %.3g p; want ≤ 0.5%%, 0.5%%, 1%%", perr, nerr, serr)
+			}
+			if perrD < 1 {
+				t.Errorf("displacement-only element: mean-stress error %.3g p, expected locking (> p)", perrD)
+			}
+			if math.Abs(uerrD4) < 10*math.Abs(uerr) {
+				t.Errorf("displacement-only bore displacement error %.3g on the coarse mesh is not clearly worse than the mixed %.3g", uerrD4, uerr)
+			}
+		})
 	}
 }

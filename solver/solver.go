@@ -67,8 +67,8 @@ type Options struct {
 	// Diverge: an attempt fails when the scaled residual norm exceeds
 	// Diverge times its value at the start of the increment.
 	Diverge float64
-	// Linear is the linear solver; nil means a sparse.LU with its default
-	// options.
+	// Linear is the linear solver; nil means an equilibrated sparse.LU
+	// with its default options.
 	Linear LinearSolver
 }
 
@@ -188,7 +188,7 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 	}
 	s := &Solver{P: p, Opt: opt, lin: opt.Linear, dt: opt.Dt}
 	if s.lin == nil {
-		s.lin = &sparse.LU{}
+		s.lin = &Equilibrated{Inner: &sparse.LU{}}
 	}
 	n := p.Dofs.N
 	s.du = make([]float64, n)
