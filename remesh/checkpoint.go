@@ -1,0 +1,91 @@
+package remesh
+
+import (
+	"encoding/gob"
+	"errors"
+	"fmt"
+	"io"
+	"time"
+
+	"tearline/solver/fem"
+	"tearline/transfer"
+)
+
+// checkpointVersion changes whenever the layout below does; an older
+// checkpoint is refused with a clear error rather than misread.
+const checkpointVersion = 1
+
+// checkpoint is everything a run needs to continue exactly where it was:
+// the mesh, the committed fields and Gauss-point state, the pseudo-time and
+// next increment, the crack tips and the fine zone, and the counters.
+type checkpoint struct {
+	Version         int
+	Mesh            *fem.Mesh
+	Fields          *transfer.Fields
+	T, Dt           float64
+	Steps, Remeshes int
+	PeakDofs        int
+	Da, DaProj      float64
+	Tips            []Tip
+	Zone            FineZone
+	Wall            time.Duration
+	// Extra is the caller's own state (the command line keeps its history
+	// bookkeeping there).
+	Extra []byte
+}
+
+// WriteCheckpoint writes the committed state of the run to w (encoding/gob).
+// The caller makes the write atomic (temporary file, sync, rename).
+func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
+	f, err := c.fields()
+	if err != nil {
+		return err
+	}
+	cp := checkpoint{
+		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Dt: c.Dt,
+		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
+		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra,
+	}
+	return gob.NewEncoder(w).Encode(&cp)
+}
+
+// ResumeCycle rebuilds a run from a checkpoint written by WriteCheckpoint
+// under the same configuration. It returns the caller's extra state.
+func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
+	var cp checkpoint
+	if err := gob.NewDecoder(r).Decode(&cp); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint unreadable: %w", err)
+	}
+	if cp.Version != checkpointVersion {
+		return nil, nil, fmt.Errorf("checkpoint version %d, this program reads version %d", cp.Version, checkpointVersion)
+	}
+	if cp.Mesh == nil || cp.Fields == nil {
+		return nil, nil, errors.New("checkpoint holds no mesh or state")
+	}
+	if err := cp.Mesh.Check(); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint mesh: %w", err)
+	}
+	if err := cp.Fields.Check(cp.Mesh); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
+	}
+	c := &Cycle{Cfg: cfg, Dt: cp.Dt, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
+		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall}
+	for _, name := range sortedTipNames(cfg.Domain) {
+		pt := cfg.Domain.Points[name]
+		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))
+		c.seedDir = append(c.seedDir, pt.Dir)
+	}
+	if err := c.setMesh(cp.Mesh); err != nil {
+		return nil, nil, err
+	}
+	c.PeakDofs = max(c.PeakDofs, cp.PeakDofs)
+	if err := c.install(cp.Fields, cp.T, true); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
+	}
+	// Re-evaluate the committed state so that reactions and Gauss-point data
+	// are those of the checkpoint (no iteration: the state is converged).
+	if err := c.Prob.Assemble(false); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
+	}
+	return c, cp.Extra, nil
+}

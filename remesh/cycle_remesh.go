@@ -1,0 +1,231 @@
+package remesh
+
+import (
+	"fmt"
+	"math"
+	"time"
+
+	"tearline/solver"
+	"tearline/solver/fem"
+	"tearline/solver/material"
+	"tearline/transfer"
+)
+
+// linearFields lists the corner-node fields a transfer carries, in the
+// order of transfer.Fields.Linear (those switched on).
+func linearFields() [4]fem.Field {
+	return [4]fem.Field{fem.Theta, fem.Pressure, fem.Abar, fem.Lambda}
+}
+
+// fields collects the committed state of the current problem for a transfer.
+func (c *Cycle) fields() (*transfer.Fields, error) {
+	u, err := c.Displacement()
+	if err != nil {
+		return nil, err
+	}
+	f := &transfer.Fields{U: u}
+	nn := len(c.Mesh.X)
+	for _, fd := range linearFields() {
+		if !c.Prob.Dofs.Has(fd) {
+			continue
+		}
+		v := make([]float64, nn)
+		if err := c.Prob.NodalField(fd, v); err != nil {
+			return nil, err
+		}
+		f.Linear = append(f.Linear, v[:c.Mesh.NumCorners])
+	}
+	gp := c.GaussPoints()
+	n := len(gp.Points)
+	f.State = make([]material.State, n)
+	// History: the stress work W, then the 5 components of F and of P
+	// (kept so that a checkpoint restores the committed points exactly).
+	f.History = make([][]float64, 11)
+	for k := range f.History {
+		f.History[k] = make([]float64, n)
+	}
+	for i := range gp.Points {
+		g := &gp.Points[i]
+		f.State[i] = g.State
+		f.History[0][i] = g.W
+		for k := 0; k < 5; k++ {
+			f.History[1+k][i] = g.F[k]
+			f.History[6+k][i] = g.P[k]
+		}
+	}
+	return f, nil
+}
+
+// gaussData unpacks the History arrays of fields into W, F and P.
+func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
+	if len(f.History) != 11 {
+		return nil, nil, nil, fmt.Errorf("state holds %d history arrays, want 11 (W, F, P)", len(f.History))
+	}
+	n := len(f.History[0])
+	F, P = make([][5]float64, n), make([][5]float64, n)
+	for i := 0; i < n; i++ {
+		for k := 0; k < 5; k++ {
+			F[i][k], P[i][k] = f.History[1+k][i], f.History[6+k][i]
+		}
+	}
+	return F, P, f.History[0], nil
+}
+
+// install puts transferred (or checkpointed, exact) fields into the
+// current problem as its committed state at pseudo-time t.
+func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
+	p := c.Prob
+	nn := len(c.Mesh.X)
+	ux, uy := make([]float64, nn), make([]float64, nn)
+	for i, u := range f.U {
+		ux[i], uy[i] = u[0], u[1]
+	}
+	if err := p.SetNodalField(fem.Ux, ux); err != nil {
+		return err
+	}
+	if err := p.SetNodalField(fem.Uy, uy); err != nil {
+		return err
+	}
+	k := 0
+	for _, fd := range linearFields() {
+		if !p.Dofs.Has(fd) {
+			continue
+		}
+		if k >= len(f.Linear) {
+			return fmt.Errorf("install: field %v missing from the transferred state", fd)
+		}
+		v := make([]float64, nn)
+		copy(v, f.Linear[k])
+		if err := p.SetNodalField(fd, v); err != nil {
+			return err
+		}
+		k++
+	}
+	nq := fem.ElementRule().Len()
+	st := make([][]material.State, len(c.Mesh.Tri))
+	for e := range st {
+		st[e] = f.State[e*nq : (e+1)*nq]
+	}
+	if err := p.SetState(st); err != nil {
+		return err
+	}
+	F, P, W, err := gaussData(f)
+	if err != nil {
+		return err
+	}
+	if !exact {
+		// Transferred F and P are not those of the transferred
+		// displacement: the caller adopts the assembled ones instead.
+		F, P = nil, nil
+	}
+	if err := p.SetGaussData(F, P, W); err != nil {
+		return err
+	}
+	p.T, p.TCommitted = t, t
+	p.SetTime(t)
+	return nil
+}
+
+// remesh builds the new geometry and mesh for decision d, transfers the
+// state onto it and re-establishes equilibrium at the same load.
+func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
+	t := c.Prob.TCommitted
+	rr := &RemeshRecord{
+		Index: c.Remeshes + 1, Step: c.Steps, T: t, Da: c.Da, Reason: d.Reason,
+		DofsBefore: c.Prob.Dofs.N, ElemsBefore: len(c.Mesh.Tri),
+	}
+	var err error
+	if _, rr.ForceBefore, err = c.Cfg.Measure(c.Prob); err != nil {
+		return nil, err
+	}
+	t0 := time.Now()
+	gp := c.GaussPoints()
+	broken, err := BrokenElements(gp)
+	if err != nil {
+		return nil, err
+	}
+	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	if err != nil {
+		return nil, err
+	}
+	tf, err := NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
+	if err != nil {
+		return nil, fmt.Errorf("size field: %w", err)
+	}
+	carved, err := Carve(c.Mesh, broken, c.Cfg.Domain, c.Tips, tf.At, c.Cfg.Carve)
+	if err != nil {
+		return nil, fmt.Errorf("new geometry: %w", err)
+	}
+	for _, r := range carved.Removed {
+		if r {
+			rr.Removed++
+		}
+	}
+	rr.GeomWall = time.Since(t0)
+
+	t0 = time.Now()
+	m, rep, err := MeshDomain(carved.Domain, tf.At, c.Cfg.Mesh)
+	if err != nil {
+		return nil, fmt.Errorf("new mesh: %w", err)
+	}
+	rr.MinAngle = rep.MinAngleDeg
+	rr.MinSize = math.Inf(1)
+	for e := range m.Tri {
+		rr.MinSize = math.Min(rr.MinSize, LongestEdge(m, e))
+	}
+	rr.MeshWall = time.Since(t0)
+
+	t0 = time.Now()
+	from, err := c.fields()
+	if err != nil {
+		return nil, err
+	}
+	opt := c.Cfg.Transfer
+	to, trec, err := transfer.Map(c.Mesh, from, m, opt)
+	if err != nil {
+		return nil, fmt.Errorf("transfer: %w", err)
+	}
+	rr.MaxFBefore, rr.MaxFAfter = trec.Before.MaxF, trec.After.MaxF
+	rr.IntPBefore, rr.IntPAfter = trec.Before.IntP, trec.After.IntP
+	if len(trec.Before.IntHistory) > 0 && len(trec.After.IntHistory) > 0 {
+		rr.WorkBefore, rr.WorkAfter = trec.Before.IntHistory[0], trec.After.IntHistory[0]
+	}
+	rr.Verbatim = trec.Verbatim
+	if err := c.setMesh(m); err != nil {
+		return nil, err
+	}
+	if err := c.install(to, t, false); err != nil {
+		return nil, fmt.Errorf("install transferred state: %w", err)
+	}
+	rr.MapWall = time.Since(t0)
+
+	// The reaction right after the transfer, before any iteration.
+	if err := c.Prob.Assemble(false); err != nil {
+		return nil, fmt.Errorf("assembly after transfer: %w", err)
+	}
+	c.Prob.AdoptAssembled()
+	if _, rr.ForceTransfer, err = c.Cfg.Measure(c.Prob); err != nil {
+		return nil, err
+	}
+
+	t0 = time.Now()
+	sopt := c.Cfg.Solver
+	sopt.Dt = math.Min(math.Max(c.Dt, sopt.DtMin), sopt.DtMax)
+	s, err := solver.New(c.Prob, sopt)
+	if err != nil {
+		return nil, err
+	}
+	st, err := s.Increment(t)
+	if err != nil {
+		return nil, fmt.Errorf("re-equilibration at t = %g: %w", t, err)
+	}
+	rr.Iterations = st.Iterations
+	rr.EquilWall = time.Since(t0)
+	if _, rr.ForceAfter, err = c.Cfg.Measure(c.Prob); err != nil {
+		return nil, err
+	}
+	rr.DofsAfter, rr.ElemsAfter = c.Prob.Dofs.N, len(m.Tri)
+	c.Zone = tf.Zone()
+	c.Remeshes++
+	return rr, nil
+}

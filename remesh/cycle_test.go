@@ -1,0 +1,160 @@
+package remesh
+
+import (
+	"bytes"
+	"math"
+	"testing"
+
+	"tearline/criteria"
+	"tearline/remesh/geom"
+	"tearline/solver"
+	"tearline/solver/fem"
+	"tearline/solver/material"
+)
+
+// recorder keeps every record the cycle reports.
+type recorder struct {
+	steps   []StepRecord
+	remesh  []RemeshRecord
+	stopAt  int
+	stopErr error
+}
+
+func (r *recorder) Step(s *StepRecord, c *Cycle) error {
+	r.steps = append(r.steps, *s)
+	if r.stopAt > 0 && s.Step == r.stopAt {
+		return r.stopErr
+	}
+	return nil
+}
+
+func (r *recorder) Remesh(s *RemeshRecord, c *Cycle) error {
+	r.remesh = append(r.remesh, *s)
+	return nil
+}
+
+// elasticSSY is the upper half of a boundary-layer disk of Hencky material
+// under the remote Williams field.
+func elasticSSY(t *testing.T, k float64) CycleConfig {
+	t.Helper()
+	d, err := geom.SSY{Radius: 20, TipRadius: 0.02}.Domain()
+	if err != nil {
+		t.Fatal(err)
+	}
+	el := material.Elastic{Young: 200e3, Poisson: 0.3}
+	mat, err := material.NewHencky(el)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tip := d.Points["tip"]
+	kf := criteria.KField{K: k, El: criteria.Elastic{E: el.Young, Nu: el.Poisson}, Tip: tip.X, Dir: tip.Dir}
+	unit := kf
+	unit.K = 1
+	so := solver.DefaultOptions()
+	so.Dt, so.DtMax, so.TEnd = 0.5, 0.5, 1
+	return CycleConfig{
+		Domain: d, Size: SizeOptions{HFine: 0.05, HFar: 2, FineRadius: 0.5},
+		Material: mat, F0: 0, Fc: 0.02, FBreak: 1, Length: 0.1,
+		BCs: func(m *fem.Mesh) (fem.BCs, error) {
+			return fem.BCs{
+				Symmetries: []fem.Symmetry{{Label: "symmetry", Comp: 1}},
+				Displacements: []fem.Displacement{{Label: "remote", Fix: [2]bool{true, true},
+					Func: func(X [2]float64, t float64) [2]float64 {
+						u := unit.Displacement(X)
+						return [2]float64{k * t * u[0], k * t * u[1]}
+					}}},
+			}, nil
+		},
+		Measure: func(p *fem.Problem) (float64, float64, error) { return k * p.TCommitted, math.NaN(), nil },
+		Solver:  so,
+		J:       &JConfig{Unit: 0.5, Rings: []criteria.Ring{{In: 1, Out: 2}, {In: 2, Out: 4}, {In: 4, Out: 8}}},
+		KField:  &kf, Symmetric: true,
+	}
+}
+
+// TestCycleElasticWilliams runs the cycle on an elastic boundary-layer disk:
+// the domain J on every ring equals the far-field K²(1−ν²)/E within 1%
+// (V4/V11: Williams 1957; Rice 1968; Irwin), a linear problem converges in
+// one iteration per step, and nothing grows.
+func TestCycleElasticWilliams(t *testing.T) {
+	cfg := elasticSSY(t, 100)
+	c, err := NewCycle(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rec recorder
+	out, err := c.Run(&rec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if out.Status != solver.Completed || len(rec.steps) != 2 {
+		t.Fatalf("outcome %+v with %d steps, want completed after 2", out, len(rec.steps))
+	}
+	for _, s := range rec.steps {
+		if len(s.JRings) != 3 {
+			t.Fatalf("step %d: %d ring values, want 3", s.Step, len(s.JRings))
+		}
+		for i, j := range s.JRings {
+			if rel := math.Abs(j-s.JFar) / s.JFar; rel > 0.01 {
+				t.Errorf("step %d ring %d: J = %.6g, far field %.6g (rel. %.2e > 1%%)", s.Step, i, j, s.JFar, rel)
+			}
+		}
+		if s.Da != 0 {
+			t.Errorf("step %d: Δa = %g in an elastic body, want 0", s.Step, s.Da)
+		}
+		if s.Iters > 3 { // Hencky at finite strain: nearly linear at this load
+			t.Errorf("step %d: %d iterations for a linear problem", s.Step, s.Iters)
+		}
+	}
+}
+
+// TestCheckpointRoundTrip stops a run after its first step, writes a
+// checkpoint, resumes from it and checks that the resumed run ends with the
+// same records as one that was never interrupted.
+func TestCheckpointRoundTrip(t *testing.T) {
+	cfg := elasticSSY(t, 100)
+	cfg.Solver.Dt, cfg.Solver.DtMax = 0.25, 0.25
+	full, err := NewCycle(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var all recorder
+	if _, err := full.Run(&all); err != nil {
+		t.Fatal(err)
+	}
+	first, err := NewCycle(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	stop := solver.ErrStop
+	part := recorder{stopAt: 2, stopErr: stop}
+	if _, err := first.Run(&part); err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := first.WriteCheckpoint(&buf, []byte("extra")); err != nil {
+		t.Fatal(err)
+	}
+	again, extra, err := ResumeCycle(cfg, &buf)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if string(extra) != "extra" {
+		t.Errorf("extra state %q, want %q", extra, "extra")
+	}
+	var rest recorder
+	if _, err := again.Run(&rest); err != nil {
+		t.Fatal(err)
+	}
+	got := append(part.steps, rest.steps...)
+	if len(got) != len(all.steps) {
+		t.Fatalf("interrupted run has %d steps, uninterrupted %d", len(got), len(all.steps))
+	}
+	for i := range got {
+		a, b := got[i], all.steps[i]
+		if a.Step != b.Step || math.Abs(a.T-b.T) > 1e-12 || math.Abs(a.JDomain-b.JDomain) > 1e-10*math.Abs(b.JDomain) {
+			t.Errorf("row %d: resumed (step %d, t %g, J %.12g), uninterrupted (step %d, t %g, J %.12g)",
+				i, a.Step, a.T, a.JDomain, b.Step, b.T, b.JDomain)
+		}
+	}
+}
