@@ -1,7 +1,10 @@
 package tri
 
 import (
+	"encoding/json"
 	"math"
+	"os"
+	"strconv"
 	"testing"
 )
 
@@ -135,4 +138,77 @@ func TestInteriorConstraint(t *testing.T) {
 	if rep.MinAngleDeg < DefaultMinAngle-1e-9 || rep.SizeRatioMax > 1+1e-12 {
 		t.Errorf("quality %+v", rep)
 	}
+}
+
+// TestArcSmallAngle meshes a random polygon with arc sides (found by the
+// remesh package's fuzz test, testdata/arc_corner.json) where an arc meets a
+// straight side at about 20°, with Split putting points on the arcs. At such
+// corners Ruppert's refinement cascades unless both sides are split on the
+// same concentric shells (Ruppert 1995 §4): the cascade drove edges to
+// 1e-16 before the arc shells were added. Checks: valid mesh, no edge shorter
+// than 1e-4, arc vertices on their circles, size bound.
+func TestArcSmallAngle(t *testing.T) {
+	raw, err := os.ReadFile("testdata/arc_corner.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var d struct {
+		Points   [][2]float64
+		Segments [][2]int
+		Marks    []int
+		Arcs     map[string][3]float64
+		H        float64
+	}
+	if err := json.Unmarshal(raw, &d); err != nil {
+		t.Fatal(err)
+	}
+	arcs := map[int][3]float64{}
+	for k, v := range d.Arcs {
+		mk, _ := strconv.Atoi(k)
+		arcs[mk] = v
+	}
+	in := &Input{Points: d.Points, Segments: d.Segments, SegmentMarks: d.Marks}
+	split := func(mark int, a, b [2]float64) [2]float64 {
+		m := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+		ci, ok := arcs[mark]
+		if !ok {
+			return m
+		}
+		dx, dy := m[0]-ci[0], m[1]-ci[1]
+		l := math.Hypot(dx, dy)
+		return [2]float64{ci[0] + ci[2]*dx/l, ci[1] + ci[2]*dy/l}
+	}
+	size := func(x, y float64) float64 { return d.H * (1 + math.Abs(x)) }
+	m, err := Triangulate(in, &Options{Size: size, Split: split})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Check(m); err != nil {
+		t.Fatal(err)
+	}
+	shortest := math.Inf(1)
+	for _, tr := range m.Triangles {
+		for k := 0; k < 3; k++ {
+			shortest = math.Min(shortest, dist(m.Points[tr[k]], m.Points[tr[(k+1)%3]]))
+		}
+	}
+	if shortest < 1e-4 {
+		t.Errorf("shortest edge %g: refinement cascaded at a small angle", shortest)
+	}
+	for j, s := range m.Segments {
+		ci, ok := arcs[m.SegmentMarks[j]]
+		if !ok {
+			continue
+		}
+		for _, v := range s {
+			if r := dist(m.Points[v], [2]float64{ci[0], ci[1]}); math.Abs(r-ci[2]) > 1e-12 {
+				t.Errorf("arc vertex %d at radius %.15g, want %.15g", v, r, ci[2])
+			}
+		}
+	}
+	rep := Quality(m, size)
+	if rep.SizeRatioMax > 1+1e-12 {
+		t.Errorf("size ratio %g", rep.SizeRatioMax)
+	}
+	t.Logf("%+v, shortest edge %.3g", rep, shortest)
 }

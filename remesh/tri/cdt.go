@@ -33,6 +33,7 @@ func (m *tmesh) build(pts [][2]float64) error {
 	if diam > 1e150 {
 		return fmt.Errorf("tri: input extent %g is too large (at most 1e150)", diam)
 	}
+	m.diam = diam
 	m.xy = make([][2]float64, 0, 2*n+16)
 	for _, p := range pts {
 		m.addVertex(p, vInput)

@@ -14,6 +14,12 @@ type refiner struct {
 	sin2   float64 // sin² of the minimum angle
 	maxPts int
 	inSegs [][2]int // input segments (for the small-angle rule)
+	// smallCorner marks input vertices where two input segments meet at
+	// less than 60°.
+	smallCorner []bool
+	// minLen: sub-segments shorter than this are not split, and triangles
+	// with a shorter edge are not split for their angles.
+	minLen float64
 
 	segQ    []segItem
 	segHead int
@@ -41,8 +47,30 @@ func newRefiner(m *tmesh, in *Input, opt *Options) *refiner {
 	}
 	s := math.Sin(theta * math.Pi / 180)
 	r.sin2 = s * s
+	r.minLen = minSplitLen * m.diam
+	r.smallCorner = make([]bool, len(in.Points))
+	inc := make([][]int32, len(in.Points)) // other ends of the segments at each input vertex
+	for _, sg := range in.Segments {
+		inc[sg[0]] = append(inc[sg[0]], int32(sg[1]))
+		inc[sg[1]] = append(inc[sg[1]], int32(sg[0]))
+	}
+	for w, others := range inc {
+		for i := range others {
+			for j := i + 1; j < len(others); j++ {
+				d1, d2 := sub(m.xy[others[i]], m.xy[w]), sub(m.xy[others[j]], m.xy[w])
+				if dot(d1, d2) > 0.5*math.Sqrt(dot(d1, d1)*dot(d2, d2)) {
+					r.smallCorner[w] = true
+				}
+			}
+		}
+	}
 	return r
 }
+
+// minSplitLen is the length, relative to the input's diameter, below which
+// refinement stops splitting: a safety floor against the cascades that small
+// input angles can cause in floating point.
+const minSplitLen = 1e-9
 
 func (r *refiner) run() error {
 	m := r.m
@@ -175,6 +203,9 @@ func (r *refiner) bad(t int32) bool {
 	if area2*area2 >= r.sin2*l1*l2 {
 		return false
 	}
+	if lmin := math.Min(lab, math.Min(lbc, lca)); lmin < r.minLen*r.minLen {
+		return false
+	}
 	return !r.smallAngleCorner(u, v)
 }
 
@@ -251,16 +282,19 @@ func (r *refiner) splitPoint(a, b int32) [2]float64 {
 	return [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
 }
 
-// splitSeg splits sub-segment s.
+// splitSeg splits sub-segment s (unless it is shorter than minLen).
 func (r *refiner) splitSeg(s int32) error {
 	m := r.m
 	a, b := m.sa[s], m.sb[s]
+	if dist(m.xy[a], m.xy[b]) < r.minLen {
+		return nil
+	}
 	e := m.findEdge(a, b)
 	if e < 0 {
 		return fmt.Errorf("tri: sub-segment %d–%d lost (internal error)", a, b)
 	}
 	if r.split != nil {
-		if done := r.splitCurved(s, e); done {
+		if p, ok := r.curvedPoint(s); ok && r.splitCurved(s, e, p) {
 			return nil
 		}
 	}
@@ -282,19 +316,55 @@ func (r *refiner) splitSeg(s int32) error {
 	return nil
 }
 
-// splitCurved splits the boundary sub-segment s (on edge reference e) at the
-// point given by Options.Split, if that point is acceptable; it reports
-// whether it did.
-func (r *refiner) splitCurved(s, e int32) bool {
+// curvedPoint asks Options.Split for the split point of sub-segment s and
+// reports whether it is usable: finite, projecting onto the middle 20–80 %
+// of the chord, off the chord by more than 1e-9 and at most 1/2 of its
+// length. Next to an input vertex with a small angle, the point is moved
+// along the curve (by bisection with Split) to the power-of-two shell
+// distance from that vertex, so that both sides of the angle are split on
+// the same shells (Ruppert 1995 §4).
+func (r *refiner) curvedPoint(s int32) ([2]float64, bool) {
 	m := r.m
-	if m.tn[e] >= 0 {
-		return false // interior constraint: split on the chord
+	a, b := m.sa[s], m.sb[s]
+	x1, x2 := m.xy[a], m.xy[b]
+	p := r.split(m.smark[s], x1, x2)
+	if !r.curvedOK(p, x1, x2) {
+		return p, false
 	}
-	t, i := e/3, e%3
-	c, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
-	x1, x2 := m.xy[p1], m.xy[p2]
-	a, b := m.xy[m.sa[s]], m.xy[m.sb[s]]
-	p := r.split(m.smark[s], a, b)
+	ia, ib := m.vseg[a] == vInput && r.smallCorner[a], m.vseg[b] == vInput && r.smallCorner[b]
+	if ia == ib || m.vseg[a] == vInput && m.vseg[b] == vInput {
+		return p, true
+	}
+	w, o := x1, x2
+	if ib {
+		w, o = x2, x1
+	}
+	L := dist(x1, x2)
+	d := math.Exp2(math.Ceil(math.Log2(L / 3)))
+	if f := d / L; !(f > 0.3 && f < 0.7) {
+		return p, true
+	}
+	lo, hi := w, o // points on the curve with |lo−w| < d ≤ |hi−w|
+	for it := 0; it < 60 && dist(lo, hi) > 1e-14*L; it++ {
+		q := r.split(m.smark[s], lo, hi)
+		if !r.curvedOK(q, lo, hi) && dist(lo, hi) > 1e-6*L {
+			return p, true // Split misbehaves on short pieces: keep its midpoint
+		}
+		if dist(q, w) < d {
+			lo = q
+		} else {
+			hi = q
+		}
+	}
+	q := [2]float64{0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])}
+	if !r.curvedOK(q, x1, x2) {
+		return p, true
+	}
+	return q, true
+}
+
+// curvedOK reports whether p is an acceptable curved split point of a–b.
+func (r *refiner) curvedOK(p, x1, x2 [2]float64) bool {
 	if math.IsNaN(p[0]) || math.IsNaN(p[1]) || math.IsInf(p[0], 0) || math.IsInf(p[1], 0) {
 		return false
 	}
@@ -302,11 +372,21 @@ func (r *refiner) splitCurved(s, e int32) bool {
 	L2 := dot(d, d)
 	q := sub(p, x1)
 	tpar := dot(q, d) / L2
-	off := (d[0]*q[1] - d[1]*q[0]) / math.Sqrt(L2) // > 0: towards the interior
 	L := math.Sqrt(L2)
-	if tpar < 0.2 || tpar > 0.8 || math.Abs(off) > 0.5*L || math.Abs(off) <= 1e-9*L {
-		return false
+	off := (d[0]*q[1] - d[1]*q[0]) / L
+	return tpar >= 0.2 && tpar <= 0.8 && math.Abs(off) <= 0.5*L && math.Abs(off) > 1e-9*L
+}
+
+// splitCurved splits the boundary sub-segment s (on edge reference e) at the
+// curved point p; it reports whether it could.
+func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
+	m := r.m
+	if m.tn[e] >= 0 {
+		return false // interior constraint: split on the chord
 	}
+	t, i := e/3, e%3
+	c, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
+	x1, x2 := m.xy[p1], m.xy[p2]
 	o := orient(x1, x2, p)
 	// new sub-segments: h1 on p1–v, h2 on v–p2
 	var v int32
@@ -384,8 +464,10 @@ func (r *refiner) splitTri(t int32) {
 	kind, ref := m.locate(c, t, true)
 	switch kind {
 	case locSeg:
-		r.pushSeg(m.ts[ref])
-		r.pushTri(t)
+		if s := m.ts[ref]; dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+			r.pushSeg(s)
+			r.pushTri(t)
+		}
 		return
 	case locVert, locOut:
 		return
@@ -430,10 +512,16 @@ func (r *refiner) splitTri(t int32) {
 	}
 	m.stack = st
 	if len(r.enc) > 0 {
+		pushed := false
 		for _, s := range r.enc {
-			r.pushSeg(s)
+			if dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+				r.pushSeg(s)
+				pushed = true
+			}
 		}
-		r.pushTri(t)
+		if pushed {
+			r.pushTri(t)
+		}
 		return
 	}
 	v := m.addVertex(c, vFree)

@@ -25,6 +25,8 @@ type tmesh struct {
 	smark  []int   // boundary-piece mark
 	sorig  []int32 // input segment index
 
+	diam float64 // diameter of the input's bounding box
+
 	rng   uint64
 	stamp []uint32 // per triangle, for traversals
 	epoch uint32
