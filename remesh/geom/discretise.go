@@ -362,7 +362,7 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 }
 
 // crowdedArcs returns the arc pieces that have a chord whose sagitta
-// exceeds a quarter of the distance from its arc midpoint to another piece.
+// exceeds a tenth of the distance from its arc midpoint to another piece.
 func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
 	type pbox struct {
 		p      *Piece
@@ -393,7 +393,7 @@ func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
 			continue
 		}
 		m := p.Split(a, b)
-		reach := 4 * sag
+		reach := 10 * sag
 		for j := range boxes {
 			if j == gi {
 				continue
