@@ -1,0 +1,41 @@
+package main
+
+// complete fills defaults and validates every section of the case. The
+// geometry is built once here so that the loading and adaptivity defaults
+// can follow the specimen (a crack tip switches adaptivity on; the
+// boundary labels choose the natural load).
+func (c *caseFile) complete(src *caseSource) error {
+	if err := c.Material.complete(src); err != nil {
+		return err
+	}
+	d, err := c.Geometry.domain(src)
+	if err != nil {
+		return err
+	}
+	if _, err := c.Mesh.sizeField(d, src, c.Material.Length); err != nil {
+		return err
+	}
+	_, hasTip := d.Points["tip"]
+	natural := "displacement"
+	for _, l := range d.Labels() {
+		switch l {
+		case "remote":
+			natural = "k_field"
+		case "pin":
+			natural = "pin"
+		}
+	}
+	if err := c.Loading.complete(src, natural); err != nil {
+		return err
+	}
+	if err := c.Solver.complete(src); err != nil {
+		return err
+	}
+	if err := c.Stop.complete(src); err != nil {
+		return err
+	}
+	if err := c.Output.complete(src); err != nil {
+		return err
+	}
+	return c.Adapt.complete(src, hasTip)
+}

@@ -1,0 +1,407 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"sort"
+	"strings"
+	"sync/atomic"
+	"syscall"
+	"time"
+
+	"tearline/criteria"
+	"tearline/remesh"
+	"tearline/solver"
+)
+
+// setFlags collects repeated --set arguments.
+type setFlags []string
+
+func (s *setFlags) String() string     { return strings.Join(*s, " ") }
+func (s *setFlags) Set(v string) error { *s = append(*s, v); return nil }
+
+// parseArgs parses flags that may stand before or after the positional
+// arguments (Go's flag package stops at the first positional one).
+func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			return pos, nil
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+}
+
+const runUsage = `usage: tearline run CASE.toml -o DIR [--set section.key=value ...]
+
+Runs a case into the run folder DIR (created; it must not hold a run already):
+case.toml, history.csv, remesh.csv, summary.json, fields/, checkpoint/, plots/.
+Ctrl-C stops cleanly with a checkpoint; 'tearline resume DIR' continues.
+Exit status: 0 completed, 1 stopped early (results so far kept), 2 bad input.
+`
+
+func runCommand(args []string, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("run", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.Usage = func() { fmt.Fprint(stderr, runUsage) }
+	out := fs.String("o", "", "run folder")
+	var sets setFlags
+	fs.Var(&sets, "set", "override section.key=value (repeatable)")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return 0
+		}
+		return 2
+	}
+	if len(pos) != 1 || *out == "" {
+		fmt.Fprintf(stderr, "tearline run: need one case file and -o DIR\n%s", runUsage)
+		return 2
+	}
+	return startRun(pos[0], *out, sets, stdout, stderr)
+}
+
+// startRun validates a case and runs it into dir.
+func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int {
+	c, src, err := loadCase(casePath, sets)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 2
+	}
+	rs, err := buildRun(c, src)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 2
+	}
+	if err := prepareRunFolder(dir); err != nil {
+		fmt.Fprintf(stderr, "tearline: run folder %s: %v\n", dir, err)
+		return 2
+	}
+	text, err := c.encode()
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 2
+	}
+	if err := writeFileAtomic(filepath.Join(dir, "case.toml"), func(w io.Writer) error { _, err := w.Write(text); return err }); err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 1
+	}
+	cyc, err := remesh.NewCycle(rs.cfg)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return exitFor(err)
+	}
+	ob, err := newObserver(dir, c, rs, hashBytes(text), stdout, false)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 1
+	}
+	return ob.run(cyc, stderr)
+}
+
+// exitFor maps an error to the exit status.
+func exitFor(err error) int {
+	if isInputError(err) {
+		return 2
+	}
+	return 1
+}
+
+// prepareRunFolder creates dir and its sub-folders; a folder that already
+// holds a run is refused, so that no result is ever overwritten.
+func prepareRunFolder(dir string) error {
+	for _, f := range []string{"history.csv", "summary.json", "checkpoint"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err == nil {
+			return fmt.Errorf("already holds a run (%s); use 'tearline resume %s' or choose another folder", f, dir)
+		}
+	}
+	for _, sub := range []string{"", "fields", "checkpoint", "plots"} {
+		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// observer writes the run folder as the cycle reports.
+type observer struct {
+	dir      string
+	c        *caseFile
+	rs       *runSetup
+	hash     string
+	stdout   io.Writer
+	tty      bool
+	history  *csvTable
+	remeshes *csvTable
+	rows     []historyRow
+	nRemesh  int
+	pvd      []pvdEntry
+	lastCP   time.Time
+	cpEvery  time.Duration
+	stopping atomic.Bool
+	lastMesh int // step of the last boundary file
+	started  time.Time
+	iters    []int
+}
+
+// pvdEntry is one field file of the collection.
+type pvdEntry struct {
+	T    float64 `json:"t"`
+	File string  `json:"file"`
+}
+
+// observerState is what a checkpoint carries of the observer (Extra).
+type observerState struct {
+	HistoryRows int        `json:"history_rows"`
+	RemeshRows  int        `json:"remesh_rows"`
+	Fields      []pvdEntry `json:"fields"`
+	Iters       []int      `json:"iters"`
+}
+
+var remeshColumns = []string{
+	"remesh", "step", "t", "da", "reason", "dofs_before", "dofs_after", "elements_before", "elements_after",
+	"min_size", "min_angle_deg", "force_before", "force_after_transfer", "force_after_equilibrium",
+	"max_porosity_before", "max_porosity_after", "int_p_before", "int_p_after",
+	"work_before", "work_after", "removed_elements", "verbatim_points", "equilibrium_iters",
+	"geometry_s", "mesh_s", "transfer_s", "equilibrium_s",
+}
+
+func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.Writer, resume bool) (*observer, error) {
+	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, stdout: stdout, lastCP: time.Now(),
+		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute)), lastMesh: -1, started: time.Now()}
+	if f, ok := stdout.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			ob.tty = true
+		}
+	}
+	if resume {
+		return ob, nil
+	}
+	var err error
+	if ob.history, err = createCSV(filepath.Join(dir, "history.csv"), historyColumns); err != nil {
+		return nil, err
+	}
+	if ob.remeshes, err = createCSV(filepath.Join(dir, "remesh.csv"), remeshColumns); err != nil {
+		return nil, err
+	}
+	return ob, nil
+}
+
+// run drives the cycle to its end and writes the summary and plots.
+func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
+	sig := make(chan os.Signal, 1)
+	signal.Notify(sig, os.Interrupt, syscall.SIGTERM)
+	defer signal.Stop(sig)
+	go func() {
+		if _, ok := <-sig; ok {
+			ob.stopping.Store(true)
+		}
+	}()
+	if cyc.Steps == 0 {
+		if err := ob.writeFields(cyc); err != nil {
+			fmt.Fprintf(stderr, "tearline: fields: %v\n", err)
+		}
+	}
+	outc, err := cyc.Run(ob)
+	if ob.tty {
+		fmt.Fprintln(ob.stdout)
+	}
+	status, reason := outc.Status.String(), outc.Reason
+	code := 0
+	switch {
+	case errors.Is(err, errInterrupted):
+		status, reason, code = "stopped", "interrupted (Ctrl-C or SIGTERM); resume with 'tearline resume'", 1
+	case err != nil:
+		status, reason, code = "stopped", err.Error(), 1
+	case outc.Status == solver.Stopped:
+		code = 1
+	case outc.Status == solver.Completed && reason == "":
+		reason = fmt.Sprintf("reached stop.t = %g", ob.c.Stop.T)
+	}
+	if cerr := ob.checkpoint(cyc); cerr != nil {
+		fmt.Fprintf(stderr, "tearline: checkpoint: %v\n", cerr)
+		code = 1
+	}
+	if ferr := ob.writeFields(cyc); ferr != nil {
+		fmt.Fprintf(stderr, "tearline: fields: %v\n", ferr)
+	}
+	if perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows); perr != nil {
+		fmt.Fprintf(stderr, "tearline: plots: %v\n", perr)
+	}
+	s := summary{Status: status, Reason: reason, Steps: cyc.Steps, Remeshes: cyc.Remeshes, FinalDa: cyc.Da,
+		FinalT: cyc.Prob.TCommitted, PeakDofs: cyc.PeakDofs, PeakRSSMB: peakRSSMB(), WallSeconds: cyc.Wall.Seconds(),
+		CaseSHA256: ob.hash, MedianIters: medianInt(ob.iters)}
+	if n := len(ob.rows); n > 0 && !math.IsNaN(ob.rows[n-1].JDomain) {
+		s.FinalJDomain = ob.rows[n-1].JDomain
+	}
+	if err := writeSummary(ob.dir, s); err != nil {
+		fmt.Fprintf(stderr, "tearline: summary: %v\n", err)
+		code = 1
+	}
+	ob.history.Close()
+	ob.remeshes.Close()
+	fmt.Fprintf(ob.stdout, "tearline: %s after %d steps, %d remeshes, Δa = %.4g, t = %.4g (%s); results in %s\n",
+		status, cyc.Steps, cyc.Remeshes, cyc.Da, cyc.Prob.TCommitted, reason, ob.dir)
+	if status == "stopped" {
+		fmt.Fprintf(stderr, "tearline: stopped: %s\n", reason)
+	}
+	return code
+}
+
+var errInterrupted = errors.New("interrupted")
+
+// Step records a converged step: history row, fields, checkpoint, progress.
+func (ob *observer) Step(r *remesh.StepRecord, cyc *remesh.Cycle) error {
+	row := historyRow{Step: r.Step, T: r.T, Control: r.Control, Force: r.Force, JFar: r.JFar, JDomain: r.JDomain,
+		Da: r.Da, DaProj: r.DaProj, CTOD: r.CTOD, Dofs: r.Dofs, Elements: r.Elements, Remeshes: r.Remeshes,
+		Iters: r.Iters, Wall: r.CumWall.Seconds(), RSS: peakRSSMB(), JE1820: math.NaN(), Tearing: math.NaN(),
+		MaxPorosity: r.MaxPorosity}
+	if len(cyc.Seeds) == 0 {
+		row.Da, row.DaProj = math.NaN(), math.NaN()
+	}
+	ob.rows = append(ob.rows, row)
+	ob.iters = append(ob.iters, r.Iters)
+	ob.fracture()
+	if err := ob.history.write(ob.rows[len(ob.rows)-1].fields()); err != nil {
+		return fmt.Errorf("history.csv: %w", err)
+	}
+	if r.Step%ob.c.Output.FieldsEvery == 0 {
+		if err := ob.writeFields(cyc); err != nil {
+			return err
+		}
+	}
+	if time.Since(ob.lastCP) >= ob.cpEvery {
+		if err := ob.checkpoint(cyc); err != nil {
+			return err
+		}
+	}
+	ob.progress(r)
+	if ob.stopping.Load() {
+		return errInterrupted
+	}
+	return nil
+}
+
+// fracture fills the E1820 J and the tearing modulus of the last row.
+func (ob *observer) fracture() {
+	n := len(ob.rows)
+	last := &ob.rows[n-1]
+	if ct := ob.rs.ct; ct != nil {
+		rec := make([]criteria.CTRecord, 0, n+1)
+		rec = append(rec, criteria.CTRecord{P: 0, V: 0, A: ct.A0})
+		for _, r := range ob.rows {
+			da := r.DaProj
+			if math.IsNaN(da) {
+				da = 0
+			}
+			rec = append(rec, criteria.CTRecord{P: r.Force, V: r.Control, A: ct.A0 + da})
+		}
+		if js, err := criteria.E1820J(*ct, rec, criteria.E1820Options{Mode: criteria.ComplianceCrack}); err == nil && len(js) == len(rec) {
+			last.JE1820 = js[len(js)-1].J
+		}
+	}
+	if ob.rs.sigma0 > 0 && ob.rs.length > 0 {
+		var da, j []float64
+		for _, r := range ob.rows {
+			jv := r.JDomain
+			if ob.rs.ct != nil && !math.IsNaN(r.JE1820) {
+				jv = r.JE1820
+			}
+			if !math.IsNaN(r.Da) && !math.IsNaN(jv) {
+				da, j = append(da, r.Da), append(j, jv)
+			}
+		}
+		if len(da) >= 3 {
+			if tm, err := criteria.TearingModulus(da, j, ob.rs.young, ob.rs.sigma0, 2*ob.rs.length); err == nil {
+				last.Tearing = tm[len(tm)-1]
+			}
+		}
+	}
+}
+
+// Remesh records a remesh and checkpoints right after it.
+func (ob *observer) Remesh(r *remesh.RemeshRecord, cyc *remesh.Cycle) error {
+	f := func(v float64) string { return fmt.Sprintf("%.10g", v) }
+	s := func(d time.Duration) string { return fmt.Sprintf("%.4f", d.Seconds()) }
+	fields := []string{fmt.Sprint(r.Index), fmt.Sprint(r.Step), f(r.T), f(r.Da), r.Reason,
+		fmt.Sprint(r.DofsBefore), fmt.Sprint(r.DofsAfter), fmt.Sprint(r.ElemsBefore), fmt.Sprint(r.ElemsAfter),
+		f(r.MinSize), f(r.MinAngle), f(r.ForceBefore), f(r.ForceTransfer), f(r.ForceAfter),
+		f(r.MaxFBefore), f(r.MaxFAfter), f(r.IntPBefore), f(r.IntPAfter), f(r.WorkBefore), f(r.WorkAfter),
+		fmt.Sprint(r.Removed), fmt.Sprint(r.Verbatim), fmt.Sprint(r.Iterations),
+		s(r.GeomWall), s(r.MeshWall), s(r.MapWall), s(r.EquilWall)}
+	if err := ob.remeshes.write(fields); err != nil {
+		return fmt.Errorf("remesh.csv: %w", err)
+	}
+	ob.nRemesh++
+	ob.logf("remesh %d at step %d (Δa = %.4g): %s; unknowns %d → %d, elements %d → %d, min angle %.1f°",
+		r.Index, r.Step, r.Da, r.Reason, r.DofsBefore, r.DofsAfter, r.ElemsBefore, r.ElemsAfter, r.MinAngle)
+	if err := ob.writeFields(cyc); err != nil {
+		return err
+	}
+	return ob.checkpoint(cyc)
+}
+
+// checkpoint writes the committed state atomically.
+func (ob *observer) checkpoint(cyc *remesh.Cycle) error {
+	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters})
+	if err != nil {
+		return err
+	}
+	path := filepath.Join(ob.dir, "checkpoint", "state.gob")
+	if err := writeFileAtomic(path, func(w io.Writer) error { return cyc.WriteCheckpoint(w, extra) }); err != nil {
+		return err
+	}
+	ob.lastCP = time.Now()
+	return nil
+}
+
+// progress prints one line per step: rewritten in place on a terminal,
+// plain log lines otherwise.
+func (ob *observer) progress(r *remesh.StepRecord) {
+	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  Δa %8.4g  J %10.4g  %7.1fs",
+		r.Step, r.T, r.Dofs, r.Iters, nanZero(r.Da), nanZero(r.JDomain), r.CumWall.Seconds())
+	if ob.tty {
+		fmt.Fprintf(ob.stdout, "\r%s", line)
+		return
+	}
+	fmt.Fprintln(ob.stdout, line)
+}
+
+func (ob *observer) logf(format string, args ...any) {
+	if ob.tty {
+		fmt.Fprintln(ob.stdout)
+	}
+	fmt.Fprintf(ob.stdout, format+"\n", args...)
+}
+
+func nanZero(v float64) float64 {
+	if math.IsNaN(v) {
+		return 0
+	}
+	return v
+}
+
+func medianInt(v []int) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	s := append([]int(nil), v...)
+	sort.Ints(s)
+	n := len(s)
+	if n%2 == 1 {
+		return float64(s[n/2])
+	}
+	return 0.5 * float64(s[n/2-1]+s[n/2])
+}

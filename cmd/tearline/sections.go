@@ -1,0 +1,350 @@
+package main
+
+import (
+	"math"
+	"sort"
+	"strings"
+)
+
+// materialSection is [material]: the constitutive model and its parameters.
+type materialSection struct {
+	Model       string       `toml:"model"`        // "gtn" (default) or "elastic"
+	Young       float64      `toml:"young"`        // Young's modulus E
+	Poisson     float64      `toml:"poisson"`      // Poisson's ratio ν, in (−1, 0.5)
+	Yield       float64      `toml:"yield_stress"` // initial yield stress σ₀
+	Hardening   string       `toml:"hardening"`    // "power", "voce", "table" or "perfect"
+	Exponent    float64      `toml:"hardening_exponent"`
+	RefStrain   float64      `toml:"reference_strain"`
+	VoceQ       float64      `toml:"voce_saturation"`
+	VoceB       float64      `toml:"voce_rate"`
+	FlowTable   [][2]float64 `toml:"flow_table"` // [[p, σ], …], p increasing from 0
+	Q1          float64      `toml:"q1"`
+	Q2          float64      `toml:"q2"`
+	F0          float64      `toml:"f0"`
+	Fc          float64      `toml:"fc"`
+	Ff          float64      `toml:"ff"`
+	FBreak      float64      `toml:"f_break"`
+	NuclF       float64      `toml:"nucleation_fraction"`
+	NuclStrain  float64      `toml:"nucleation_strain"`
+	NuclSpread  float64      `toml:"nucleation_spread"`
+	Length      float64      `toml:"length"`  // internal length ℓ; 0 = local model
+	Penalty     float64      `toml:"penalty"` // augmentation penalty r (relative to σ₀)
+	setDefaults bool
+}
+
+// loadingSection is [loading]: what drives the pseudo-time t.
+type loadingSection struct {
+	// Kind is "k_field" (remote Williams field, boundary-layer disk),
+	// "displacement" (prescribed displacement on a label), "pin" (C(T) pin
+	// displacement) or "pressure"; empty chooses the specimen's natural load.
+	Kind      string     `toml:"kind"`
+	K         float64    `toml:"k"`        // K at t = 1 (MPa√mm in the example unit set)
+	TStress   float64    `toml:"t_stress"` // T-stress of the remote field
+	Label     string     `toml:"label"`    // boundary label the load acts on
+	Component string     `toml:"component"`
+	Value     float64    `toml:"value"` // displacement or pressure at t = 1
+	Fix       []fixEntry `toml:"fix"`   // extra supports
+}
+
+// fixEntry is one support: a component of the displacement held at zero on a label.
+type fixEntry struct {
+	Label     string `toml:"label"`
+	Component string `toml:"component"` // "x", "y" (or "r", "z") or "both"
+}
+
+// solverSection is [solver]: Newton iterations and load stepping.
+type solverSection struct {
+	Increment    float64 `toml:"increment"`     // first increment of t
+	MinIncrement float64 `toml:"min_increment"` // stop cleanly below this
+	MaxIncrement float64 `toml:"max_increment"`
+	MaxIter      int     `toml:"max_iterations"`
+	Tolerance    float64 `toml:"tolerance"` // relative residual
+	Mixed        *bool   `toml:"mixed"`     // u–θ–P mixed element (default true)
+	Workers      int     `toml:"workers"`   // goroutines for assembly; 0 = all cores
+}
+
+// stopSection is [stop]: when the run ends.
+type stopSection struct {
+	T        float64 `toml:"t"`         // final pseudo-time
+	Da       float64 `toml:"da"`        // stop once Δa reaches this (0 = no limit)
+	MaxSteps int     `toml:"max_steps"` // converged steps at most
+	Hours    float64 `toml:"hours"`     // wall-clock limit (0 = none)
+}
+
+// outputSection is [output]: what goes into the run folder.
+type outputSection struct {
+	FieldsEvery       int     `toml:"fields_every"`       // write fields every N steps (and the last)
+	CheckpointMinutes float64 `toml:"checkpoint_minutes"` // checkpoint interval
+}
+
+// adaptSection is [adapt]: the adaptive remeshing cycle.
+type adaptSection struct {
+	Enabled  *bool   `toml:"enabled"` // default: true when the geometry has a crack tip
+	Margin   float64 `toml:"margin"`  // remesh when the front is within this many ℓ of the fine zone's edge
+	Ahead    float64 `toml:"ahead"`   // fine zone reaches this many ℓ ahead of the tip
+	Wake     float64 `toml:"wake"`    // element size in the wake, as a multiple of h_fine
+	AlertP   float64 `toml:"alert_plastic_strain"`
+	MaxRuns  int     `toml:"max_remeshes"`
+	Coarsen  *bool   `toml:"coarsen_wake"`
+	Simplify float64 `toml:"simplify"` // crack-face simplification tolerance, × local size
+}
+
+// choice checks that value is one of allowed.
+func choice(value string, allowed []string, src *caseSource, key string) error {
+	for _, a := range allowed {
+		if value == a {
+			return nil
+		}
+	}
+	return badInput("%s: %q is not allowed; use one of %s", src.where(key), value, strings.Join(allowed, ", "))
+}
+
+// positive checks v > 0.
+func positive(v float64, src *caseSource, key string) error {
+	if !(v > 0) || math.IsInf(v, 0) {
+		return badInput("%s: %g must be a positive number", src.where(key), v)
+	}
+	return nil
+}
+
+// nonNegative checks v ≥ 0.
+func nonNegative(v float64, src *caseSource, key string) error {
+	if !(v >= 0) || math.IsInf(v, 0) {
+		return badInput("%s: %g must be zero or positive", src.where(key), v)
+	}
+	return nil
+}
+
+func (m *materialSection) complete(src *caseSource) error {
+	if m.Model == "" {
+		m.Model = "gtn"
+	}
+	if err := choice(m.Model, []string{"gtn", "elastic"}, src, "material.model"); err != nil {
+		return err
+	}
+	if m.Young == 0 {
+		m.Young = 200000
+	}
+	if src.lines["material.poisson"] == 0 && src.sets["material.poisson"] == "" && m.Poisson == 0 {
+		m.Poisson = 0.3
+	}
+	if err := positive(m.Young, src, "material.young"); err != nil {
+		return err
+	}
+	if !(m.Poisson > -1 && m.Poisson < 0.5) {
+		return badInput("%s: %g is outside (−1, 0.5)", src.where("material.poisson"), m.Poisson)
+	}
+	if m.Model == "elastic" {
+		return nil
+	}
+	defaults := []struct {
+		v   *float64
+		def float64
+	}{
+		{&m.Yield, 400}, {&m.Q1, 1.5}, {&m.Q2, 1.0}, {&m.F0, 0.002}, {&m.Fc, 0.02}, {&m.Ff, 0.2},
+		{&m.RefStrain, 0.002}, {&m.Exponent, 0.1}, {&m.Penalty, 1},
+	}
+	for _, d := range defaults {
+		if *d.v == 0 {
+			*d.v = d.def
+		}
+	}
+	if m.Hardening == "" {
+		m.Hardening = "power"
+	}
+	if err := choice(m.Hardening, []string{"power", "voce", "table", "perfect"}, src, "material.hardening"); err != nil {
+		return err
+	}
+	vals := map[string]float64{"yield_stress": m.Yield, "q1": m.Q1, "q2": m.Q2, "reference_strain": m.RefStrain}
+	for _, key := range sortedKeys(vals) {
+		if err := positive(vals[key], src, "material."+key); err != nil {
+			return err
+		}
+	}
+	vals = map[string]float64{"f0": m.F0, "length": m.Length, "penalty": m.Penalty,
+		"nucleation_fraction": m.NuclF, "nucleation_strain": m.NuclStrain, "nucleation_spread": m.NuclSpread,
+		"hardening_exponent": m.Exponent, "voce_saturation": m.VoceQ, "voce_rate": m.VoceB}
+	for _, key := range sortedKeys(vals) {
+		if err := nonNegative(vals[key], src, "material."+key); err != nil {
+			return err
+		}
+	}
+	if !(m.F0 < m.Fc && m.Fc < m.Ff && m.Ff < 1/m.Q1) {
+		return badInput("%s: porosities must satisfy 0 ≤ f0 < fc < ff < 1/q1 (= %.4g); have f0 = %g, fc = %g, ff = %g",
+			src.where("material.ff"), 1/m.Q1, m.F0, m.Fc, m.Ff)
+	}
+	if m.FBreak != 0 && !(m.FBreak > m.Fc && m.FBreak < 1/m.Q1) {
+		return badInput("%s: %g must lie in (fc, 1/q1) = (%g, %.4g)", src.where("material.f_break"), m.FBreak, m.Fc, 1/m.Q1)
+	}
+	if m.NuclF > 0 && !(m.NuclSpread > 0) {
+		return badInput("%s: nucleation needs a positive spread s_N", src.where("material.nucleation_spread"))
+	}
+	if m.Hardening == "table" {
+		if len(m.FlowTable) < 2 {
+			return badInput("%s: a tabulated flow curve needs at least 2 rows [p, stress]", src.where("material.flow_table"))
+		}
+		for i, row := range m.FlowTable {
+			if i == 0 && row[0] != 0 {
+				return badInput("%s: the first row must be at p = 0, have %g", src.where("material.flow_table"), row[0])
+			}
+			if i > 0 && !(row[0] > m.FlowTable[i-1][0]) {
+				return badInput("%s: row %d: p = %g must be larger than the previous %g", src.where("material.flow_table"), i+1, row[0], m.FlowTable[i-1][0])
+			}
+			if !(row[1] > 0) {
+				return badInput("%s: row %d: stress %g must be positive", src.where("material.flow_table"), i+1, row[1])
+			}
+		}
+	}
+	return nil
+}
+
+func (l *loadingSection) complete(src *caseSource, natural string) error {
+	if l.Kind == "" {
+		l.Kind = natural
+	}
+	if err := choice(l.Kind, []string{"k_field", "displacement", "pin", "pressure"}, src, "loading.kind"); err != nil {
+		return err
+	}
+	switch l.Kind {
+	case "k_field":
+		if err := positive(l.K, src, "loading.k"); err != nil {
+			return err
+		}
+	case "displacement", "pin", "pressure":
+		if l.Value == 0 {
+			return badInput("%s: the load magnitude at t = 1 must be non-zero", src.where("loading.value"))
+		}
+	}
+	if l.Component != "" {
+		if err := choice(l.Component, []string{"x", "y", "r", "z"}, src, "loading.component"); err != nil {
+			return err
+		}
+	}
+	for i, f := range l.Fix {
+		if f.Label == "" {
+			return badInput("%s: entry %d has no label", src.where("loading.fix"), i+1)
+		}
+		if err := choice(f.Component, []string{"x", "y", "r", "z", "both"}, src, "loading.fix"); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (s *solverSection) complete(src *caseSource) error {
+	if s.Increment == 0 {
+		s.Increment = 0.02
+	}
+	if s.MaxIncrement == 0 {
+		s.MaxIncrement = 0.1
+	}
+	if s.MinIncrement == 0 {
+		s.MinIncrement = 1e-6
+	}
+	if s.MaxIter == 0 {
+		s.MaxIter = 15
+	}
+	if s.Tolerance == 0 {
+		s.Tolerance = 1e-8
+	}
+	if s.Mixed == nil {
+		t := true
+		s.Mixed = &t
+	}
+	vals := map[string]float64{"increment": s.Increment, "min_increment": s.MinIncrement,
+		"max_increment": s.MaxIncrement, "tolerance": s.Tolerance}
+	for _, key := range sortedKeys(vals) {
+		if err := positive(vals[key], src, "solver."+key); err != nil {
+			return err
+		}
+	}
+	if !(s.MinIncrement <= s.Increment && s.Increment <= s.MaxIncrement) {
+		return badInput("%s: need min_increment ≤ increment ≤ max_increment, have %g, %g, %g",
+			src.where("solver.increment"), s.MinIncrement, s.Increment, s.MaxIncrement)
+	}
+	if s.MaxIter < 1 || s.MaxIter > 200 {
+		return badInput("%s: %d must be between 1 and 200", src.where("solver.max_iterations"), s.MaxIter)
+	}
+	if s.Workers < 0 {
+		return badInput("%s: %d must be ≥ 0 (0 = all cores)", src.where("solver.workers"), s.Workers)
+	}
+	return nil
+}
+
+func (s *stopSection) complete(src *caseSource) error {
+	if s.T == 0 {
+		s.T = 1
+	}
+	if s.MaxSteps == 0 {
+		s.MaxSteps = 100000
+	}
+	if err := positive(s.T, src, "stop.t"); err != nil {
+		return err
+	}
+	vals := map[string]float64{"da": s.Da, "hours": s.Hours}
+	for _, key := range sortedKeys(vals) {
+		if err := nonNegative(vals[key], src, "stop."+key); err != nil {
+			return err
+		}
+	}
+	if s.MaxSteps < 0 {
+		return badInput("%s: %d must be positive", src.where("stop.max_steps"), s.MaxSteps)
+	}
+	return nil
+}
+
+func (o *outputSection) complete(src *caseSource) error {
+	if o.FieldsEvery == 0 {
+		o.FieldsEvery = 10
+	}
+	if o.CheckpointMinutes == 0 {
+		o.CheckpointMinutes = 15
+	}
+	if o.FieldsEvery < 0 {
+		return badInput("%s: %d must be positive", src.where("output.fields_every"), o.FieldsEvery)
+	}
+	return positive(o.CheckpointMinutes, src, "output.checkpoint_minutes")
+}
+
+func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
+	if a.Enabled == nil {
+		a.Enabled = &hasCrack
+	}
+	if a.Coarsen == nil {
+		t := true
+		a.Coarsen = &t
+	}
+	defs := []struct {
+		v   *float64
+		def float64
+	}{{&a.Margin, 1}, {&a.Ahead, 4}, {&a.Wake, 4}, {&a.AlertP, 0.02}, {&a.Simplify, 0.25}}
+	for _, d := range defs {
+		if *d.v == 0 {
+			*d.v = d.def
+		}
+	}
+	vals := map[string]float64{"margin": a.Margin, "ahead": a.Ahead, "wake": a.Wake,
+		"alert_plastic_strain": a.AlertP, "simplify": a.Simplify}
+	for _, key := range sortedKeys(vals) {
+		if err := positive(vals[key], src, "adapt."+key); err != nil {
+			return err
+		}
+	}
+	if a.Wake < 1 {
+		return badInput("%s: %g must be ≥ 1 (a multiple of h_fine)", src.where("adapt.wake"), a.Wake)
+	}
+	if a.MaxRuns < 0 {
+		return badInput("%s: %d must be ≥ 0 (0 = no limit)", src.where("adapt.max_remeshes"), a.MaxRuns)
+	}
+	return nil
+}
+
+// sortedKeys lists a map's keys in order, for stable messages.
+func sortedKeys[M ~map[string]V, V any](m M) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}
