@@ -67,6 +67,11 @@ type Options struct {
 	// Diverge: an attempt fails when the scaled residual norm exceeds
 	// Diverge times its value at the start of the increment.
 	Diverge float64
+	// Extrapolate starts each increment from the linear extrapolation of
+	// the previous converged increment (scaled by the ratio of the
+	// increments) instead of the last converged state; retries after a
+	// failure start from the converged state.
+	Extrapolate bool
 	// Linear is the linear solver; nil means an equilibrated sparse.LU
 	// with its default options.
 	Linear LinearSolver
@@ -75,12 +80,12 @@ type Options struct {
 // DefaultOptions returns the defaults: t from 0 to 1 in a first increment
 // of 0.1 (0.1 ≤ Δt ≤ 1 adaptively, down to 1e-6), 15 iterations, RTol 1e-6,
 // UTol 1e-4, TightFactor 1e-3, growth 1.5 after ≤ 4 iterations, halving on
-// failure, line search on (4 trials), divergence at 1e6×.
+// failure, line search on (4 trials), divergence at 1e6×, extrapolation on.
 func DefaultOptions() Options {
 	return Options{
 		TEnd: 1, Dt: 0.1, DtMin: 1e-6, DtMax: 1, MaxSteps: 100000, MaxIter: 15,
 		RTol: 1e-6, UTol: 1e-4, TightFactor: 1e-3, Grow: 1.5, EasyIter: 4, Cut: 0.5,
-		LineSearch: true, LineSearchMax: 4, Diverge: 1e6,
+		LineSearch: true, LineSearchMax: 4, Diverge: 1e6, Extrapolate: true,
 	}
 }
 
@@ -176,6 +181,8 @@ type Solver struct {
 	history  []float64
 	analysed bool
 	dt       float64
+	dPrev    []float64 // last converged increment of the unknowns
+	dtPrev   float64   // and its time increment (0: none usable)
 }
 
 // New returns a solver for p.
@@ -194,6 +201,7 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 	s.du = make([]float64, n)
 	s.u0 = make([]float64, n)
 	s.rBase = make([]float64, n)
+	s.dPrev = make([]float64, n)
 	s.history = make([]float64, 0, opt.MaxIter+1)
 	return s, nil
 }
@@ -212,6 +220,11 @@ func (e *attemptError) Error() string {
 }
 func (e *attemptError) Unwrap() error { return e.err }
 
+// ResetHistory forgets the previous increment (no extrapolation into the
+// next one); call it after changing the problem's state from outside
+// (state transfer, new boundary conditions).
+func (s *Solver) ResetHistory() { s.dtPrev = 0 }
+
 // Increment attempts one increment from the committed state to time t. On
 // success the state is committed and the step returned; on failure the
 // problem is rolled back to the committed state and the error says why.
@@ -226,8 +239,13 @@ func (s *Solver) Increment(t float64) (Step, error) {
 	st.Residuals = s.history
 	if err != nil {
 		p.Rollback()
+		s.dtPrev = 0 // retry from the converged state
 		return st, err
 	}
+	for i := range s.dPrev {
+		s.dPrev[i] = p.U[i] - p.Committed[i]
+	}
+	s.dtPrev = st.Dt
 	p.Commit()
 	return st, nil
 }
@@ -237,6 +255,12 @@ func (s *Solver) Increment(t float64) (Step, error) {
 func (s *Solver) newton(t float64) (int, error) {
 	p, o := s.P, s.Opt
 	p.Rollback()
+	if dt := t - p.TCommitted; o.Extrapolate && s.dtPrev > 0 && dt > 0 {
+		f := dt / s.dtPrev
+		for i, d := range s.dPrev {
+			p.U[i] += f * d
+		}
+	}
 	p.SetTime(t)
 	if err := p.Assemble(true); err != nil {
 		return 0, &attemptError{"assembly at the start of the increment failed", err}

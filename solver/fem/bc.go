@@ -161,7 +161,11 @@ func (p *Problem) setBCs(b BCs) error {
 			// the same field, or a symmetry line meeting a fixed edge):
 			// checked at t = 0.5 and t = 1.
 			o := p.presc[i]
-			if o.at(0.5) == q.at(0.5) && o.at(1) == q.at(1) {
+			agree := func(t float64) bool {
+				x, y := o.at(t), q.at(t)
+				return math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))+1e-14*p.size
+			}
+			if agree(0.5) && agree(1) {
 				return nil
 			}
 			return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)

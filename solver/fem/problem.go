@@ -433,7 +433,9 @@ func (p *Problem) SetNodalField(f Field, v []float64) error {
 // Reaction returns the resultant of the residual force (internal −
 // external) over the nodes of a boundary label at the last assembly: the
 // reaction of the prescribed displacements there (in axisymmetry, the
-// force on the whole ring).
+// force on the whole ring). Nodes the label shares with another
+// constrained label (corners) contribute the reactions of both; use
+// NodeReaction to separate them.
 func (p *Problem) Reaction(label string) ([2]float64, error) {
 	nodes, ok := p.label[label]
 	if !ok {
@@ -445,6 +447,26 @@ func (p *Problem) Reaction(label string) ([2]float64, error) {
 		f[1] += p.Full[p.Dofs.Of(n, Uy)]
 	}
 	return f, nil
+}
+
+// LabelNodes returns the nodes of a boundary label (corner and midside);
+// the slice belongs to the problem.
+func (p *Problem) LabelNodes(label string) ([]int, error) {
+	nodes, ok := p.label[label]
+	if !ok {
+		return nil, fmt.Errorf("fem: no boundary label %q (the mesh has %v)", label, p.Mesh.Labels)
+	}
+	return nodes, nil
+}
+
+// NodeReaction returns the residual force (internal − external) at node n
+// at the last assembly: the reaction where n is constrained. A node shared
+// by two constrained labels (a corner) carries the reactions of both.
+func (p *Problem) NodeReaction(n int) ([2]float64, error) {
+	if n < 0 || n >= len(p.Mesh.X) {
+		return [2]float64{}, fmt.Errorf("fem: node %d out of range (%d nodes)", n, len(p.Mesh.X))
+	}
+	return [2]float64{p.Full[p.Dofs.Of(n, Ux)], p.Full[p.Dofs.Of(n, Uy)]}, nil
 }
 
 // PointReaction returns the residual force at a named node.

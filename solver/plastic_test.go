@@ -1,0 +1,132 @@
+package solver
+
+import (
+	"math"
+	"testing"
+
+	"tearline/solver/fem"
+	"tearline/solver/material"
+)
+
+// misesModel returns the material package's GTN model with no porosity and
+// no nucleation — von Mises plasticity (f stays 0 because the plastic flow
+// is then isochoric) — elastic-perfectly plastic with yield stress s0.
+func misesModel(t *testing.T, s0 float64) material.Model {
+	t.Helper()
+	par := material.DefaultGTN()
+	par.Hardening = material.PerfectlyPlastic{Sigma0: s0}
+	par.F0, par.FN = 0, 0
+	m, err := material.NewGTN(par)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// convergenceOrder estimates the order q of the last Newton iterations
+// from the scaled residuals, q ≈ log(r_{k+1}/r_k)/log(r_k/r_{k−1}), using
+// the last three residuals above round-off (1e-10 of the first).
+func convergenceOrder(r []float64) (float64, bool) {
+	var s []float64
+	for _, v := range r {
+		if v > 1e-10*r[0] {
+			s = append(s, v)
+		}
+	}
+	if len(s) < 3 {
+		return 0, false
+	}
+	n := len(s)
+	return math.Log(s[n-1]/s[n-2]) / math.Log(s[n-2]/s[n-3]), true
+}
+
+// borePressure returns the pressure on the quarter bore of radius a from
+// the reactions of its prescribed displacement: the resultant of a
+// pressure q is (q a, q a). The corner nodes also carry the reaction of
+// the symmetry lines in the component those fix, so that component is
+// left out there (by symmetry the bore's own share of it vanishes).
+func borePressure(t *testing.T, p *fem.Problem, a float64) float64 {
+	t.Helper()
+	nodes, err := p.LabelNodes("left")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var fx, fy float64
+	for _, n := range nodes {
+		f, _ := p.NodeReaction(n)
+		X := p.Mesh.X[n]
+		if X[0] > 1e-9*a {
+			fx += f[0]
+		}
+		if X[1] > 1e-9*a {
+			fy += f[1]
+		}
+	}
+	return 0.5 * math.Abs(fx+fy) / a
+}
+
+// TestThickCylinderCollapse is V7: a thick cylinder b/a = 2 of
+// elastic-perfectly plastic von Mises material in plane strain, expanded
+// by a prescribed bore displacement of 2.7 times the one at which the
+// plastic zone reaches the outer surface, carries the
+// collapse pressure (2/√3)σ₀ ln(b/a) within 1% (Hill 1950, The
+// Mathematical Theory of Plasticity, ch. V). The same run shows the
+// quadratic convergence of Newton's method on plastic steps (consistent
+// tangent; Simo & Taylor 1985, CMAME 48): the estimated order of the last
+// iterations of the steps with at least three iterations is ≥ 1.6.
+func TestThickCylinderCollapse(t *testing.T) {
+	const a, b, s0, delta = 1.0, 2.0, 100.0, 0.004
+	m, err := fem.Structured(8, 3, fem.AnnularSector(a, b, 0, math.Pi/2, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	bcs := fem.BCs{
+		Symmetries: []fem.Symmetry{{Label: "bottom", Comp: 1}, {Label: "top", Comp: 0}},
+		Displacements: []fem.Displacement{{Label: "left", Fix: [2]bool{true, true}, Func: func(X [2]float64, t float64) [2]float64 {
+			r := math.Hypot(X[0], X[1])
+			return [2]float64{delta * t * X[0] / r, delta * t * X[1] / r}
+		}}},
+	}
+	p, err := fem.NewProblem(m, misesModel(t, s0), fem.Options{}, bcs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := DefaultOptions()
+	o.Dt, o.DtMax = 0.05, 0.2
+	s, err := New(p, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pressure []float64
+	var orders []float64
+	res, err := s.Run(func(st Step) error {
+		pressure = append(pressure, borePressure(t, p, a))
+		if q, ok := convergenceOrder(st.Residuals); ok && st.Iterations >= 3 {
+			orders = append(orders, q)
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != Completed {
+		t.Fatalf("run stopped: %s", res.Reason)
+	}
+	want := 2 / math.Sqrt(3) * s0 * math.Log(b/a)
+	got := pressure[len(pressure)-1]
+	t.Logf("collapse pressure %.4g, Hill %.4g (ratio %.4f); %d steps, %d iterations, orders %.2f", got, want, got/want, res.Steps, res.Iterations, orders)
+	if prev := pressure[len(pressure)-2]; math.Abs(got/prev-1) > 0.003 {
+		t.Errorf("pressure still changing at the end (%.4g then %.4g): not collapsed", prev, got)
+	}
+	if math.Abs(got/want-1) > 0.01 {
+		t.Errorf("collapse pressure %.4g, want %.4g within 1%%", got, want)
+	}
+	if len(orders) == 0 {
+		t.Errorf("no plastic step took three iterations: cannot show the convergence order")
+	}
+	for _, q := range orders {
+		if q < 1.6 {
+			t.Errorf("Newton convergence order %.2f on a plastic step, want ≈ 2 (≥ 1.6)", q)
+		}
+	}
+}
