@@ -130,3 +130,88 @@ func TestThickCylinderCollapse(t *testing.T) {
 		}
 	}
 }
+
+// punchProblem solves the smooth flat punch of half-width B = 1 on an
+// elastic-perfectly plastic von Mises block (half model, 6B × 5B, mesh
+// graded towards the punch edge) pushed down by delta; it returns the mean
+// punch pressure at each converged step.
+func punchProblem(t *testing.T, nx, ny int, disp bool, delta float64) []float64 {
+	t.Helper()
+	const B, L, H, s0 = 1.0, 6.0, 5.0, 100.0
+	place := func(s, tt float64) [2]float64 {
+		var x float64
+		if s <= 0.5 {
+			x = B * (1 - (1-2*s)*(1-2*s))
+		} else {
+			x = B + (L-B)*(2*s-1)*(2*s-1)
+		}
+		return [2]float64{x, -H * (1 - tt) * (1 - tt)}
+	}
+	m, err := fem.Structured(nx, ny, place)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// the top edges under the punch get their own label
+	m.Labels = append(m.Labels, "punch")
+	top := m.Label("top")
+	for i, e := range m.Boundary {
+		if e.Label == top && m.X[e.A][0] <= B+1e-12 && m.X[e.B][0] <= B+1e-12 {
+			m.Boundary[i].Label = len(m.Labels) - 1
+		}
+	}
+	bcs := fem.BCs{
+		Symmetries: []fem.Symmetry{{Label: "left", Comp: 0}, {Label: "right", Comp: 0}, {Label: "bottom", Comp: 1}},
+		// smooth (frictionless) punch: vertical displacement only
+		Displacements: []fem.Displacement{{Label: "punch", Fix: [2]bool{false, true}, Value: [2]float64{0, -delta}}},
+	}
+	p, err := fem.NewProblem(m, misesModel(t, s0), fem.Options{DisplacementOnly: disp}, bcs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := DefaultOptions()
+	o.Dt, o.DtMax = 0.05, 0.1
+	s, err := New(p, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pressure []float64
+	res, err := s.Run(func(st Step) error {
+		f, err := p.Reaction("punch")
+		if err != nil {
+			return err
+		}
+		pressure = append(pressure, math.Abs(f[1])/B)
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != Completed {
+		t.Fatalf("punch run stopped: %s", res.Reason)
+	}
+	t.Logf("punch %dx%d displacement-only %v: %d steps, %d iterations, %d cut-backs", nx, ny, disp, res.Steps, res.Iterations, res.Cutbacks)
+	return pressure
+}
+
+// TestPrandtlPunch is V6: the plane-strain smooth flat punch on a
+// perfectly plastic (von Mises, k = σ₀/√3) half-space reaches the limit
+// pressure (2+π)k (Prandtl 1920, Z. angew. Math. Mech. 1; Hill 1950,
+// ch. VIII) within 2% with the mixed element, while the displacement-only
+// element of the same mesh overshoots it (volumetric locking of
+// incompressible plastic flow; Nagtegaal, Parks & Rice 1974, CMAME 4).
+func TestPrandtlPunch(t *testing.T) {
+	const s0 = 100.0
+	want := (2 + math.Pi) * s0 / math.Sqrt(3)
+	mixed := punchProblem(t, 16, 12, false, 0.03)
+	got := mixed[len(mixed)-1]
+	t.Logf("mixed: pressures %.4g; limit %.4g (ratio %.4f)", mixed, want, got/want)
+	if math.Abs(got/want-1) > 0.02 {
+		t.Errorf("mixed punch pressure %.4g, want (2+π)k = %.4g within 2%%", got, want)
+	}
+	disp := punchProblem(t, 16, 12, true, 0.03)
+	gd := disp[len(disp)-1]
+	t.Logf("displacement-only: pressures %.4g (ratio %.4f)", disp, gd/want)
+	if gd < 1.05*want {
+		t.Errorf("displacement-only punch pressure %.4g: expected an overshoot of the limit %.4g by more than 5%%", gd, want)
+	}
+}
