@@ -81,6 +81,7 @@ func TestArcSplit(t *testing.T) {
 			if err := Check(m); err != nil {
 				t.Fatal(err)
 			}
+			checkLocallyDelaunay(t, m)
 			rep := Quality(m, size)
 			if rep.MinAngleDeg < DefaultMinAngle-1e-9 || rep.SizeRatioMax > 1+1e-12 {
 				t.Errorf("quality %+v", rep)
@@ -131,6 +132,7 @@ func TestInteriorConstraint(t *testing.T) {
 		t.Fatal(err)
 	}
 	checkConformity(t, in, m)
+	checkLocallyDelaunay(t, m)
 	if a := meshArea(m); math.Abs(a-1) > 1e-12 {
 		t.Errorf("area %.15g, want 1", a)
 	}

@@ -186,6 +186,7 @@ func TestTriangulateDomains(t *testing.T) {
 				t.Errorf("mesh area %.15g, polygon area %.15g", got, area)
 			}
 			checkConformity(t, in, m)
+			checkLocallyDelaunay(t, m)
 			rep := Quality(m, c.size)
 			// V15 (DESIGN.md; Ruppert 1995, Shewchuk 2002): minimum angle ≥ 20°,
 			// here the requested bound, since no input angle is below 90°.
@@ -235,5 +236,66 @@ func TestTriangulateErrors(t *testing.T) {
 				t.Errorf("error %q, want it to contain %q", err, c.want)
 			}
 		})
+	}
+}
+
+// TestDeterministic: the same input gives the same mesh (the adaptive cycle
+// relies on it for resuming from a checkpoint to the same results).
+func TestDeterministic(t *testing.T) {
+	in, _ := polygonInput(notchedSquare(2e-3, 1e-3, 12), square(0.7, 0.7, 0.8, 0.8))
+	size := func(x, y float64) float64 { return 5e-4 + 0.2*math.Hypot(x-0.5, y-0.5) }
+	a, err := Triangulate(in, &Options{Size: size})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := Triangulate(in, &Options{Size: size})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(a.Points) != len(b.Points) || len(a.Triangles) != len(b.Triangles) || len(a.Segments) != len(b.Segments) {
+		t.Fatalf("sizes differ: %d/%d points, %d/%d triangles", len(a.Points), len(b.Points), len(a.Triangles), len(b.Triangles))
+	}
+	for i := range a.Points {
+		if a.Points[i] != b.Points[i] {
+			t.Fatalf("point %d differs", i)
+		}
+	}
+	for i := range a.Triangles {
+		if a.Triangles[i] != b.Triangles[i] {
+			t.Fatalf("triangle %d differs", i)
+		}
+	}
+}
+
+// checkLocallyDelaunay verifies that every edge shared by two triangles and
+// not a sub-segment is locally Delaunay (the opposite vertex is not inside
+// the circumcircle), which makes the mesh a constrained Delaunay
+// triangulation (Lee & Lin 1986, Discrete Comput. Geom. 1; Chew 1989,
+// Algorithmica 4).
+func checkLocallyDelaunay(t *testing.T, m *Mesh) {
+	t.Helper()
+	type edge struct{ a, b int }
+	opp := map[edge]int{}
+	for _, tr := range m.Triangles {
+		for k := 0; k < 3; k++ {
+			opp[edge{tr[(k+1)%3], tr[(k+2)%3]}] = tr[k]
+		}
+	}
+	seg := map[edge]bool{}
+	for _, s := range m.Segments {
+		seg[edge{s[0], s[1]}], seg[edge{s[1], s[0]}] = true, true
+	}
+	bad := 0
+	for e, c := range opp {
+		d, ok := opp[edge{e.b, e.a}]
+		if !ok || seg[e] {
+			continue
+		}
+		if inCircle(m.Points[e.a], m.Points[e.b], m.Points[c], m.Points[d]) > 0 {
+			bad++
+		}
+	}
+	if bad > 0 {
+		t.Errorf("%d edges are not locally Delaunay", bad)
 	}
 }
