@@ -1,0 +1,238 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// writeCase writes a case file into a temporary folder.
+func writeCase(t *testing.T, text string) string {
+	t.Helper()
+	path := filepath.Join(t.TempDir(), "case.toml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// readCSV reads a run-folder table into its header and rows.
+func readCSV(t *testing.T, path string) ([]string, [][]string) {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	if len(recs) == 0 {
+		t.Fatalf("%s: empty", path)
+	}
+	return recs[0], recs[1:]
+}
+
+func column(t *testing.T, header []string, name string) int {
+	t.Helper()
+	for i, h := range header {
+		if h == name {
+			return i
+		}
+	}
+	t.Fatalf("history.csv has no column %q (header %v)", name, header)
+	return -1
+}
+
+const goodElastic = `
+[geometry]
+kind = "ssy"
+[geometry.ssy]
+radius = 10.0
+tip_radius = 0.02
+[mesh]
+h_fine = 0.1
+h_far = 2.0
+fine_radius = 0.6
+[material]
+model = "elastic"
+young = 200000.0
+poisson = 0.3
+[loading]
+kind = "k_field"
+k = 100.0
+[solver]
+increment = 0.5
+max_increment = 0.5
+`
+
+// TestBadInput: every malformed case is refused with exit status 2, a
+// message that names the place and what is allowed, and no run folder
+// (DESIGN.md §6: bad input always gets a message that says what, where and
+// what is allowed).
+func TestBadInput(t *testing.T) {
+	cases := []struct {
+		name string
+		text string
+		sets []string
+		want []string // fragments the message must contain
+	}{
+		{"syntax error", goodElastic + "\n[stop\nt = 1\n", nil, []string{"case.toml", "line 23"}},
+		{"unknown key", strings.Replace(goodElastic, "h_far = 2.0", "h_far = 2.0\nh_coarse = 3.0", 1), nil,
+			[]string{"line 10", "mesh.h_coarse", "unknown key"}},
+		{"wrong type", strings.Replace(goodElastic, "h_far = 2.0", `h_far = "big"`, 1), nil,
+			[]string{"line 9", "h_far"}},
+		{"negative size", strings.Replace(goodElastic, "h_fine = 0.1", "h_fine = -0.1", 1), nil,
+			[]string{"line 8", "mesh.h_fine", "positive"}},
+		{"missing geometry", strings.Replace(goodElastic, `kind = "ssy"`, "", 1), nil,
+			[]string{"geometry.kind", "ssy, ct"}},
+		{"poisson out of range", strings.Replace(goodElastic, "poisson = 0.3", "poisson = 0.5", 1), nil,
+			[]string{"line 14", "material.poisson", "(−1, 0.5)"}},
+		{"negative modulus", strings.Replace(goodElastic, "young = 200000.0", "young = -1.0", 1), nil,
+			[]string{"material.young", "positive"}},
+		{"bad model name", strings.Replace(goodElastic, `model = "elastic"`, `model = "plastic"`, 1), nil,
+			[]string{"material.model", "gtn, elastic"}},
+		{"unknown --set key", goodElastic, []string{"mesh.h_tiny=1"}, []string{"--set mesh.h_tiny=1", "unknown key"}},
+		{"bad --set value", goodElastic, []string{"mesh.h_far=[1,2]"}, []string{"--set mesh.h_far=[1,2]"}},
+		{"--set without section", goodElastic, []string{"h_far=1"}, []string{"section.key"}},
+		{"porosity order", strings.Replace(goodElastic, `model = "elastic"`, "model = \"gtn\"\nfc = 0.3\nff = 0.2", 1), nil,
+			[]string{"f0 < fc < ff"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			path := writeCase(t, tc.text)
+			out := filepath.Join(t.TempDir(), "run")
+			args := []string{"run", path, "-o", out}
+			for _, s := range tc.sets {
+				args = append(args, "--set", s)
+			}
+			var stdout, stderr bytes.Buffer
+			code := dispatch(args, &stdout, &stderr)
+			if code != 2 {
+				t.Fatalf("exit status %d, want 2; stderr: %s", code, stderr.String())
+			}
+			msg := stderr.String()
+			for _, w := range tc.want {
+				if !strings.Contains(msg, w) {
+					t.Errorf("message %q lacks %q", msg, w)
+				}
+			}
+			if _, err := os.Stat(out); !errors.Is(err, os.ErrNotExist) {
+				t.Errorf("bad input left a run folder %s behind", out)
+			}
+			if stdout.Len() != 0 {
+				t.Errorf("bad input printed to stdout: %q", stdout.String())
+			}
+		})
+	}
+}
+
+// TestWilliamsRunFolder runs the elastic cracked disk of the test data and
+// checks the run folder against DESIGN.md §6 and the domain J against the
+// far-field J = K²(1−ν²)/E within 1% (V4, V11: Williams 1957; Rice 1968).
+func TestWilliamsRunFolder(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "run")
+	var stdout, stderr bytes.Buffer
+	code := dispatch([]string{"run", "../../testdata/williams-elastic.toml", "-o", out, "--set", "mesh.h_far=3"}, &stdout, &stderr)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr.String())
+	}
+	header, rows := readCSV(t, filepath.Join(out, "history.csv"))
+	want := strings.Split("step,t,control,force,J_far,J_domain,da,da_proj,ctod,dofs,elements,remeshes,iters,wall_s,rss_mb", ",")
+	if len(header) < len(want) || strings.Join(header[:len(want)], ",") != strings.Join(want, ",") {
+		t.Fatalf("history.csv header %v, want it to start with %v", header, want)
+	}
+	if len(rows) != 2 {
+		t.Fatalf("%d history rows, want 2", len(rows))
+	}
+	jf, jd, force := column(t, header, "J_far"), column(t, header, "J_domain"), column(t, header, "force")
+	for i, r := range rows {
+		far, err1 := strconv.ParseFloat(r[jf], 64)
+		dom, err2 := strconv.ParseFloat(r[jd], 64)
+		if err1 != nil || err2 != nil {
+			t.Fatalf("row %d: J_far %q, J_domain %q", i+1, r[jf], r[jd])
+		}
+		if rel := math.Abs(dom-far) / far; rel > 0.01 {
+			t.Errorf("row %d: J_domain %.6g, J_far %.6g: %.2f%% apart (V4/V11 allow 1%%)", i+1, dom, far, 100*rel)
+		}
+		if r[force] != "" {
+			t.Errorf("row %d: force %q for a K-field case, want empty (does not apply)", i+1, r[force])
+		}
+	}
+	var s summary
+	data, err := os.ReadFile(filepath.Join(out, "summary.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &s); err != nil {
+		t.Fatal(err)
+	}
+	if s.Status != "completed" || s.Steps != 2 || s.PeakDofs == 0 || s.CaseSHA256 == "" || s.Caution == "" {
+		t.Errorf("summary %+v", s)
+	}
+	for _, f := range []string{"case.toml", "remesh.csv", "fields/fields.pvd", "fields/fields_deformed.pvd",
+		"fields/step_000002_mesh000.vtu", "fields/step_000002_mesh000_deformed.vtu", "checkpoint/state.gob", "plots/J-da.svg"} {
+		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
+			t.Errorf("run folder lacks %s: %v", f, err)
+		}
+	}
+	// The case as run reads back and carries the defaults.
+	c, _, err := loadCase(filepath.Join(out, "case.toml"), nil)
+	if err != nil {
+		t.Fatalf("case.toml as run does not load: %v", err)
+	}
+	if c.Solver.MaxIter == 0 || c.Mesh.HFar != 3 {
+		t.Errorf("case.toml as run: max_iterations %d, h_far %g (want defaults filled and the --set value 3)", c.Solver.MaxIter, c.Mesh.HFar)
+	}
+	// A second run into the same folder is refused: results are never overwritten.
+	stderr.Reset()
+	if code := dispatch([]string{"run", "../../testdata/williams-elastic.toml", "-o", out}, io.Discard, &stderr); code != 2 {
+		t.Errorf("second run into the same folder: exit %d, want 2", code)
+	}
+}
+
+// TestAtomicWriteFailure: a write that fails half-way leaves the previous
+// file intact and no temporary file behind (DESIGN.md §4 checkpoints).
+func TestAtomicWriteFailure(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "state.gob")
+	if err := writeFileAtomic(path, func(w io.Writer) error { _, err := w.Write([]byte("good")); return err }); err != nil {
+		t.Fatal(err)
+	}
+	boom := errors.New("disk full")
+	err := writeFileAtomic(path, func(w io.Writer) error {
+		w.Write(bytes.Repeat([]byte("x"), 3<<20))
+		return boom
+	})
+	if !errors.Is(err, boom) {
+		t.Fatalf("error %v, want %v", err, boom)
+	}
+	data, _ := os.ReadFile(path)
+	if string(data) != "good" {
+		t.Errorf("after a failed write the file holds %d bytes, want the old 4", len(data))
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("folder holds %d entries after a failed write, want 1", len(entries))
+	}
+}
+
+// TestKeyLines checks the line scanner that points errors at keys.
+func TestKeyLines(t *testing.T) {
+	text := "title = \"x\"\n[mesh]\nh_fine = 1 # c\n\n[geometry.ssy]\nradius=2\n[[loading.fix]]\nlabel = \"a\"\n"
+	got := keyLines(text)
+	for key, line := range map[string]int{"title": 1, "mesh": 2, "mesh.h_fine": 3, "geometry.ssy.radius": 6, "loading.fix.label": 8} {
+		if got[key] != line {
+			t.Errorf("key %s on line %d, want %d", key, got[key], line)
+		}
+	}
+}
