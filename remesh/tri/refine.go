@@ -70,7 +70,7 @@ func newRefiner(m *tmesh, in *Input, opt *Options) *refiner {
 // minSplitLen is the length, relative to the input's diameter, below which
 // refinement stops splitting: a safety floor against the cascades that small
 // input angles can cause in floating point.
-const minSplitLen = 1e-9
+const minSplitLen = 1e-8
 
 func (r *refiner) run() error {
 	m := r.m

@@ -27,6 +27,17 @@
 // The size of a triangle is its longest edge. Refinement splits every
 // triangle whose size exceeds h at its centroid, so every triangle of the
 // result has size ≤ h(centroid); Quality reports the ratio size/h(centroid).
+//
+// Near input angles below 60° the angle bound cannot be had: triangles whose
+// shortest edge joins the two sides of such an angle are not split for their
+// angles (Shewchuk 2002, §4). As a floor against floating-point cascades,
+// sub-segments shorter than 1e-8 × the input's diameter are not split, and
+// triangles with an edge that short are not split for their angles.
+//
+// CDT returns the triangulation without refinement; Check verifies a mesh's
+// structure (orientation, no overlap or duplicate, boundary edges are
+// sub-segments). The result is deterministic: the same input gives the same
+// mesh.
 package tri
 
 import (
@@ -66,13 +77,18 @@ type Options struct {
 	// exceeding it is an error.
 	MaxPoints int
 	// Split, if not nil, gives the point at which a boundary sub-segment
-	// a–b with the given mark is split (for example the point of a circular
-	// arc between a and b). The point must project onto the middle part of
-	// a–b (between 20 % and 80 % of its length) and lie within |ab|/2 of it;
-	// otherwise, and for points on the chord itself (within 1e-9·|ab|), for
-	// interior segments, and where a point inside the domain does not lie in
-	// the triangle on the sub-segment, the mesher chooses the split point
-	// itself (the midpoint, or a power-of-two shell next to an input vertex).
+	// a–b with the given mark is split, for example the point of a circular
+	// arc halfway between a and b; it must accept any two points of the same
+	// curve. The point is used if it projects onto the middle 20–80 % of the
+	// chord a–b and lies off the chord by more than 1e-9·|ab| and at most
+	// |ab|/2. Next to an input vertex where segments meet at less than 60°,
+	// the point is moved along the curve (bisection with Split) to the
+	// power-of-two shell distance from that vertex. The mesher splits on the
+	// chord instead (midpoint or shell) for points on the chord, for points
+	// it cannot use, for interior segments, and where a point inside the
+	// domain does not lie in the triangle on the sub-segment (another vertex
+	// closer to the chord than the curve: rare when chords keep a clearance
+	// of several sagittas to other features).
 	Split func(mark int, a, b [2]float64) [2]float64
 }
 
