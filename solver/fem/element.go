@@ -375,37 +375,42 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 		if !tangent {
 			continue
 		}
-		// material and field part: K += Bᵀ D B dV
-		for b := 0; b < nd; b++ {
-			lo, hi := p.rowRange(b)
-			for _, r := range rows {
-				var v float64
-				for k := lo; k < hi; k++ {
-					v += w.d[r][k] * w.b[k][b]
-				}
-				w.db[r][b] = v * dV
-			}
-		}
-		for a := 0; a < nd; a++ {
-			lo, hi := p.rowRange(a)
-			row := &w.ke[a]
-			for r := lo; r < hi; r++ {
-				bra := w.b[r][a]
-				if bra == 0 {
-					continue
-				}
-				dbr := &w.db[r]
-				for b := 0; b < nd; b++ {
-					row[b] += bra * dbr[b]
-				}
-			}
-		}
-		// geometric part (displacement × displacement): curvature of the
-		// log map, T_E : ∂²E/∂C², and S : ∂²C/∂u².
+		// K = ∫ Bᵀ D B dV + geometric part. The displacement block is formed
+		// in C-space: K_uu = ∂C/∂uᵀ [dEdCᵀ D_EE dEdC + T_E:∂²E/∂C²] ∂C/∂u
+		// + S:∂²C/∂u²; the blocks that involve a linear field use B.
 		Kc := material.LogStrainCurvature(C, TE)
+		var dc, tmp [4][4]float64
+		for i := 0; i < 4; i++ {
+			for k := 0; k < 4; k++ {
+				tmp[i][k] = w.d[i][0]*dEdC[0][k] + w.d[i][1]*dEdC[1][k] + w.d[i][2]*dEdC[2][k] + w.d[i][3]*dEdC[3][k]
+			}
+		}
+		for j := 0; j < 4; j++ {
+			for k := 0; k < 4; k++ {
+				dc[j][k] = (Kc[j][k] + dEdC[0][j]*tmp[0][k] + dEdC[1][j]*tmp[1][k] + dEdC[2][j]*tmp[2][k] + dEdC[3][j]*tmp[3][k]) * dV
+			}
+		}
 		for j := 0; j < 4; j++ {
 			for b := 0; b < 12; b++ {
-				w.kcb[j][b] = (Kc[j][0]*w.bc[0][b] + Kc[j][1]*w.bc[1][b] + Kc[j][2]*w.bc[2][b] + Kc[j][3]*w.bc[3][b]) * dV
+				v := dc[j][0]*w.bc[0][b] + dc[j][1]*w.bc[1][b] + dc[j][3]*w.bc[3][b]
+				if axi {
+					v += dc[j][2] * w.bc[2][b]
+				}
+				w.kcb[j][b] = v
+			}
+		}
+		for a := 0; a < 12; a++ {
+			b0, b1, b2, b3 := w.bc[0][a], w.bc[1][a], w.bc[2][a], w.bc[3][a]
+			row := &w.ke[a]
+			k0, k1, k2, k3 := &w.kcb[0], &w.kcb[1], &w.kcb[2], &w.kcb[3]
+			if axi {
+				for b := 0; b < 12; b++ {
+					row[b] += b0*k0[b] + b1*k1[b] + b2*k2[b] + b3*k3[b]
+				}
+			} else {
+				for b := 0; b < 12; b++ {
+					row[b] += b0*k0[b] + b1*k1[b] + b3*k3[b]
+				}
 			}
 		}
 		for ka := 0; ka < 6; ka++ {
@@ -419,9 +424,39 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 				}
 			}
 		}
-		for a := 0; a < 12; a++ {
-			for b := 0; b < 12; b++ {
-				w.ke[a][b] += w.bc[0][a]*w.kcb[0][b] + w.bc[1][a]*w.kcb[1][b] + w.bc[2][a]*w.kcb[2][b] + w.bc[3][a]*w.kcb[3][b]
+		if nd == 12 {
+			continue
+		}
+		// blocks with the linear fields: DB = D·B for the columns needed
+		for b := 0; b < nd; b++ {
+			lo, hi := p.rowRange(b)
+			for _, r := range rows {
+				if b < 12 && r < 4 {
+					continue // displacement block done above
+				}
+				var v float64
+				for k := lo; k < hi; k++ {
+					v += w.d[r][k] * w.b[k][b]
+				}
+				w.db[r][b] = v * dV
+			}
+		}
+		for a := 0; a < nd; a++ {
+			lo, hi := p.rowRange(a)
+			row := &w.ke[a]
+			b0 := 0
+			if a < 12 {
+				b0 = 12
+			}
+			for r := lo; r < hi; r++ {
+				bra := w.b[r][a]
+				if bra == 0 {
+					continue
+				}
+				dbr := &w.db[r]
+				for b := b0; b < nd; b++ {
+					row[b] += bra * dbr[b]
+				}
 			}
 		}
 	}
