@@ -64,6 +64,7 @@ func MeshDomain(d *geom.Domain, size func(x, y float64) float64, opt MeshOptions
 	if err != nil {
 		return nil, tri.Report{}, fmt.Errorf("mesh: %w", err)
 	}
+	snapToArcs(d, tm)
 	m, err := quadratic(d, g, tm)
 	if err != nil {
 		return nil, tri.Report{}, err
@@ -230,4 +231,87 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 // onCircle reports whether x lies on the arc's circle (to 1e-9 relative).
 func onCircle(p *geom.Piece, x [2]float64) bool {
 	return math.Abs(math.Hypot(x[0]-p.Centre[0], x[1]-p.Centre[1])-p.Radius) <= 1e-9*p.Radius
+}
+
+// snapToArcs moves boundary vertices that the triangulator placed on the
+// chord of an arc (where it could not use the split rule, in narrow gaps)
+// radially onto the arc, each only if every triangle around it stays
+// counter-clockwise with at least half its former smallest angle.
+func snapToArcs(d *geom.Domain, tm *tri.Mesh) {
+	var moves []int
+	for i, sg := range tm.Segments {
+		p := d.PieceOfMark(tm.SegmentMarks[i])
+		if p == nil || p.Kind != geom.Arc {
+			continue
+		}
+		for _, v := range sg {
+			if !onCircle(p, tm.Points[v]) {
+				moves = append(moves, i, v)
+			}
+		}
+	}
+	if len(moves) == 0 {
+		return
+	}
+	// triangles around each vertex (CSR)
+	nv := len(tm.Points)
+	start := make([]int32, nv+1)
+	for _, t := range tm.Triangles {
+		for _, v := range t {
+			start[v+1]++
+		}
+	}
+	for i := 0; i < nv; i++ {
+		start[i+1] += start[i]
+	}
+	fill := append([]int32(nil), start[:nv]...)
+	around := make([]int32, 3*len(tm.Triangles))
+	for e, t := range tm.Triangles {
+		for _, v := range t {
+			around[fill[v]] = int32(e)
+			fill[v]++
+		}
+	}
+	minAngle := func(t [3]int) (float64, bool) {
+		a, b, c := tm.Points[t[0]], tm.Points[t[1]], tm.Points[t[2]]
+		if (b[0]-a[0])*(c[1]-a[1])-(c[0]-a[0])*(b[1]-a[1]) <= 0 {
+			return 0, false
+		}
+		l := [3]float64{math.Hypot(b[0]-c[0], b[1]-c[1]), math.Hypot(c[0]-a[0], c[1]-a[1]), math.Hypot(a[0]-b[0], a[1]-b[1])}
+		mn := math.Pi
+		for k := 0; k < 3; k++ {
+			x, y, z := l[k], l[(k+1)%3], l[(k+2)%3]
+			mn = math.Min(mn, math.Acos(math.Max(-1, math.Min(1, (y*y+z*z-x*x)/(2*y*z)))))
+		}
+		return mn, true
+	}
+	for k := 0; k < len(moves); k += 2 {
+		p := d.PieceOfMark(tm.SegmentMarks[moves[k]])
+		v := moves[k+1]
+		x := tm.Points[v]
+		if onCircle(p, x) {
+			continue // moved already
+		}
+		r := math.Hypot(x[0]-p.Centre[0], x[1]-p.Centre[1])
+		if r == 0 {
+			continue
+		}
+		q := [2]float64{p.Centre[0] + p.Radius*(x[0]-p.Centre[0])/r, p.Centre[1] + p.Radius*(x[1]-p.Centre[1])/r}
+		old := math.Pi
+		for _, e := range around[start[v]:start[v+1]] {
+			a, _ := minAngle(tm.Triangles[e])
+			old = math.Min(old, a)
+		}
+		tm.Points[v] = q
+		ok := true
+		for _, e := range around[start[v]:start[v+1]] {
+			if a, pos := minAngle(tm.Triangles[e]); !pos || a < 0.5*old {
+				ok = false
+				break
+			}
+		}
+		if !ok {
+			tm.Points[v] = x
+		}
+	}
 }
