@@ -215,3 +215,56 @@ func TestPrandtlPunch(t *testing.T) {
 		t.Errorf("displacement-only punch pressure %.4g: expected an overshoot of the limit %.4g by more than 5%%", gd, want)
 	}
 }
+
+// TestRegularisedHomogeneous: under homogeneous plastic straining the
+// gradient-regularised GTN model must give ā = p everywhere with λ = 0
+// (the strong form c Δā = −λ, λ = r(ā − p) + … has the uniform solution;
+// Forest 2009, J. Eng. Mech. 135), i.e. reduce to the local model, and the
+// force must equal the local model's. A plane-strain square is stretched
+// with free lateral contraction, in three increments.
+func TestRegularisedHomogeneous(t *testing.T) {
+	force := func(length float64) (float64, *fem.Problem) {
+		par := material.DefaultGTN()
+		par.Length = length
+		mat, err := material.NewGTN(par)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := barProblem(t, mat)
+		o := DefaultOptions()
+		o.Dt, o.DtMax = 0.34, 0.34
+		s, _ := New(p, o)
+		res, err := s.Run(nil)
+		if err != nil || res.Status != Completed {
+			t.Fatalf("ℓ = %g: %v %v", length, res, err)
+		}
+		f, _ := p.Reaction("top")
+		return f[1], p
+	}
+	fl, _ := force(0)
+	fr, p := force(0.5)
+	if !p.Regularised() {
+		t.Fatal("ℓ > 0 did not switch the ā, λ fields on")
+	}
+	if math.Abs(fr/fl-1) > 1e-6 {
+		t.Errorf("regularised force %.8g, local %.8g", fr, fl)
+	}
+	st := p.State()
+	pp := st[0][0].P
+	if !(pp > 1e-3) {
+		t.Fatalf("plastic strain %g: the test would not exercise the regularisation", pp)
+	}
+	ab := make([]float64, len(p.Mesh.X))
+	lm := make([]float64, len(p.Mesh.X))
+	if err := p.NodalField(fem.Abar, ab); err != nil {
+		t.Fatal(err)
+	}
+	if err := p.NodalField(fem.Lambda, lm); err != nil {
+		t.Fatal(err)
+	}
+	for n := 0; n < p.Mesh.NumCorners; n++ {
+		if math.Abs(ab[n]-pp) > 1e-6*pp || math.Abs(lm[n]) > 1e-6*400 {
+			t.Fatalf("node %d: ā = %g, λ = %g; want ā = p = %g, λ = 0", n, ab[n], lm[n], pp)
+		}
+	}
+}

@@ -319,6 +319,16 @@ func (p *Problem) Commit() {
 	p.updateConstraints()
 }
 
+// Restart declares the current unknowns and state converged at time t
+// (after a state transfer onto a new mesh, or to resume): T and TCommitted
+// become t, prescribed unknowns take their values at t, and Committed
+// becomes U. Re-equilibrate with an increment to the same t.
+func (p *Problem) Restart(t float64) {
+	p.SetTime(t)
+	p.TCommitted = t
+	copy(p.Committed, p.U)
+}
+
 // Rollback returns the unknowns and time to the last converged state (the
 // material state was never overwritten: each assembly integrates from it).
 func (p *Problem) Rollback() {

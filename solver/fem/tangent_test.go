@@ -136,52 +136,64 @@ func TestElementTangentFD(t *testing.T) {
 // TestGlobalTangentFD checks V9 for the assembled system: every column of
 // the tangent in its sparse pattern equals the central finite difference
 // of the global residual to 1e-6 relative (and the difference vanishes
-// outside the pattern), assembled by two workers.
+// outside the pattern), assembled by two workers — elastic (coupled
+// synthetic law) and plastic (GTN).
 func TestGlobalTangentFD(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
 	for _, tc := range tangentCases() {
-		t.Run(tc.name, func(t *testing.T) {
-			p := randomProblem(t, tc, 3, 2, rng)
-			p.workers = make([]worker, 2)
-			p.pool = newPool(1)
-			if err := p.Assemble(true); err != nil {
-				t.Fatal(err)
+		for _, plastic := range []bool{false, true} {
+			name := tc.name
+			if plastic {
+				name += "/GTN"
 			}
-			n := p.Dofs.N
-			dense := make([][]float64, n)
-			var kmax float64
-			for i := range dense {
-				dense[i] = make([]float64, n)
-				for q := p.K.RowPtr[i]; q < p.K.RowPtr[i+1]; q++ {
-					dense[i][p.K.ColInd[q]] = p.K.Val[q]
-					kmax = math.Max(kmax, math.Abs(p.K.Val[q]))
-				}
-			}
-			rp, rm := make([]float64, n), make([]float64, n)
-			var emax float64
-			for b := 0; b < n; b++ {
-				u0 := p.U[b]
-				h := 1e-6 * math.Max(1, math.Abs(u0))
-				p.U[b] = u0 + h
-				if err := p.Assemble(false); err != nil {
-					t.Fatal(err)
-				}
-				copy(rp, p.Full)
-				p.U[b] = u0 - h
-				if err := p.Assemble(false); err != nil {
-					t.Fatal(err)
-				}
-				copy(rm, p.Full)
-				p.U[b] = u0
-				for a := 0; a < n; a++ {
-					fd := (rp[a] - rm[a]) / (2 * h)
-					emax = math.Max(emax, math.Abs(fd-dense[a][b]))
-				}
-			}
-			if rel := emax / kmax; !(rel < 1e-6) {
-				t.Errorf("global tangent: max |K − K_fd| / max |K| = %.3g, want < 1e-6", rel)
-			}
-		})
+			t.Run(name, func(t *testing.T) { globalTangentCase(t, tc, plastic, rng) })
+		}
+	}
+}
+
+func globalTangentCase(t *testing.T, tc tangentCase, plastic bool, rng *rand.Rand) {
+	p := randomProblem(t, tc, 3, 2, rng)
+	if plastic {
+		usePlastic(t, p, tc)
+	}
+	p.workers = make([]worker, 2)
+	p.pool = newPool(1)
+	if err := p.Assemble(true); err != nil {
+		t.Fatal(err)
+	}
+	n := p.Dofs.N
+	dense := make([][]float64, n)
+	var kmax float64
+	for i := range dense {
+		dense[i] = make([]float64, n)
+		for q := p.K.RowPtr[i]; q < p.K.RowPtr[i+1]; q++ {
+			dense[i][p.K.ColInd[q]] = p.K.Val[q]
+			kmax = math.Max(kmax, math.Abs(p.K.Val[q]))
+		}
+	}
+	rp, rm := make([]float64, n), make([]float64, n)
+	var emax float64
+	for b := 0; b < n; b++ {
+		u0 := p.U[b]
+		h := 1e-6 * math.Max(1, math.Abs(u0))
+		p.U[b] = u0 + h
+		if err := p.Assemble(false); err != nil {
+			t.Fatal(err)
+		}
+		copy(rp, p.Full)
+		p.U[b] = u0 - h
+		if err := p.Assemble(false); err != nil {
+			t.Fatal(err)
+		}
+		copy(rm, p.Full)
+		p.U[b] = u0
+		for a := 0; a < n; a++ {
+			fd := (rp[a] - rm[a]) / (2 * h)
+			emax = math.Max(emax, math.Abs(fd-dense[a][b]))
+		}
+	}
+	if rel := emax / kmax; !(rel < 1e-6) {
+		t.Errorf("global tangent: max |K − K_fd| / max |K| = %.3g, want < 1e-6", rel)
 	}
 }
 
@@ -233,32 +245,7 @@ func TestPlasticTangentFD(t *testing.T) {
 	for _, tc := range tangentCases() {
 		t.Run(tc.name, func(t *testing.T) {
 			p := randomProblem(t, tc, 2, 1, rng)
-			p.Model = gtnModel(t, tc.reg)
-			p.c, p.r = p.Model.Regularisation()
-			init := p.Model.Initial()
-			for e := range p.oldState {
-				for g := range p.oldState[e] {
-					p.oldState[e][g] = init
-				}
-			}
-			for d := range p.U {
-				switch p.Dofs.FieldOf[d] {
-				case Ux, Uy, Theta:
-					// strains of 1–2% (mixed: θ carries the volume change);
-					// displacement-only random fields carry large volume
-					// changes, so keep them smaller (trial σ_m of tens of σ₀
-					// is outside what a return mapping must handle)
-					if tc.disp {
-						p.U[d] *= 0.05
-					} else {
-						p.U[d] *= 0.2
-					}
-				case Pressure, Lambda:
-					p.U[d] *= 10 // stresses of the order of the yield stress
-				case Abar:
-					p.U[d] *= 0.1
-				}
-			}
+			usePlastic(t, p, tc)
 			w := &worker{}
 			plastic := 0
 			for e := range p.Mesh.Tri {
@@ -305,5 +292,37 @@ func TestPlasticTangentFD(t *testing.T) {
 				t.Errorf("only %d of %d points plastic: the check would not test plasticity", plastic, perElem*len(p.Mesh.Tri))
 			}
 		})
+	}
+}
+
+// usePlastic switches p to the GTN model with a virgin state and scales
+// the random unknowns to strains of 1–2% (several times the yield strain).
+func usePlastic(t *testing.T, p *Problem, tc tangentCase) {
+	t.Helper()
+	p.Model = gtnModel(t, tc.reg)
+	p.c, p.r = p.Model.Regularisation()
+	init := p.Model.Initial()
+	for e := range p.oldState {
+		for g := range p.oldState[e] {
+			p.oldState[e][g] = init
+		}
+	}
+	for d := range p.U {
+		switch p.Dofs.FieldOf[d] {
+		case Ux, Uy, Theta:
+			// strains of 1–2% (mixed: θ carries the volume change);
+			// displacement-only random fields carry large volume
+			// changes, so keep them smaller (trial σ_m of tens of σ₀
+			// is outside what a return mapping must handle)
+			if tc.disp {
+				p.U[d] *= 0.05
+			} else {
+				p.U[d] *= 0.2
+			}
+		case Pressure, Lambda:
+			p.U[d] *= 10 // stresses of the order of the yield stress
+		case Abar:
+			p.U[d] *= 0.1
+		}
 	}
 }
