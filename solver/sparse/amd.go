@@ -13,7 +13,10 @@ import "math"
 // found by hashing, mass elimination and aggressive element absorption.
 // Nodes of degree above 10√n are ordered last, as that paper recommends
 // for dense rows.
-func amd(n int, ptr, adj []int) []int {
+//
+// weight, if not nil, gives each node the number of matrix variables it
+// stands for (a compressed graph); degrees are then counted in variables.
+func amd(n int, ptr, adj []int, weight []int) []int {
 	const (
 		isVar = iota
 		isElement
@@ -32,7 +35,14 @@ func amd(n int, ptr, adj []int) []int {
 	pe := make([]int, n)     // list start in iw
 	ln := make([]int, n)     // list length
 	w := make([]int, n)      // |Le \ Lp| + wflg during a step
-	head := make([]int, n+1) // degree lists
+	total := n
+	if weight != nil {
+		total = 0
+		for _, x := range weight {
+			total += x
+		}
+	}
+	head := make([]int, total+1) // degree lists
 	next := make([]int, n)
 	prev := make([]int, n)
 	hhead := make([]int, n) // hash buckets
@@ -42,13 +52,18 @@ func amd(n int, ptr, adj []int) []int {
 	mlast := make([]int, n)
 	isDense := make([]bool, n)
 
+	for i := range head {
+		head[i] = -1
+	}
 	for i := 0; i < n; i++ {
-		head[i], hhead[i], mfirst[i], mnext[i] = -1, -1, -1, -1
+		hhead[i], mfirst[i], mnext[i] = -1, -1, -1
 		mlast[i] = i
 		nv[i] = 1
+		if weight != nil {
+			nv[i] = weight[i]
+		}
 		isDense[i] = ptr[i+1]-ptr[i] > dense && n > 2
 	}
-	head[n] = -1
 	iw := make([]int, 0, len(adj)+len(adj)/2+4*n)
 	for i := 0; i < n; i++ {
 		pe[i] = len(iw)
@@ -85,10 +100,14 @@ func amd(n int, ptr, adj []int) []int {
 	nel := 0
 	for i := 0; i < n; i++ {
 		if isDense[i] {
-			nel++
+			nel += nv[i]
 			continue
 		}
-		deg[i] = ln[i]
+		d := 0
+		for _, j := range iw[pe[i] : pe[i]+ln[i]] {
+			d += nv[j]
+		}
+		deg[i] = min(d, total-nv[i])
 		insert(i)
 	}
 	// emit appends principal variable i and its merged members to perm.
@@ -121,12 +140,12 @@ func amd(n int, ptr, adj []int) []int {
 	tmp := make([]int, 0, n) // scratch copy of a variable's list
 	wflg := 1
 	mindeg := 0
-	for nel < n {
+	for nel < total {
 		// Pivot: a variable of least approximate degree.
-		for mindeg < n && head[mindeg] < 0 {
+		for mindeg < total && head[mindeg] < 0 {
 			mindeg++
 		}
-		if mindeg >= n {
+		if mindeg >= total {
 			break
 		}
 		me := head[mindeg]
@@ -237,7 +256,7 @@ func amd(n int, ptr, adj []int) []int {
 
 		// Supervariables: variables of Lp with identical lists (found by
 		// hashing, then compared) are merged.
-		wflg += n + 1
+		wflg += total + 1
 		for _, i := range lp {
 			if state[i] != isVar || nv[i] == 0 {
 				continue
@@ -296,7 +315,7 @@ func amd(n int, ptr, adj []int) []int {
 
 		// Finish: restore signs, bound degrees, reinsert; store Lp as
 		// element me.
-		nleft := n - nel
+		nleft := total - nel
 		k := 0
 		degme = 0
 		for _, i := range lp {
@@ -322,11 +341,107 @@ func amd(n int, ptr, adj []int) []int {
 		if k == 0 {
 			state[me] = isDead
 		}
-		wflg += n + 1
+		wflg += total + 1
 	}
 	for i := 0; i < n; i++ {
 		if isDense[i] {
 			perm = append(perm, i)
+		}
+	}
+	return perm
+}
+
+// orderAMD orders a for LU. Variables whose diagonal is absent or zero (the
+// multiplier rows of a saddle-point system) are first matched greedily with
+// a neighbour j of nonzero diagonal and largest |a_ji| in their column, and
+// each pair is ordered as one node of a compressed graph, partner first.
+// The pair then lands in one front where j's pivot turns the zero diagonal
+// into a nonzero Schur complement, instead of the zero pivot being delayed
+// up the tree (compressed-graph ordering: Duff & Pralet 2005, SIAM J.
+// Matrix Anal. Appl. 27, "Strategies for scaling and pivoting for sparse
+// symmetric indefinite problems").
+func orderAMD(a *CSR, ptr, adj []int) []int {
+	n := a.Rows
+	zero := make([]bool, n)
+	for i := 0; i < n; i++ {
+		p := a.Pos(i, i)
+		zero[i] = p < 0 || a.Val[p] == 0
+	}
+	colPtr, rowOf, valOf := cscIndex(a)
+	mate := make([]int, n)
+	for i := range mate {
+		mate[i] = -1
+	}
+	pairs := 0
+	for i := 0; i < n; i++ {
+		if !zero[i] {
+			continue
+		}
+		best, bv := -1, 0.0
+		for p := colPtr[i]; p < colPtr[i+1]; p++ {
+			j := rowOf[p]
+			if j == i || zero[j] || mate[j] >= 0 {
+				continue
+			}
+			if v := math.Abs(a.Val[valOf[p]]); v > bv {
+				best, bv = j, v
+			}
+		}
+		if best >= 0 {
+			mate[i], mate[best] = best, i
+			pairs++
+		}
+	}
+	if pairs == 0 {
+		return amd(n, ptr, adj, nil)
+	}
+	// Compressed graph: node of each variable, members of each node.
+	node := make([]int, n)
+	var members [][2]int
+	for v := 0; v < n; v++ {
+		switch {
+		case mate[v] < 0:
+			node[v] = len(members)
+			members = append(members, [2]int{v, -1})
+		case !zero[v]: // the partner (nonzero diagonal) is eliminated first
+			node[v] = len(members)
+			node[mate[v]] = len(members)
+			members = append(members, [2]int{v, mate[v]})
+		}
+	}
+	nn := len(members)
+	weight := make([]int, nn)
+	cptr := make([]int, nn+1)
+	var cadj []int
+	mark := make([]int, nn)
+	for i := range mark {
+		mark[i] = -1
+	}
+	for c, mem := range members {
+		mark[c] = c
+		weight[c] = 1
+		if mem[1] >= 0 {
+			weight[c] = 2
+		}
+		for _, v := range mem {
+			if v < 0 {
+				continue
+			}
+			for _, u := range adj[ptr[v]:ptr[v+1]] {
+				if d := node[u]; mark[d] != c {
+					mark[d] = c
+					cadj = append(cadj, d)
+				}
+			}
+		}
+		cptr[c+1] = len(cadj)
+	}
+	cperm := amd(nn, cptr, cadj, weight)
+	perm := make([]int, 0, n)
+	for _, c := range cperm {
+		perm = append(perm, members[c][0])
+		if members[c][1] >= 0 {
+			perm = append(perm, members[c][1])
 		}
 	}
 	return perm

@@ -25,7 +25,7 @@ func TestAMDPermutation(t *testing.T) {
 	mats = append(mats, arrow.CSR())
 	for k, a := range mats {
 		ptr, adj := symmetricPattern(a)
-		p := amd(a.Rows, ptr, adj)
+		p := amd(a.Rows, ptr, adj, nil)
 		if len(p) != a.Rows {
 			t.Fatalf("matrix %d: len(perm) = %d, want %d", k, len(p), a.Rows)
 		}

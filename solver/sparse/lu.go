@@ -114,8 +114,11 @@ type LU struct {
 
 	a *CSR // matrix last factorized (for refinement)
 
+	// Equilibration D_r·A·D_c and the scaled values.
+	rs, cs, sval []float64
+
 	// Solve work space.
-	w, x, r, d []float64
+	w, x, r, d, t []float64
 }
 
 // NewLU returns an LU that uses the given options.
@@ -184,15 +187,19 @@ func (lu *LU) Factorize(a *CSR) error {
 			return err
 		}
 	}
-	amax := 0.0
 	for _, v := range a.Val {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return fmt.Errorf("sparse: matrix holds a non-finite value %g", v)
 		}
-		amax = max(amax, math.Abs(v))
 	}
+	amax := lu.equilibrate(a)
 	o := lu.options()
-	if err := lu.num.factor(lu.sym, a, o.PivotThreshold, o.SingularTol*amax, o.Workers); err != nil {
+	if err := lu.num.factor(lu.sym, lu.sval, o.PivotThreshold, o.SingularTol*amax, o.Workers); err != nil {
+		var se *SingularError
+		if errors.As(err, &se) {
+			// Report the magnitude in the units of the given matrix.
+			se.Pivot /= lu.cs[se.Col] * lu.rs[se.Col]
+		}
 		return err
 	}
 	lu.a = a
@@ -203,6 +210,7 @@ func (lu *LU) Factorize(a *CSR) error {
 		lu.x = make([]float64, n)
 		lu.r = make([]float64, n)
 		lu.d = make([]float64, n)
+		lu.t = make([]float64, n)
 	}
 	return nil
 }
@@ -230,14 +238,13 @@ func (lu *LU) Solve(dst, b []float64) error {
 	if len(dst) != n || len(b) != n {
 		return fmt.Errorf("sparse: Solve with len(dst)=%d, len(b)=%d for a %d×%d factorisation", len(dst), len(b), n, n)
 	}
-	copy(lu.r, b) // keep b: dst may alias it
-	lu.num.solve(lu.sym, lu.x, lu.r, lu.w)
+	lu.apply(lu.x, b)
 	steps := lu.options().RefineSteps
 	if steps > 0 {
 		rnorm := lu.residual(lu.d, lu.x, b)
 		for k := 0; k < steps && rnorm > 0; k++ {
 			// d holds r = b − A·x; solve A·e = r and try x + e.
-			lu.num.solve(lu.sym, lu.r, lu.d, lu.w)
+			lu.apply(lu.r, lu.d)
 			for i := range lu.r {
 				lu.r[i] += lu.x[i]
 			}
@@ -251,6 +258,75 @@ func (lu *LU) Solve(dst, b []float64) error {
 	}
 	copy(dst, lu.x)
 	return nil
+}
+
+// apply sets x = A⁻¹·b from the factors of D_r·A·D_c; b is not changed.
+func (lu *LU) apply(x, b []float64) {
+	for i, v := range b {
+		lu.t[i] = v * lu.rs[i]
+	}
+	lu.num.solve(lu.sym, x, lu.t, lu.w)
+	for j := range x {
+		x[j] *= lu.cs[j]
+	}
+}
+
+// equilibrate computes row and column scalings that bring the largest
+// magnitude of every row and column of D_r·A·D_c close to 1, by the
+// iteration of Ruiz 2001 ("A scaling algorithm to equilibrate both rows and
+// columns norms in matrices", Rutherford Appleton Laboratory
+// RAL-TR-2001-034), and stores the scaled values. It returns the largest
+// scaled magnitude. Scaling makes the pivot threshold compare like with
+// like in systems whose fields have different units.
+func (lu *LU) equilibrate(a *CSR) float64 {
+	n := a.Rows
+	if len(lu.rs) != n || len(lu.sval) != len(a.Val) {
+		lu.rs = make([]float64, n)
+		lu.cs = make([]float64, n)
+		lu.sval = make([]float64, len(a.Val))
+		lu.d = make([]float64, n)
+		lu.t = make([]float64, n)
+	}
+	rs, cs := lu.rs, lu.cs
+	rmax, cmax := lu.d, lu.t // scratch
+	for i := range rs {
+		rs[i], cs[i] = 1, 1
+	}
+	for it := 0; it < 20; it++ {
+		clear(rmax)
+		clear(cmax)
+		for i := 0; i < n; i++ {
+			for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
+				j := a.ColInd[p]
+				v := math.Abs(a.Val[p]) * rs[i] * cs[j]
+				rmax[i] = max(rmax[i], v)
+				cmax[j] = max(cmax[j], v)
+			}
+		}
+		dev := 0.0
+		for i := 0; i < n; i++ {
+			if rmax[i] > 0 {
+				rs[i] /= math.Sqrt(rmax[i])
+				dev = max(dev, math.Abs(1-rmax[i]))
+			}
+			if cmax[i] > 0 {
+				cs[i] /= math.Sqrt(cmax[i])
+				dev = max(dev, math.Abs(1-cmax[i]))
+			}
+		}
+		if dev < 1e-2 {
+			break
+		}
+	}
+	amax := 0.0
+	for i := 0; i < n; i++ {
+		for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
+			v := a.Val[p] * rs[i] * cs[a.ColInd[p]]
+			lu.sval[p] = v
+			amax = max(amax, math.Abs(v))
+		}
+	}
+	return amax
 }
 
 // residual sets r = b − A·x and returns ‖r‖∞.
@@ -310,7 +386,7 @@ func analyze(a *CSR, o Options) (*symbolic, error) {
 			perm[i] = i
 		}
 	default:
-		perm = amd(n, adjPtr, adj)
+		perm = orderAMD(a, adjPtr, adj)
 	}
 	iperm := make([]int, n)
 	for k, i := range perm {

@@ -60,7 +60,7 @@ func growI(s []int, n int) []int {
 
 // factor computes the numeric factorisation of a for the analysed pattern.
 // Pivots of magnitude ≤ tiny are refused.
-func (num *numeric) factor(sym *symbolic, a *CSR, tau, tiny float64, workers int) error {
+func (num *numeric) factor(sym *symbolic, val []float64, tau, tiny float64, workers int) error {
 	ns := len(sym.first) - 1
 	if len(num.val) != ns {
 		num.val = make([][]float64, ns)
@@ -79,7 +79,7 @@ func (num *numeric) factor(sym *symbolic, a *CSR, tau, tiny float64, workers int
 	ws.top, ws.itop = 0, 0
 	num.nnz = 0
 	for sn := 0; sn < ns; sn++ {
-		if err := num.factorFront(sym, sn, a, tau, tiny); err != nil {
+		if err := num.factorFront(sym, sn, val, tau, tiny); err != nil {
 			return err
 		}
 	}
@@ -88,7 +88,7 @@ func (num *numeric) factor(sym *symbolic, a *CSR, tau, tiny float64, workers int
 
 // factorFront assembles, factors and stores the front of supernode sn and
 // pushes its contribution block.
-func (num *numeric) factorFront(sym *symbolic, sn int, a *CSR, tau, tiny float64) error {
+func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny float64) error {
 	ws := &num.ws
 	kids := sym.kids[sym.kidPtr[sn]:sym.kidPtr[sn+1]]
 	d := 0
@@ -130,7 +130,7 @@ func (num *numeric) factorFront(sym *symbolic, sn int, a *CSR, tau, tiny float64
 	clear(F)
 	// Original entries.
 	for e := sym.asmPtr[sn]; e < sym.asmPtr[sn+1]; e++ {
-		F[(int(sym.asmRow[e])+d)*m+int(sym.asmCol[e])+d] += a.Val[sym.asmVal[e]]
+		F[(int(sym.asmRow[e])+d)*m+int(sym.asmCol[e])+d] += val[sym.asmVal[e]]
 	}
 	// Extend-add of the children's contribution blocks.
 	for _, c := range kids {
