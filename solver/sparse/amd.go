@@ -28,13 +28,13 @@ func amd(n int, ptr, adj []int, weight []int) []int {
 	}
 	dense := max(16, int(10*math.Sqrt(float64(n))))
 	state := make([]uint8, n)
-	nv := make([]int, n)     // supervariable size (negated while in Lp)
-	deg := make([]int, n)    // approximate external degree of a variable
-	dege := make([]int, n)   // |Le| (weighted) of an element
-	elen := make([]int, n)   // elements at the front of a variable's list
-	pe := make([]int, n)     // list start in iw
-	ln := make([]int, n)     // list length
-	w := make([]int, n)      // |Le \ Lp| + wflg during a step
+	nv := make([]int, n)   // supervariable size (negated while in Lp)
+	deg := make([]int, n)  // approximate external degree of a variable
+	dege := make([]int, n) // |Le| (weighted) of an element
+	elen := make([]int, n) // elements at the front of a variable's list
+	pe := make([]int, n)   // list start in iw
+	ln := make([]int, n)   // list length
+	w := make([]int, n)    // |Le \ Lp| + wflg during a step
 	total := n
 	if weight != nil {
 		total = 0
