@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 	"sync"
+	"sync/atomic"
 
 	"tearline/solver/sparse"
 )
@@ -21,7 +22,8 @@ import (
 // the elements of one colour touch disjoint unknowns and a bounded pool of
 // workers (Options.Workers, default GOMAXPROCS) adds their contributions
 // straight into the global vector and matrix without locks or races. The
-// colours are processed one after another. Each worker has its own
+// colours are processed one after another; within a colour the workers
+// take chunks of elements from a shared counter. Each worker has its own
 // preallocated scratch; after the first call nothing allocates.
 
 // buildPattern builds the node adjacency in numbering order and the CSR
@@ -154,21 +156,20 @@ func (p *Problem) Assemble(tangent bool) error {
 		p.workers[i].err = nil
 		p.workers[i].scale = [NumFields]float64{}
 	}
-	for _, els := range p.colours {
-		if nw == 1 || len(els) < 2*nw {
+	for c, els := range p.colours {
+		if nw == 1 || len(els) < 2*assemblyChunk {
 			p.work(0, els, tangent)
 			continue
 		}
-		chunk := (len(els) + nw - 1) / nw
+		// dynamic scheduling: the workers take chunks of the colour from a
+		// shared counter, so a worker the scheduler delays holds up the
+		// colour barrier by one chunk at most
+		p.pool.next.Store(0)
 		for i := 1; i < nw; i++ {
-			lo, hi := i*chunk, min((i+1)*chunk, len(els))
-			if lo >= hi {
-				continue
-			}
 			p.pool.wg.Add(1)
-			p.pool.jobs <- job{p: p, wi: i, els: els[lo:hi], tangent: tangent}
+			p.pool.jobs <- job{p: p, wi: i, colour: c, tangent: tangent}
 		}
-		p.work(0, els[:min(chunk, len(els))], tangent)
+		p.workChunks(0, c, tangent)
 		p.pool.wg.Wait()
 	}
 	var err error
@@ -307,13 +308,30 @@ type pool struct {
 	jobs chan job
 	wg   sync.WaitGroup
 	once sync.Once
+	next atomic.Int64 // next element of the colour being assembled
 }
 
 type job struct {
 	p       *Problem
 	wi      int
-	els     []int
+	colour  int
 	tangent bool
+}
+
+// assemblyChunk is the number of elements a worker takes at a time.
+const assemblyChunk = 64
+
+// workChunks assembles chunks of colour c until none is left.
+func (p *Problem) workChunks(wi, c int, tangent bool) {
+	els := p.colours[c]
+	for {
+		hi := int(p.pool.next.Add(assemblyChunk))
+		lo := hi - assemblyChunk
+		if lo >= len(els) {
+			return
+		}
+		p.work(wi, els[lo:min(hi, len(els))], tangent)
+	}
 }
 
 func newPool(n int) *pool {
@@ -326,7 +344,7 @@ func newPool(n int) *pool {
 
 func (pl *pool) run() {
 	for j := range pl.jobs {
-		j.p.work(j.wi, j.els, j.tangent)
+		j.p.workChunks(j.wi, j.colour, j.tangent)
 		j = job{}
 		pl.wg.Done()
 	}
