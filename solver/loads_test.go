@@ -161,3 +161,37 @@ func TestBrokenElements(t *testing.T) {
 		t.Errorf("frozen node moved by %g", u)
 	}
 }
+
+// TestFollowerPressure: a plane-strain block (symmetry on two sides)
+// under a pressure q on the other two, large enough for a finite
+// compression (q = E/20). A follower pressure acts on the current area,
+// so the Cauchy stress is exactly −q I (the equilibrium of a homogeneous
+// state, any text on continuum mechanics, e.g. Holzapfel 2000 §6); the
+// dead load acts on the reference area, so σ = −q/λ with λ the in-plane
+// stretch.
+func TestFollowerPressure(t *testing.T) {
+	const q = young / 20
+	for _, follower := range []bool{true, false} {
+		m, err := fem.Structured(2, 2, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bcs := fem.BCs{
+			Symmetries: []fem.Symmetry{{Label: "left", Comp: 0}, {Label: "bottom", Comp: 1}},
+			Tractions:  []fem.Traction{{Label: "right", Pressure: q, Follower: follower}, {Label: "top", Pressure: q, Follower: follower}},
+		}
+		p, _, _ := run(t, m, hencky(t, 0.3), fem.Options{}, bcs, func(o *Options) { o.Dt, o.RTol = 0.25, 1e-10 })
+		var gps fem.GaussPoints
+		p.GaussPoints(&gps)
+		for _, gp := range gps.Points {
+			s := fem.Cauchy(gp.F, gp.P)
+			want := -q
+			if !follower {
+				want = -q / gp.F[0]
+			}
+			if math.Abs(s[0]-want) > 1e-8*q || math.Abs(s[1]-want) > 1e-8*q || math.Abs(s[3]) > 1e-8*q {
+				t.Fatalf("follower %v: σ = %v at stretch %g, want σ₁₁ = σ₂₂ = %g", follower, s, gp.F[0], want)
+			}
+		}
+	}
+}

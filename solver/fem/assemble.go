@@ -212,6 +212,7 @@ func (p *Problem) Assemble(tangent bool) error {
 	for _, d := range p.fextList {
 		p.Full[d] -= p.T * p.fext[d]
 	}
+	p.assembleFollower(tangent)
 	copy(p.Res, p.Full)
 	for _, d := range p.Full {
 		if math.IsNaN(d) || math.IsInf(d, 0) {

@@ -15,9 +15,12 @@ import (
 //     the tangent cleared, diagonal kept), so the sparsity pattern never
 //     depends on the boundary conditions; the residual of those equations,
 //     kept before clearing, is the reaction.
-//   - Tractions and pressures are dead loads: they act on the reference
-//     boundary with the reference normal and do not follow the deformation.
-//     Pressure p > 0 pushes against the outward normal (into the body).
+//   - Tractions are dead loads: they act on the reference boundary and do
+//     not follow the deformation. A pressure is a dead load too unless
+//     Traction.Follower is set: then it acts on the current boundary along
+//     the current normal (and contributes its nonsymmetric load stiffness
+//     to the tangent). Pressure p > 0 pushes against the outward normal
+//     (into the body).
 //   - A pin (C(T) loading) is a rigid pin in frictionless contact with the
 //     half of the hole surface that faces the direction of loading: the nodes
 //     of that contact arc get the pin's motion in the loading component and
@@ -55,6 +58,15 @@ type Traction struct {
 	Value    [2]float64
 	Pressure float64
 	Func     func(X, n [2]float64) [2]float64
+	// Follower makes the pressure act on the deformed boundary (current
+	// area and normal); Value and Func stay dead loads.
+	Follower bool
+}
+
+// followerEdge is a boundary edge under follower pressure (value at t = 1).
+type followerEdge struct {
+	nodes    [3]int // A, Mid, B
+	pressure float64
 }
 
 // PointLoad is a force Value·t at a named node (in axisymmetry a ring load:
@@ -285,7 +297,21 @@ func (p *Problem) setBCs(b BCs) error {
 				return fmt.Errorf("%s: value %g is not finite", what, v)
 			}
 		}
-		p.addTraction(l, tr.Value, tr.Pressure, tr.Func)
+		pres := tr.Pressure
+		if tr.Follower && pres != 0 {
+			for _, e := range m.Boundary {
+				if e.Label == l {
+					p.follower = append(p.follower, followerEdge{nodes: [3]int{e.A, e.Mid, e.B}, pressure: pres})
+					length := math.Hypot(m.X[e.B][0]-m.X[e.A][0], m.X[e.B][1]-m.X[e.A][1])
+					if p.Opt.Kinematics == Axisymmetric {
+						length *= 2 * math.Pi * math.Max(m.X[e.A][0], m.X[e.B][0])
+					}
+					p.followerScale = math.Max(p.followerScale, math.Abs(pres)*length/3)
+				}
+			}
+			pres = 0
+		}
+		p.addTraction(l, tr.Value, pres, tr.Func)
 	}
 	for i, pl := range b.PointLoads {
 		what := fmt.Sprintf("point load %d", i)
@@ -356,3 +382,76 @@ func (p *Problem) addTraction(l int, value [2]float64, pressure float64, fn func
 }
 
 func hasDof(m map[int]int, d int) bool { _, ok := m[d]; return ok }
+
+// assembleFollower adds the follower pressures at time p.T to the residual
+// (Full −= t·f) and, if tangent, their load stiffness −t ∂f/∂u. With the
+// current edge x(ξ) = Σ N_k (X_k + u_k) and interior on the left of A→B,
+// the nodal forces are f_a = −p ∫ N_a (x₂′, −x₁′) dξ, times 2πr in
+// axisymmetry (3-point Gauss–Legendre rule).
+func (p *Problem) assembleFollower(tangent bool) {
+	if len(p.follower) == 0 {
+		return
+	}
+	gx := [3]float64{-math.Sqrt(0.6), 0, math.Sqrt(0.6)}
+	gw := [3]float64{5.0 / 9, 8.0 / 9, 5.0 / 9}
+	axi := p.Opt.Kinematics == Axisymmetric
+	for _, fe := range p.follower {
+		var x [3][2]float64
+		var dof [3][2]int
+		for k, n := range fe.nodes {
+			for c := 0; c < 2; c++ {
+				dof[k][c] = p.Dofs.Of(n, Field(c))
+				x[k][c] = p.Mesh.X[n][c] + p.U[dof[k][c]]
+			}
+		}
+		q := p.T * fe.pressure
+		var f [3][2]float64
+		var df [3][2][3][2]float64 // ∂f[a][c]/∂x[b][d]
+		for g := 0; g < 3; g++ {
+			s := gx[g]
+			N := [3]float64{0.5 * s * (s - 1), 1 - s*s, 0.5 * s * (s + 1)}
+			dN := [3]float64{s - 0.5, -2 * s, s + 0.5}
+			var r, x1, x2 float64
+			for k := 0; k < 3; k++ {
+				r += N[k] * x[k][0]
+				x1 += dN[k] * x[k][0]
+				x2 += dN[k] * x[k][1]
+			}
+			w := gw[g] * q
+			ra := 1.0
+			if axi {
+				ra = 2 * math.Pi * r
+			}
+			for a := 0; a < 3; a++ {
+				f[a][0] -= w * ra * N[a] * x2
+				f[a][1] += w * ra * N[a] * x1
+				if !tangent {
+					continue
+				}
+				for b := 0; b < 3; b++ {
+					df[a][0][b][1] -= w * ra * N[a] * dN[b]
+					df[a][1][b][0] += w * ra * N[a] * dN[b]
+					if axi {
+						df[a][0][b][0] -= w * 2 * math.Pi * N[b] * N[a] * x2
+						df[a][1][b][0] += w * 2 * math.Pi * N[b] * N[a] * x1
+					}
+				}
+			}
+		}
+		for a := 0; a < 3; a++ {
+			for c := 0; c < 2; c++ {
+				p.Full[dof[a][c]] -= f[a][c]
+				if !tangent {
+					continue
+				}
+				for b := 0; b < 3; b++ {
+					for d := 0; d < 2; d++ {
+						if v := df[a][c][b][d]; v != 0 {
+							p.K.Val[p.pos(dof[a][c], dof[b][d])] -= v
+						}
+					}
+				}
+			}
+		}
+	}
+}

@@ -110,18 +110,20 @@ type Problem struct {
 	stBack   []material.State
 	stBack2  []material.State
 
-	gp       []GaussPoint // committed Gauss-point data (F, P, W, State copy)
-	pendF    [][5]float64 // F and P at the last assembly
-	pendP    [][5]float64
-	presc    []prescribed
-	fixed    []bool
-	frozen   []bool
-	constr   []int // fixed or frozen unknowns
-	fext     []float64
-	fextList []int
-	pinArcs  [][]int
-	pinComp  []int
-	label    map[string][]int // label → nodes
+	gp            []GaussPoint // committed Gauss-point data (F, P, W, State copy)
+	pendF         [][5]float64 // F and P at the last assembly
+	pendP         [][5]float64
+	presc         []prescribed
+	fixed         []bool
+	frozen        []bool
+	constr        []int // fixed or frozen unknowns
+	fext          []float64
+	fextList      []int
+	pinArcs       [][]int
+	follower      []followerEdge
+	followerScale float64 // largest nodal follower force at t = 1 (reference geometry)
+	pinComp       []int
+	label         map[string][]int // label → nodes
 }
 
 const (
@@ -511,10 +513,11 @@ func (p *Problem) ExternalWork(u []float64, t float64) float64 {
 	return w
 }
 
-// LoadScale returns the largest nodal dead load at the current time,
-// |t|·max|f_ext| (zero without tractions and point loads).
+// LoadScale returns the largest nodal load at the current time,
+// |t|·max|f_ext| (follower pressures estimated on the reference geometry;
+// zero without tractions and point loads).
 func (p *Problem) LoadScale() float64 {
-	var m float64
+	m := p.followerScale
 	for _, d := range p.fextList {
 		m = math.Max(m, math.Abs(p.fext[d]))
 	}

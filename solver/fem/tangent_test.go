@@ -326,3 +326,63 @@ func usePlastic(t *testing.T, p *Problem, tc tangentCase) {
 		}
 	}
 }
+
+// TestFollowerTangentFD: the load stiffness of follower pressures (current
+// area and normal) is the exact derivative of their nodal forces (V9),
+// plane strain and axisymmetric, checked on the assembled system.
+func TestFollowerTangentFD(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	for _, kin := range []Kinematics{PlaneStrain, Axisymmetric} {
+		m, err := Structured(2, 2, AnnularSector(1, 2, 0.1, 0.9, 1))
+		if err != nil {
+			t.Fatal(err)
+		}
+		bcs := BCs{Tractions: []Traction{{Label: "left", Pressure: 5000, Follower: true}, {Label: "top", Pressure: -3000, Follower: true}}}
+		p, err := NewProblem(m, newHenckyT(200, 0.3), Options{Kinematics: kin}, bcs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for d := range p.U {
+			p.U[d] = 0.05 * (2*rng.Float64() - 1)
+		}
+		p.T = 0.7
+		if err := p.Assemble(true); err != nil {
+			t.Fatal(err)
+		}
+		n := p.Dofs.N
+		var kmax, emax float64
+		kv := append([]float64(nil), p.K.Val...)
+		for _, v := range kv {
+			kmax = math.Max(kmax, math.Abs(v))
+		}
+		// (the pressures are large against the modulus, so the load
+		// stiffness dominates the tangent)
+		rp, rm := make([]float64, n), make([]float64, n)
+		for b := 0; b < n; b++ {
+			u0 := p.U[b]
+			h := 1e-6
+			p.U[b] = u0 + h
+			if err := p.Assemble(false); err != nil {
+				t.Fatal(err)
+			}
+			copy(rp, p.Full)
+			p.U[b] = u0 - h
+			if err := p.Assemble(false); err != nil {
+				t.Fatal(err)
+			}
+			copy(rm, p.Full)
+			p.U[b] = u0
+			for a := 0; a < n; a++ {
+				fd := (rp[a] - rm[a]) / (2 * h)
+				var k float64
+				if q := p.pos(a, b); q >= 0 {
+					k = kv[q]
+				}
+				emax = math.Max(emax, math.Abs(fd-k))
+			}
+		}
+		if rel := emax / kmax; !(rel < 1e-6) {
+			t.Errorf("%v: follower tangent error %.3g relative, want < 1e-6", kin, rel)
+		}
+	}
+}
