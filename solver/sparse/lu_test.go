@@ -147,6 +147,16 @@ func TestLURefactor(t *testing.T) {
 			t.Errorf("refactor %d: residual %g", it, r)
 		}
 	}
+	// Refactoring the same pattern reuses all storage; only the worker
+	// goroutines of the factorisation are started afresh (a few objects).
+	allocs := testing.AllocsPerRun(3, func() {
+		if err := lu.Factorize(a); err != nil {
+			t.Fatal(err)
+		}
+	})
+	if allocs > float64(2+2*lu.Options().Workers) {
+		t.Errorf("refactorisation allocates %v objects", allocs)
+	}
 }
 
 // TestLUSingular: structurally and numerically singular matrices give a

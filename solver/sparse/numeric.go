@@ -42,6 +42,8 @@ type workspace struct {
 	tmp, u         []float64
 	cmap           []int
 	rows, cols     []int
+	pack           []float64
+	pool           gemmPool
 }
 
 func growF(s []float64, n int) []float64 {
@@ -78,6 +80,8 @@ func (num *numeric) factor(sym *symbolic, val []float64, tau, tiny float64, work
 	ws.colPos = growI(ws.colPos, n)
 	ws.top, ws.itop = 0, 0
 	num.nnz = 0
+	ws.pool.start(workers)
+	defer ws.pool.stop()
 	for sn := 0; sn < ns; sn++ {
 		if err := num.factorFront(sym, sn, val, tau, tiny); err != nil {
 			return err
@@ -314,7 +318,7 @@ func partialLU(F []float64, m, nfs int, rows, cols []int, tau, tiny float64, ws 
 		w := j - p0
 		if w > 0 && j < m {
 			impl.Dtrsm(blas.Left, blas.Lower, blas.NoTrans, blas.Unit, w, m-j, 1, F[p0*m+p0:], m, F[p0*m+j:], m)
-			impl.Dgemm(blas.NoTrans, blas.NoTrans, m-j, m-j, w, -1, F[j*m+p0:], m, F[p0*m+j:], m, 1, F[j*m+j:], m)
+			ws.pack = ws.pool.sub(m-j, m-j, w, F[j*m+p0:], m, F[p0*m+j:], m, F[j*m+j:], m, ws.pack)
 		}
 		if w == 0 {
 			break // no column of the remaining ones has an acceptable pivot
