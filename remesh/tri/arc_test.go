@@ -214,3 +214,108 @@ func TestArcSmallAngle(t *testing.T) {
 	}
 	t.Logf("%+v, shortest edge %.3g", rep, shortest)
 }
+
+// TestArcHoleNearBoundary: a circular hole of six chords close to the
+// bottom of a rectangle (clearance 0.1, chord sagitta 0.067), split on the
+// circle. Checks: all hole vertices on the circle, valid and locally
+// Delaunay mesh, the mesh area equals the area enclosed by the sub-segments
+// (Green's theorem) and the exact area (rectangle minus disk) plus the
+// circular segments of the final chords (closed form R²(θ − sin θ)/2 each).
+func TestArcHoleNearBoundary(t *testing.T) {
+	c, R := [2]float64{1, 0.6}, 0.5
+	hole := circleLoop(c, R, 6, true)
+	in := &Input{Points: square(0, 0, 2, 1.2), Segments: loop(0, 4), SegmentMarks: []int{0, 0, 0, 0}}
+	in.Points = append(in.Points, hole...)
+	in.Segments = append(in.Segments, loop(4, 6)...)
+	in.SegmentMarks = append(in.SegmentMarks, 1, 1, 1, 1, 1, 1)
+	in.Holes = [][2]float64{c}
+	split := func(mark int, a, b [2]float64) [2]float64 {
+		m := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+		if mark != 1 {
+			return m
+		}
+		d := sub(m, c)
+		l := math.Hypot(d[0], d[1])
+		return [2]float64{c[0] + R*d[0]/l, c[1] + R*d[1]/l}
+	}
+	for _, size := range []func(x, y float64) float64{nil, func(x, y float64) float64 { return 0.05 }} {
+		m, err := Triangulate(in, &Options{Split: split, Size: size})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := Check(m); err != nil {
+			t.Fatal(err)
+		}
+		checkLocallyDelaunay(t, m)
+		green, segArea := 0.0, 0.0
+		for j, s := range m.Segments {
+			a, b := m.Points[s[0]], m.Points[s[1]]
+			green += 0.5 * (a[0]*b[1] - b[0]*a[1])
+			if m.SegmentMarks[j] != 1 {
+				continue
+			}
+			if r := dist(a, c); math.Abs(r-R) > 1e-12 {
+				t.Errorf("hole vertex (%g, %g) at radius %.15g, want %g", a[0], a[1], r, R)
+			}
+			th := 2 * math.Asin(dist(a, b)/(2*R))
+			segArea += R * R * (th - math.Sin(th)) / 2
+		}
+		area := meshArea(m)
+		if math.Abs(area-green) > 1e-12*area {
+			t.Errorf("mesh area %.15g, enclosed by the sub-segments %.15g", area, green)
+		}
+		if want := 2.4 - math.Pi*R*R + segArea; math.Abs(area-want) > 1e-10*area {
+			t.Errorf("mesh area %.15g, square minus disk plus circular segments %.15g", area, want)
+		}
+	}
+}
+
+// inwardSeed is a fuzz input (fuzzDomain, arc mode) whose refinement splits
+// arcs bulging into the domain past flat triangles (found by searching
+// random inputs).
+var inwardSeed = []byte{0x99, 0xe6, 0xd4, 0x6f, 0xcb, 0xc4, 0x51, 0x0, 0x96, 0xd6, 0x5d, 0x7, 0x9, 0xf3, 0xaf, 0x72, 0xd5, 0xa4, 0x8c, 0x13, 0xd7, 0x59, 0xb6, 0xf8, 0x38, 0x83, 0x84, 0x79, 0x77, 0x75, 0xdf, 0x5c, 0xd0, 0x20, 0xc7, 0xac, 0xf9, 0x3b, 0x8a, 0xf3, 0x74, 0xfd, 0x2c, 0xba, 0x45, 0x94, 0xd3, 0xa9, 0x8c, 0x3e, 0x38, 0xd7, 0xe1, 0x83, 0x9e, 0xbf, 0x3f, 0xc6, 0xb, 0xa6, 0x8f, 0x3f, 0x1b, 0xf8, 0x13, 0x43, 0x8d, 0x93, 0x5, 0xd3, 0x4, 0x2b, 0x6, 0xca, 0x88, 0xec, 0x67, 0x36, 0x63, 0x12, 0x1f, 0xee, 0x11, 0xa5, 0x7d, 0x8e, 0xc9, 0xb9, 0xd5, 0xfa, 0xe4, 0x74, 0x2, 0xa6, 0x74, 0x4a, 0xed, 0x8d, 0xde, 0x16}
+
+// TestArcInwardPastFlatTriangle: when the arc point of a boundary
+// sub-segment lies inside the domain but beyond the triangle on the
+// sub-segment, the point is inserted, the two new boundary edges recovered
+// and the triangle cut off by the arc removed. Checks on an input that takes
+// that path: valid, locally Delaunay mesh whose area equals the area
+// enclosed by its sub-segments (Green's theorem), and the new vertices on
+// their arcs.
+func TestArcInwardPastFlatTriangle(t *testing.T) {
+	in, _, _, opt, arcs := fuzzDomain(inwardSeed)
+	nIn := len(in.Points)
+	m, r, err := triangulate(in, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.nInward == 0 {
+		t.Fatal("the input no longer takes the inward path; find another")
+	}
+	if err := Check(m); err != nil {
+		t.Fatal(err)
+	}
+	checkLocallyDelaunay(t, m)
+	green := 0.0
+	onArc, total := 0, 0
+	for j, s := range m.Segments {
+		a, b := m.Points[s[0]], m.Points[s[1]]
+		green += 0.5 * (a[0]*b[1] - b[0]*a[1])
+		if ar, ok := arcs[m.SegmentMarks[j]]; ok && s[0] >= nIn {
+			total++
+			if math.Abs(dist(a, ar.c)-ar.r) <= 1e-12*ar.r {
+				onArc++
+			}
+		}
+	}
+	if area := meshArea(m); math.Abs(area-green) > 1e-12*area {
+		t.Errorf("mesh area %.15g, enclosed by the sub-segments %.15g", area, green)
+	}
+	// the fuzz domain's arcs may come closer to other features than their
+	// sagitta, where the mesher falls back to the chord: most new arc
+	// vertices must still lie on the arc
+	if onArc < total*3/4 {
+		t.Errorf("%d of %d new arc vertices on their arcs", onArc, total)
+	}
+	t.Logf("%d inward splits, %d outward, %d inside; %d of %d new arc vertices on the arcs", r.nInward, r.nCurvedOut, r.nCurvedIn, onArc, total)
+}

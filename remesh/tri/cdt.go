@@ -103,62 +103,12 @@ func (m *tmesh) insertSegment(a, b int32, mark int, k int32) error {
 			m.newSeg(e, a, b, mark, k)
 			return nil
 		}
-		pa, pb := m.xy[a], m.xy[b]
-		// Find the triangle at a whose wedge holds the direction to b.
-		var e0 int32 = -1
-		var on int32 = -1
-		for _, t := range m.star(a) {
-			s := m.slot(t, a)
-			x, y := m.tv[3*t+next3(s)], m.tv[3*t+prev3(s)]
-			ox := orient(pa, m.xy[x], pb)
-			oy := orient(pa, m.xy[y], pb)
-			if ox == 0 && dot(sub(m.xy[x], pa), sub(pb, pa)) > 0 {
-				on = x
-				break
-			}
-			if oy == 0 && dot(sub(m.xy[y], pa), sub(pb, pa)) > 0 {
-				on = y
-				break
-			}
-			if ox > 0 && oy < 0 {
-				e0 = 3*t + s
-				break
-			}
+		cross, on, seg, err := m.crossings(a, b)
+		if err != nil {
+			return fmt.Errorf("tri: segment %d (points %d–%d): %w", k, a, b, err)
 		}
-		if on < 0 && e0 < 0 {
-			return fmt.Errorf("tri: segment %d (points %d–%d): no triangle at point %d faces point %d (internal error)", k, a, b, a, b)
-		}
-		var cross [][2]int32
-		if on < 0 {
-			// Walk along a→b collecting the crossed edges x→y (x right of a→b, y left).
-			e := e0
-			for {
-				if s := m.ts[e]; s >= 0 {
-					return fmt.Errorf("tri: segment %d (points %d–%d) crosses segment %d (points %d–%d)", k, a, b, m.sorig[s], m.sa[s], m.sb[s])
-				}
-				t := e / 3
-				x, y := m.tv[3*t+next3(e%3)], m.tv[3*t+prev3(e%3)]
-				cross = append(cross, [2]int32{x, y})
-				n := m.tn[e]
-				if n < 0 {
-					return fmt.Errorf("tri: segment %d leaves the triangulation (internal error)", k)
-				}
-				u, j := n/3, n%3
-				z := m.tv[n]
-				if z == b {
-					break
-				}
-				oz := orient(pa, pb, m.xy[z])
-				if oz == 0 {
-					on = z
-					break
-				}
-				if oz > 0 {
-					e = 3*u + next3(j) // x→z
-				} else {
-					e = 3*u + prev3(j) // z→y
-				}
-			}
+		if seg >= 0 {
+			return fmt.Errorf("tri: segment %d (points %d–%d) crosses segment %d (points %d–%d)", k, a, b, m.sorig[seg], m.sa[seg], m.sb[seg])
 		}
 		if on >= 0 {
 			// A vertex lies on the segment: constrain a–on, then go on from it.
@@ -173,23 +123,99 @@ func (m *tmesh) insertSegment(a, b int32, mark int, k int32) error {
 	return nil
 }
 
+// crossings walks from vertex a towards vertex b and returns the edges
+// crossing the open segment a–b as vertex pairs x→y (x right of a→b, y
+// left), stopping at the first vertex lying on it (on) or at the first
+// sub-segment crossing it (seg).
+func (m *tmesh) crossings(a, b int32) (cross [][2]int32, on, seg int32, err error) {
+	pa, pb := m.xy[a], m.xy[b]
+	on, seg = -1, -1
+	// Find the triangle at a whose wedge holds the direction to b.
+	var e int32 = -1
+	for _, t := range m.star(a) {
+		s := m.slot(t, a)
+		x, y := m.tv[3*t+next3(s)], m.tv[3*t+prev3(s)]
+		ox := orient(pa, m.xy[x], pb)
+		oy := orient(pa, m.xy[y], pb)
+		if ox == 0 && dot(sub(m.xy[x], pa), sub(pb, pa)) > 0 {
+			return nil, x, -1, nil
+		}
+		if oy == 0 && dot(sub(m.xy[y], pa), sub(pb, pa)) > 0 {
+			return nil, y, -1, nil
+		}
+		if ox > 0 && oy < 0 {
+			e = 3*t + s
+			break
+		}
+	}
+	if e < 0 {
+		return nil, -1, -1, fmt.Errorf("no triangle at point %d faces point %d (internal error)", a, b)
+	}
+	for {
+		if s := m.ts[e]; s >= 0 {
+			return cross, -1, s, nil
+		}
+		t := e / 3
+		x, y := m.tv[3*t+next3(e%3)], m.tv[3*t+prev3(e%3)]
+		cross = append(cross, [2]int32{x, y})
+		n := m.tn[e]
+		if n < 0 {
+			return nil, -1, -1, fmt.Errorf("the segment leaves the triangulation (internal error)")
+		}
+		u, j := n/3, n%3
+		z := m.tv[n]
+		if z == b {
+			return cross, -1, -1, nil
+		}
+		oz := orient(pa, pb, m.xy[z])
+		if oz == 0 {
+			return cross, z, -1, nil
+		}
+		if oz > 0 {
+			e = 3*u + next3(j) // x→z
+		} else {
+			e = 3*u + prev3(j) // z→y
+		}
+	}
+}
+
 // removeCrossings flips the edges in cross (all crossing a–b) until a–b is an
 // edge, marks it constrained and restores the Delaunay property around the
 // new edges (Sloan 1993).
 func (m *tmesh) removeCrossings(a, b int32, cross [][2]int32, mark int, k int32) error {
+	made, err := m.recoverEdge(a, b, cross)
+	if err != nil {
+		return fmt.Errorf("tri: segment %d: %w", k, err)
+	}
+	e := m.findEdge(a, b)
+	if e < 0 {
+		return fmt.Errorf("tri: segment %d: edge not recovered (internal error)", k)
+	}
+	if s := m.ts[e]; s >= 0 {
+		return fmt.Errorf("tri: segment %d (points %d–%d) overlaps segment %d", k, a, b, m.sorig[s])
+	}
+	m.newSeg(e, a, b, mark, k)
+	m.legalizeEdges(made)
+	return nil
+}
+
+// recoverEdge flips the edges in cross (all crossing a–b, none constrained)
+// until a–b is an edge (Sloan 1993); it returns the new edges that do not
+// cross a–b, to be made Delaunay again.
+func (m *tmesh) recoverEdge(a, b int32, cross [][2]int32) ([][2]int32, error) {
 	pa, pb := m.xy[a], m.xy[b]
 	var made [][2]int32
 	guard := 0
 	limit := 16*len(cross)*len(cross) + 64
 	for len(cross) > 0 {
 		if guard++; guard > limit {
-			return fmt.Errorf("tri: segment %d: edge recovery did not converge (internal error)", k)
+			return nil, fmt.Errorf("edge recovery did not converge (internal error)")
 		}
 		xy := cross[0]
 		cross = cross[1:]
 		e := m.findEdge(xy[0], xy[1])
 		if e < 0 {
-			return fmt.Errorf("tri: segment %d: lost edge during recovery (internal error)", k)
+			return nil, fmt.Errorf("lost edge during recovery (internal error)")
 		}
 		t, i := e/3, e%3
 		n := m.tn[e]
@@ -207,16 +233,7 @@ func (m *tmesh) removeCrossings(a, b int32, cross [][2]int32, mark int, k int32)
 			made = append(made, [2]int32{p0, q0})
 		}
 	}
-	e := m.findEdge(a, b)
-	if e < 0 {
-		return fmt.Errorf("tri: segment %d: edge not recovered (internal error)", k)
-	}
-	if s := m.ts[e]; s >= 0 {
-		return fmt.Errorf("tri: segment %d (points %d–%d) overlaps segment %d", k, a, b, m.sorig[s])
-	}
-	m.newSeg(e, a, b, mark, k)
-	m.legalizeEdges(made)
-	return nil
+	return made, nil
 }
 
 // legalizeEdges applies Lawson flips to the listed edges (and those they

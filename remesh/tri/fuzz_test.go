@@ -10,6 +10,19 @@ import (
 // a star-shaped polygon snapped to a coarse grid (collinear runs, repeated
 // points), or a star-shaped polygon with a small hole.
 func fuzzPolygon(data []byte) (in *Input, simple bool, area float64, opt *Options) {
+	in, simple, area, opt, _ = fuzzDomain(data)
+	return
+}
+
+// fuzzArc is a circle on which the sub-segments of one mark lie.
+type fuzzArc struct {
+	c [2]float64
+	r float64
+}
+
+// fuzzDomain is fuzzPolygon with, in a fifth mode, some star edges replaced
+// by shallow circular arcs (bulging in or out) that Options.Split follows.
+func fuzzDomain(data []byte) (in *Input, simple bool, area float64, opt *Options, arcs map[int]fuzzArc) {
 	at := func(i int) float64 { // byte i as a number in [0, 1)
 		if len(data) == 0 {
 			return 0.5
@@ -20,7 +33,7 @@ func fuzzPolygon(data []byte) (in *Input, simple bool, area float64, opt *Option
 	// polygon is star-shaped about the origin, and its edges keep a distance
 	// ≥ 0.1·cos(0.4π) ≈ 0.031 from it.
 	n := 4 + int(at(0)*24)
-	mode := int(at(1) * 4)
+	mode := int(at(1) * 5)
 	pts := make([][2]float64, n)
 	w := make([]float64, n)
 	total := 0.0
@@ -59,15 +72,46 @@ func fuzzPolygon(data []byte) (in *Input, simple bool, area float64, opt *Option
 	for k := range in.SegmentMarks {
 		in.SegmentMarks[k] = k % 5
 	}
-	area = math.Abs(polyArea(pts))
-	if mode == 3 {
-		area -= math.Abs(polyArea(in.Points[n:]))
-	}
 	opt = &Options{MinAngle: 34 * at(9), MaxPoints: 20000}
 	if h := at(10); h > 0.3 {
 		opt.Size = func(x, y float64) float64 { return 0.02 + h*math.Hypot(x, y) }
 	}
-	return in, simple, area, opt
+	if mode == 4 {
+		arcs = map[int]fuzzArc{}
+		for k := 0; k < n; k++ {
+			if at(11+k) < 0.5 {
+				continue
+			}
+			a, b := pts[k], pts[(k+1)%n]
+			mid := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+			d := sub(b, a)
+			L := math.Hypot(d[0], d[1])
+			nrm := [2]float64{-d[1] / L, d[0] / L} // towards the inside
+			f := 1.5 + 3*at(40+k)                  // centre at f·L from the chord
+			if at(70+k) < 0.5 {
+				f = -f // bulging inwards
+			}
+			c := [2]float64{mid[0] + f*L*nrm[0], mid[1] + f*L*nrm[1]}
+			in.SegmentMarks[k] = 100 + k
+			arcs[100+k] = fuzzArc{c, dist(a, c)}
+		}
+		opt.Split = func(mark int, a, b [2]float64) [2]float64 {
+			m := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
+			ar, ok := arcs[mark]
+			if !ok {
+				return m
+			}
+			d := sub(m, ar.c)
+			l := math.Hypot(d[0], d[1])
+			return [2]float64{ar.c[0] + ar.r*d[0]/l, ar.c[1] + ar.r*d[1]/l}
+		}
+		simple = false // the arcs change the area
+	}
+	area = math.Abs(polyArea(pts))
+	if mode == 3 {
+		area -= math.Abs(polyArea(in.Points[n:]))
+	}
+	return in, simple, area, opt, arcs
 }
 
 // FuzzTriangulate: every input ends in a valid mesh or an error — never a
@@ -79,14 +123,31 @@ func FuzzTriangulate(f *testing.F) {
 	f.Add([]byte{255, 180, 0, 0, 0, 0, 0, 0, 0, 0})
 	f.Add([]byte{17, 240, 33, 1, 2, 3, 4, 5, 6, 7, 8, 9})
 	f.Add([]byte{250, 70, 1, 2, 250, 250, 3, 1, 1, 255, 0, 77})
+	f.Add(inwardSeed)
 	f.Fuzz(func(t *testing.T, data []byte) {
-		in, simple, area, opt := fuzzPolygon(data)
+		in, simple, area, opt, arcs := fuzzDomain(data)
 		m, err := Triangulate(in, opt)
 		if err != nil {
 			return
 		}
 		if err := Check(m); err != nil {
 			t.Fatalf("invalid mesh without error: %v", err)
+		}
+		green := 0.0
+		for j, s := range m.Segments {
+			a, b := m.Points[s[0]], m.Points[s[1]]
+			green += 0.5 * (a[0]*b[1] - b[0]*a[1])
+			if ar, ok := arcs[m.SegmentMarks[j]]; ok {
+				for _, p := range [2][2]float64{a, b} {
+					// points off the arc only where the mesher had to split on the chord
+					if r := dist(p, ar.c); math.Abs(r-ar.r) > 0.5*ar.r {
+						t.Fatalf("arc point %v at radius %g, arc radius %g", p, r, ar.r)
+					}
+				}
+			}
+		}
+		if got := meshArea(m); in.Holes == nil && math.Abs(got-math.Abs(green)) > 1e-9*got {
+			t.Fatalf("area %.15g, enclosed by the sub-segments %.15g", got, green)
 		}
 		if simple {
 			if got := meshArea(m); math.Abs(got-area) > 1e-9*area {

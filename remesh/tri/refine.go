@@ -28,6 +28,9 @@ type refiner struct {
 	enc     []int32
 	added   int
 	err     error
+
+	// counts of the ways boundary sub-segments were split on a curve
+	nCurvedOut, nCurvedIn, nInward int
 }
 
 type segItem struct{ s, a, b int32 }
@@ -407,6 +410,7 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 	}
 	switch {
 	case o < 0: // outside the domain: add triangle [v p2 p1]
+		r.nCurvedOut++
 		v = m.addVertex(p, m.sorig[s])
 		h1, h2 := halves()
 		n := m.newTri()
@@ -419,8 +423,9 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 	case o > 0: // inside: t = [c p1 p2] becomes [v p2 c] and [v c p1]
 		xc := m.xy[c]
 		if !(orient(x2, xc, p) > 0 && orient(xc, x1, p) > 0) {
-			return false
+			return r.splitInward(s, e, p)
 		}
+		r.nCurvedIn++
 		v = m.addVertex(p, m.sorig[s])
 		h1, h2 := halves()
 		A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
@@ -439,6 +444,150 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 		return false
 	}
 	r.afterInsert(v)
+	return true
+}
+
+// crossesOpenTri reports whether segment u–w meets the interior of the
+// counter-clockwise triangle a b c (no separating line among the triangle's
+// edges and the segment's line; exact).
+func crossesOpenTri(u, w, a, b, c [2]float64) bool {
+	for _, e := range [3][2][2]float64{{a, b}, {b, c}, {c, a}} {
+		if orient(e[0], e[1], u) <= 0 && orient(e[0], e[1], w) <= 0 {
+			return false
+		}
+	}
+	oa, ob, oc := orient(u, w, a), orient(u, w, b), orient(u, w, c)
+	if (oa >= 0 && ob >= 0 && oc >= 0) || (oa <= 0 && ob <= 0 && oc <= 0) {
+		return false
+	}
+	return true
+}
+
+// splitInward splits the boundary sub-segment s (edge reference e, on the
+// triangle inside the domain) at p, which lies inside the domain but beyond
+// that triangle: p is inserted, the edges p1–p and p–p2 are recovered by
+// flips (Sloan 1993) and the triangle p1 p2 p, now outside the curve, is
+// removed. If a vertex or a sub-segment lies in that triangle, nothing is
+// changed and false is returned.
+func (r *refiner) splitInward(s, e int32, p [2]float64) bool {
+	m := r.m
+	t, i := e/3, e%3
+	p1, p2 := m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
+	x1, x2 := m.xy[p1], m.xy[p2]
+	// Is the lens triangle x1 x2 p free of vertices and sub-segments?
+	m.epoch++
+	st := append(m.stack[:0], t)
+	m.stamp[t] = m.epoch
+	for len(st) > 0 {
+		u := st[len(st)-1]
+		st = st[:len(st)-1]
+		if len(st) > 256 {
+			m.stack = st
+			return false
+		}
+		for k := int32(0); k < 3; k++ {
+			q := m.xy[m.tv[3*u+k]]
+			if orient(x1, x2, q) > 0 && orient(x2, p, q) >= 0 && orient(p, x1, q) >= 0 {
+				m.stack = st
+				return false // a vertex in the lens (or on its new sides)
+			}
+			f := 3*u + k
+			a, b := m.xy[m.tv[3*u+next3(k)]], m.xy[m.tv[3*u+prev3(k)]]
+			if f == e || !crossesOpenTri(a, b, x1, x2, p) {
+				continue
+			}
+			if m.ts[f] >= 0 || m.tn[f] < 0 {
+				m.stack = st
+				return false // a sub-segment crosses the lens
+			}
+			if w := m.tn[f] / 3; m.stamp[w] != m.epoch {
+				m.stamp[w] = m.epoch
+				st = append(st, w)
+			}
+		}
+	}
+	m.stack = st
+	m.ts[e] = -1 // the chord stops being a constraint
+	kind, ref := m.locate(p, t, true)
+	if kind != locIn && kind != locEdge {
+		m.ts[e] = s
+		return false
+	}
+	v := m.addVertex(p, m.sorig[s])
+	if kind == locIn {
+		m.splitTri(ref, v)
+	} else {
+		m.splitEdge(ref/3, ref%3, v)
+	}
+	var made [][2]int32
+	for _, ab := range [2][2]int32{{p1, v}, {v, p2}} {
+		if m.findEdge(ab[0], ab[1]) >= 0 {
+			continue
+		}
+		cross, on, seg, err := m.crossings(ab[0], ab[1])
+		if err == nil && (on >= 0 || seg >= 0) {
+			err = fmt.Errorf("blocked by point %d or sub-segment %d", on, seg)
+		}
+		if err == nil {
+			var mk [][2]int32
+			mk, err = m.recoverEdge(ab[0], ab[1], cross)
+			made = append(made, mk...)
+		}
+		if err != nil {
+			r.err = fmt.Errorf("tri: splitting the curved sub-segment (%g, %g)–(%g, %g) of segment %d: %v (internal error)", x1[0], x1[1], x2[0], x2[1], m.sorig[s], err)
+			return false
+		}
+	}
+	// Remove the lens triangle and constrain the two new boundary edges.
+	e1 := m.findEdge(p1, v)
+	lens := int32(-1)
+	if e1 >= 0 && m.tv[e1] == p2 {
+		lens = e1 / 3
+	} else if e1 >= 0 && m.tn[e1] >= 0 && m.tv[m.tn[e1]] == p2 {
+		lens = m.tn[e1] / 3
+	}
+	if lens < 0 {
+		r.err = fmt.Errorf("tri: splitting the curved sub-segment (%g, %g)–(%g, %g) of segment %d: no lens triangle (internal error)", x1[0], x1[1], x2[0], x2[1], m.sorig[s])
+		return false
+	}
+	var nb [3]int32 // neighbours of the lens triangle
+	for k := int32(0); k < 3; k++ {
+		nb[k] = m.tn[3*lens+k]
+	}
+	m.killTri(lens)
+	for _, n := range nb {
+		if n >= 0 {
+			w := n / 3
+			for k := int32(0); k < 3; k++ {
+				m.vt[m.tv[3*w+k]] = w
+			}
+		}
+	}
+	ns := int32(len(m.sa))
+	m.sa = append(m.sa, 0)
+	m.sb = append(m.sb, 0)
+	m.smark = append(m.smark, m.smark[s])
+	m.sorig = append(m.sorig, m.sorig[s])
+	h1, h2 := s, ns // on p1–v and v–p2
+	if m.sa[s] == p1 {
+		m.sb[s] = v
+		m.sa[ns], m.sb[ns] = v, p2
+	} else {
+		m.sb[s] = v
+		m.sa[ns], m.sb[ns] = v, p1
+		h1, h2 = ns, s
+	}
+	for _, hs := range [2][3]int32{{p1, v, h1}, {v, p2, h2}} {
+		f := m.findEdge(hs[0], hs[1])
+		if f < 0 || m.tn[f] >= 0 {
+			r.err = fmt.Errorf("tri: splitting the curved sub-segment of segment %d: new boundary edge missing (internal error)", m.sorig[s])
+			return false
+		}
+		m.ts[f] = hs[2]
+	}
+	m.legalizeEdges(made)
+	r.afterInsert(v)
+	r.nInward++
 	return true
 }
 

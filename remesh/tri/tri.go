@@ -145,18 +145,24 @@ func CDT(in *Input) (*Mesh, error) {
 // smaller than about 60°, where that cannot be had) and size ≤ Size at its
 // centroid, and the sub-segments cover the input segments.
 func Triangulate(in *Input, opt *Options) (*Mesh, error) {
+	out, _, err := triangulate(in, opt)
+	return out, err
+}
+
+// triangulate is Triangulate, also returning the refiner (for its counts).
+func triangulate(in *Input, opt *Options) (*Mesh, *refiner, error) {
 	if err := opt.Validate(); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	m, err := prepare(in)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	r := newRefiner(m, in, opt)
 	if err := r.run(); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	return m.output(len(in.Points)), nil
+	return m.output(len(in.Points)), r, nil
 }
 
 // prepare validates the input and builds the carved CDT.
