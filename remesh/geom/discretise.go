@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/tidwall/rtree"
 )
 
 // MinFeature is the smallest feature allowed relative to the local mesh
@@ -127,27 +129,48 @@ func (d *Domain) checkFeatures(size func([2]float64) (float64, error), tol float
 	for _, n := range names {
 		vs = append(vs, vtx{d.Points[n].X, fmt.Sprintf("point %q", n)})
 	}
+	tr, refs := d.pieceTree()
 	for _, v := range vs {
 		hv, err := size(v.x)
 		if err != nil {
 			return err
 		}
 		lim := MinFeature * hv
-		for k, l := range loops {
-			for i := range l {
-				p := &l[i]
-				if dist(p.A, v.x) <= tol || dist(p.B, v.x) <= tol {
-					continue
-				}
-				dd := p.Distance(v.x)
-				if dd > tol && dd < lim {
-					return fmt.Errorf("geometry: %s at (%g, %g) is %g from %s, closer than %g × the mesh size %g there; widen the gap or merge the points",
-						v.name, v.x[0], v.x[1], dd, pieceName(k, i, p), MinFeature, hv)
-				}
+		var ferr error
+		tr.Search([2]float64{v.x[0] - lim, v.x[1] - lim}, [2]float64{v.x[0] + lim, v.x[1] + lim}, func(_, _ [2]float64, j int) bool {
+			r := refs[j]
+			p := r.p
+			if dist(p.A, v.x) <= tol || dist(p.B, v.x) <= tol {
+				return true
 			}
+			if dd := p.Distance(v.x); dd > tol && dd < lim {
+				ferr = fmt.Errorf("geometry: %s at (%g, %g) is %g from %s, closer than %g × the mesh size %g there; widen the gap or merge the points",
+					v.name, v.x[0], v.x[1], dd, pieceName(r.loop, r.i, p), MinFeature, hv)
+				return false
+			}
+			return true
+		})
+		if ferr != nil {
+			return ferr
 		}
 	}
 	return nil
+}
+
+// pieceTree returns an R-tree of the pieces' bounding boxes (data: the
+// global piece index into the returned references).
+func (d *Domain) pieceTree() (*rtree.RTreeG[int], []pieceRef) {
+	var tr rtree.RTreeG[int]
+	var refs []pieceRef
+	for k, l := range d.Loops() {
+		for i := range l {
+			p := &l[i]
+			lo, hi := p.box()
+			tr.Insert(lo, hi, len(refs))
+			refs = append(refs, pieceRef{k, i, p, lo, hi})
+		}
+	}
+	return &tr, refs
 }
 
 // divisions returns the interior fractions t ∈ (0, 1) that split piece p
@@ -364,17 +387,7 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 // crowdedArcs returns the arc pieces that have a chord whose sagitta
 // exceeds a tenth of the distance from its arc midpoint to another piece.
 func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
-	type pbox struct {
-		p      *Piece
-		lo, hi [2]float64
-	}
-	n := d.NumPieces()
-	boxes := make([]pbox, n)
-	for i := 0; i < n; i++ {
-		p, _, _ := d.Piece(i)
-		lo, hi := p.box()
-		boxes[i] = pbox{p, lo, hi}
-	}
+	tr, refs := d.pieceTree()
 	bad := map[int]bool{}
 	var out []int
 	for s, seg := range g.Segments {
@@ -382,7 +395,7 @@ func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
 		if bad[gi] {
 			continue
 		}
-		p := boxes[gi].p
+		p := refs[gi].p
 		if p.Kind != Arc {
 			continue
 		}
@@ -394,20 +407,14 @@ func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
 		}
 		m := p.Split(a, b)
 		reach := 10 * sag
-		for j := range boxes {
-			if j == gi {
-				continue
-			}
-			bx := &boxes[j]
-			if m[0] < bx.lo[0]-reach || m[0] > bx.hi[0]+reach || m[1] < bx.lo[1]-reach || m[1] > bx.hi[1]+reach {
-				continue
-			}
-			if bx.p.Distance(m) < reach {
+		tr.Search([2]float64{m[0] - reach, m[1] - reach}, [2]float64{m[0] + reach, m[1] + reach}, func(_, _ [2]float64, j int) bool {
+			if j != gi && refs[j].p.Distance(m) < reach {
 				bad[gi] = true
 				out = append(out, gi)
-				break
+				return false
 			}
-		}
+			return true
+		})
 	}
 	return out
 }
