@@ -42,7 +42,6 @@ type workspace struct {
 	tmp, u         []float64
 	cmap           []int
 	rows, cols     []int
-	pack           []float64
 	pool           gemmPool
 }
 
@@ -318,7 +317,7 @@ func partialLU(F []float64, m, nfs int, rows, cols []int, tau, tiny float64, ws 
 		w := j - p0
 		if w > 0 && j < m {
 			impl.Dtrsm(blas.Left, blas.Lower, blas.NoTrans, blas.Unit, w, m-j, 1, F[p0*m+p0:], m, F[p0*m+j:], m)
-			ws.pack = ws.pool.sub(m-j, m-j, w, F[j*m+p0:], m, F[p0*m+j:], m, F[j*m+j:], m, ws.pack)
+			ws.pool.sub(m-j, m-j, w, F[j*m+p0:], m, F[p0*m+j:], m, F[j*m+j:], m)
 		}
 		if w == 0 {
 			break // no column of the remaining ones has an acceptable pivot
