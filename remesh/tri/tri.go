@@ -70,8 +70,9 @@ type Options struct {
 	// Size is the target size h(x, y) (an edge length, > 0); nil = no limit.
 	Size func(x, y float64) float64
 	// MinAngle is the minimum-angle bound in degrees; 0 means 28. Values
-	// above 34 are rejected (refinement is guaranteed to terminate up to
-	// about 20.7°, Ruppert 1995, and in practice up to about 33°).
+	// above 34 are rejected. Termination is guaranteed up to about 20.7°
+	// (Ruppert 1995) and 25.7° with the shell splitting (Shewchuk 2002); in
+	// practice refinement ends up to 33°, while 34° may run into MaxPoints.
 	MinAngle float64
 	// MaxPoints limits the number of inserted points (0 = 10 000 000);
 	// exceeding it is an error.
