@@ -290,13 +290,21 @@ func (p *Problem) scatter(e int, w *worker, tangent bool) {
 			w.pos[ka][kb] = p.nodeOff(tri[ka], tri[kb])
 		}
 	}
+	// column offsets within the rows of each local node
+	for ka := 0; ka < 6; ka++ {
+		pr, o := &w.pos[ka], &w.colOff[ka]
+		for b := 0; b < nd; b++ {
+			o[b] = pr[p.locN[b]] + int(p.locOff[b])
+		}
+	}
 	val := p.K.Val
 	for a := 0; a < nd; a++ {
 		base := p.K.RowPtr[w.gd[a]]
-		pr := &w.pos[p.locN[a]]
-		row := &w.ke[a]
-		for b := 0; b < nd; b++ {
-			val[base+pr[p.locN[b]]+int(p.locOff[b])] += row[b]
+		o := w.colOff[p.locN[a]][:nd]
+		row := w.ke[a][:nd]
+		v := val[base:]
+		for b, c := range o {
+			v[c] += row[b]
 		}
 	}
 }

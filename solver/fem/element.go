@@ -47,9 +47,10 @@ type worker struct {
 	in   material.Input
 	resp material.Response
 	// per-worker partial sums and the first error
-	scale [NumFields]float64
-	err   error
-	pos   [6][6]int // row offsets of node pairs (assembly)
+	scale  [NumFields]float64
+	err    error
+	pos    [6][6]int     // row offsets of node pairs (assembly)
+	colOff [6][maxND]int // column offsets of the element's unknowns in the rows of each node
 }
 
 // ElementError reports a failure at a Gauss point: det F ≤ 0, a non-finite
