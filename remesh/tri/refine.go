@@ -391,28 +391,12 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 	c, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
 	x1, x2 := m.xy[p1], m.xy[p2]
 	o := orient(x1, x2, p)
-	// new sub-segments: h1 on p1–v, h2 on v–p2
 	var v int32
-	halves := func() (h1, h2 int32) {
-		ns := int32(len(m.sa))
-		m.sa = append(m.sa, 0)
-		m.sb = append(m.sb, 0)
-		m.smark = append(m.smark, m.smark[s])
-		m.sorig = append(m.sorig, m.sorig[s])
-		if m.sa[s] == p1 {
-			m.sb[s] = v
-			m.sa[ns], m.sb[ns] = v, p2
-			return s, ns
-		}
-		m.sb[s] = v
-		m.sa[ns], m.sb[ns] = v, p1
-		return ns, s
-	}
 	switch {
 	case o < 0: // outside the domain: add triangle [v p2 p1]
 		r.nCurvedOut++
 		v = m.addVertex(p, m.sorig[s])
-		h1, h2 := halves()
+		h1, h2 := m.splitSub(s, p1, v)
 		n := m.newTri()
 		m.setTri(n, v, p2, p1)
 		m.link(3*n, e, -1)
@@ -427,7 +411,7 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 		}
 		r.nCurvedIn++
 		v = m.addVertex(p, m.sorig[s])
-		h1, h2 := halves()
+		h1, h2 := m.splitSub(s, p1, v)
 		A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
 		B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
 		t2 := m.newTri()
@@ -563,20 +547,7 @@ func (r *refiner) splitInward(s, e int32, p [2]float64) bool {
 			}
 		}
 	}
-	ns := int32(len(m.sa))
-	m.sa = append(m.sa, 0)
-	m.sb = append(m.sb, 0)
-	m.smark = append(m.smark, m.smark[s])
-	m.sorig = append(m.sorig, m.sorig[s])
-	h1, h2 := s, ns // on p1–v and v–p2
-	if m.sa[s] == p1 {
-		m.sb[s] = v
-		m.sa[ns], m.sb[ns] = v, p2
-	} else {
-		m.sb[s] = v
-		m.sa[ns], m.sb[ns] = v, p1
-		h1, h2 = ns, s
-	}
+	h1, h2 := m.splitSub(s, p1, v)
 	for _, hs := range [2][3]int32{{p1, v, h1}, {v, p2, h2}} {
 		f := m.findEdge(hs[0], hs[1])
 		if f < 0 || m.tn[f] >= 0 {

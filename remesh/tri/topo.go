@@ -179,23 +179,9 @@ func (m *tmesh) splitEdge(t, i, p int32) {
 	p0, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
 	A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
 	B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
-	// sub-segment halves: h1 on p1–p, h2 on p–p2
 	h1, h2 := int32(-1), int32(-1)
 	if seg >= 0 {
-		ns := int32(len(m.sa))
-		m.sa = append(m.sa, 0)
-		m.sb = append(m.sb, 0)
-		m.smark = append(m.smark, m.smark[seg])
-		m.sorig = append(m.sorig, m.sorig[seg])
-		if m.sa[seg] == p1 { // seg runs p1→p2
-			m.sb[seg] = p
-			m.sa[ns], m.sb[ns] = p, p2
-			h1, h2 = seg, ns
-		} else { // seg runs p2→p1
-			m.sb[seg] = p
-			m.sa[ns], m.sb[ns] = p, p1
-			h1, h2 = ns, seg
-		}
+		h1, h2 = m.splitSub(seg, p1, p)
 	}
 	t2 := m.newTri()
 	m.setTri(t, p, p2, p0)
@@ -223,6 +209,23 @@ func (m *tmesh) splitEdge(t, i, p int32) {
 		m.stack = append(m.stack, u, u2)
 	}
 	m.legalize()
+}
+
+// splitSub splits sub-segment s, which joins p1 and some p2 (in either
+// direction), at the new vertex v: s keeps the half at its first end point,
+// a new sub-segment with the same mark takes the other. It returns the
+// halves on p1–v and on v–p2.
+func (m *tmesh) splitSub(s, p1, v int32) (h1, h2 int32) {
+	ns := int32(len(m.sa))
+	m.sa = append(m.sa, v)
+	m.sb = append(m.sb, m.sb[s])
+	m.smark = append(m.smark, m.smark[s])
+	m.sorig = append(m.sorig, m.sorig[s])
+	m.sb[s] = v
+	if m.sa[s] == p1 { // s ran p1→p2: s = p1→v, ns = v→p2
+		return s, ns
+	}
+	return ns, s // s ran p2→p1: s = p2→v, ns = v→p1
 }
 
 // star returns the triangles around vertex v (in m.starBuf).
