@@ -29,6 +29,10 @@ type checkpoint struct {
 	Tips            []Tip
 	Zone            FineZone
 	Wall            time.Duration
+	// PrevDu and PrevDt are the solver's last converged increment (its
+	// predictor for the next one).
+	PrevDu []float64
+	PrevDt float64
 	// Extra is the caller's own state (the command line keeps its history
 	// bookkeeping there).
 	Extra []byte
@@ -45,6 +49,9 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Dt: c.Dt,
 		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
 		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra,
+	}
+	if c.solver != nil && c.solver.P == c.Prob {
+		cp.PrevDu, cp.PrevDt = c.solver.PreviousIncrement()
 	}
 	return gob.NewEncoder(w).Encode(&cp)
 }
@@ -69,7 +76,7 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
 	c := &Cycle{Cfg: cfg, Dt: cp.Dt, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
-		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall}
+		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall, prevDu: cp.PrevDu, prevDt: cp.PrevDt}
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
 		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))

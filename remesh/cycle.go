@@ -150,7 +150,12 @@ type Cycle struct {
 	// Wall is the wall time of the run so far (carried across resumes).
 	Wall time.Duration
 
-	gp      fem.GaussPoints
+	gp     fem.GaussPoints
+	solver *solver.Solver
+	// prevDu, prevDt: the solver's last converged increment, restored from
+	// a checkpoint into the first solver of a resumed run.
+	prevDu  []float64
+	prevDt  float64
 	started time.Time
 	stop    *stopRequest
 	seedDir [][2]float64
@@ -251,6 +256,13 @@ func (c *Cycle) Run(obs Observer) (Outcome, error) {
 		if err != nil {
 			return Outcome{}, err
 		}
+		if c.prevDt > 0 {
+			if err := s.SetPreviousIncrement(c.prevDu, c.prevDt); err != nil {
+				return Outcome{}, err
+			}
+			c.prevDu, c.prevDt = nil, 0
+		}
+		c.solver = s
 		c.stop = nil
 		res, err := s.Run(func(st solver.Step) error {
 			c.Wall = wall0 + time.Since(c.started)

@@ -33,8 +33,9 @@ func writePlots(dir string, rows []historyRow) error {
 	}
 	specs := []plotSpec{
 		{"J-da.svg", "Resistance curve", "Δa", "J", func(r historyRow) float64 { return r.Da },
-			[]plotCurve{{"J (domain)", func(r historyRow) float64 { return r.JDomain }},
-				{"J (E1820)", func(r historyRow) float64 { return r.JE1820 }}}},
+			[]plotCurve{{"J (far field)", func(r historyRow) float64 { return r.JFar }},
+				{"J (E1820)", func(r historyRow) float64 { return r.JE1820 }},
+				{"J (domain, at the current tip)", func(r historyRow) float64 { return r.JDomain }}}},
 		{"force-displacement.svg", "Force versus displacement", "control (displacement or K)", "force",
 			func(r historyRow) float64 { return r.Control },
 			[]plotCurve{{"force", func(r historyRow) float64 { return r.Force }}}},

@@ -315,10 +315,7 @@ func (ob *observer) fracture() {
 	if ob.rs.sigma0 > 0 && ob.rs.length > 0 {
 		var da, j []float64
 		for _, r := range ob.rows {
-			jv := r.JDomain
-			if ob.rs.ct != nil && !math.IsNaN(r.JE1820) {
-				jv = r.JE1820
-			}
+			jv := resistanceJ(r)
 			if !math.IsNaN(r.Da) && !math.IsNaN(jv) {
 				da, j = append(da, r.Da), append(j, jv)
 			}
@@ -370,8 +367,8 @@ func (ob *observer) checkpoint(cyc *remesh.Cycle) error {
 // progress prints one line per step: rewritten in place on a terminal,
 // plain log lines otherwise.
 func (ob *observer) progress(r *remesh.StepRecord) {
-	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  Δa %8.4g  J %10.4g  %7.1fs",
-		r.Step, r.T, r.Dofs, r.Iters, nanZero(r.Da), nanZero(r.JDomain), r.CumWall.Seconds())
+	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  cuts %d  Δa %8.4g  J %10.4g  %7.1fs",
+		r.Step, r.T, r.Dofs, r.Iters, r.Cutbacks, nanZero(r.Da), nanZero(r.JDomain), r.CumWall.Seconds())
 	if ob.tty {
 		fmt.Fprintf(ob.stdout, "\r%s", line)
 		return
@@ -404,4 +401,18 @@ func medianInt(v []int) float64 {
 		return float64(s[n/2])
 	}
 	return 0.5 * float64(s[n/2-1]+s[n/2])
+}
+
+// resistanceJ is the J of the resistance curve: the applied far-field J in
+// small-scale yielding, the ASTM E1820 J of a C(T) record, else the domain
+// integral (which loses path independence once the crack grows through
+// unloading material, so it is the last choice; common practice).
+func resistanceJ(r historyRow) float64 {
+	switch {
+	case !math.IsNaN(r.JFar):
+		return r.JFar
+	case !math.IsNaN(r.JE1820):
+		return r.JE1820
+	}
+	return r.JDomain
 }
