@@ -213,6 +213,7 @@ func (p *Problem) Assemble(tangent bool) error {
 		p.Full[d] -= p.T * p.fext[d]
 	}
 	p.assembleFollower(tangent)
+	p.refreshConstraints(true)
 	copy(p.Res, p.Full)
 	for _, d := range p.Full {
 		if math.IsNaN(d) || math.IsInf(d, 0) {

@@ -136,3 +136,40 @@ func TestDofs(t *testing.T) {
 		t.Errorf("node bandwidth %d with RCM, %d natural: RCM should be several times smaller", rcm, natural)
 	}
 }
+
+// TestBreakingDuringStep: unknowns touched only by elements whose points
+// have all broken in the current iterate are constrained for that
+// assembly (their stiffness is zero), and released again when judged on
+// the committed state.
+func TestBreakingDuringStep(t *testing.T) {
+	m, err := Structured(3, 3, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := NewProblem(m, newHenckyT(200e3, 0.3), Options{}, BCs{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	corner := m.Points["s1t1"]
+	for e, tri := range m.Tri {
+		for _, n := range tri {
+			if n == corner {
+				for g := range p.newState[e] {
+					p.newState[e][g].Broken = true
+				}
+			}
+		}
+	}
+	d := p.Dofs.Of(corner, Ux)
+	p.refreshConstraints(true)
+	if !p.Constrained(d) {
+		t.Errorf("node of broken-in-step elements not constrained")
+	}
+	if other := p.Dofs.Of(m.Points["origin"], Ux); p.Constrained(other) {
+		t.Errorf("node of intact elements constrained")
+	}
+	p.refreshConstraints(false)
+	if p.Constrained(d) {
+		t.Errorf("node constrained although the committed state is intact")
+	}
+}

@@ -117,6 +117,7 @@ type Problem struct {
 	fixed         []bool
 	frozen        []bool
 	constr        []int // fixed or frozen unknowns
+	touched       []bool
 	fext          []float64
 	fextList      []int
 	pinArcs       [][]int
@@ -340,13 +341,34 @@ func (p *Problem) Rollback() {
 
 // updateConstraints rebuilds the list of constrained unknowns: prescribed
 // ones and those of nodes no active element touches.
-func (p *Problem) updateConstraints() {
-	touched := make([]bool, len(p.Mesh.X))
+//
+// With duringStep, elements whose points have all broken in the current
+// iterate (not yet committed) count as gone too: their stiffness is zero,
+// and the unknowns only they touch would make the tangent singular.
+func (p *Problem) updateConstraints() { p.refreshConstraints(false) }
+
+func (p *Problem) refreshConstraints(duringStep bool) {
+	if len(p.touched) != len(p.Mesh.X) {
+		p.touched = make([]bool, len(p.Mesh.X))
+		p.constr = make([]int, 0, p.Dofs.N)
+	}
+	touched := p.touched
+	clear(touched)
 	for e, t := range p.Mesh.Tri {
-		if p.active[e] {
-			for _, n := range t {
-				touched[n] = true
+		if !p.active[e] {
+			continue
+		}
+		if duringStep {
+			gone := true
+			for g := range p.newState[e] {
+				gone = gone && p.newState[e][g].Broken
 			}
+			if gone {
+				continue
+			}
+		}
+		for _, n := range t {
+			touched[n] = true
 		}
 	}
 	p.constr = p.constr[:0]
