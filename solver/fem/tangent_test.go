@@ -171,27 +171,7 @@ func globalTangentCase(t *testing.T, tc tangentCase, plastic bool, rng *rand.Ran
 			kmax = math.Max(kmax, math.Abs(p.K.Val[q]))
 		}
 	}
-	rp, rm := make([]float64, n), make([]float64, n)
-	var emax float64
-	for b := 0; b < n; b++ {
-		u0 := p.U[b]
-		h := 1e-6 * math.Max(1, math.Abs(u0))
-		p.U[b] = u0 + h
-		if err := p.Assemble(false); err != nil {
-			t.Fatal(err)
-		}
-		copy(rp, p.Full)
-		p.U[b] = u0 - h
-		if err := p.Assemble(false); err != nil {
-			t.Fatal(err)
-		}
-		copy(rm, p.Full)
-		p.U[b] = u0
-		for a := 0; a < n; a++ {
-			fd := (rp[a] - rm[a]) / (2 * h)
-			emax = math.Max(emax, math.Abs(fd-dense[a][b]))
-		}
-	}
+	emax := fdTangentError(t, p, func(a, b int) float64 { return dense[a][b] })
 	if rel := emax / kmax; !(rel < 1e-6) {
 		t.Errorf("global tangent: max |K − K_fd| / max |K| = %.3g, want < 1e-6", rel)
 	}
@@ -349,40 +329,50 @@ func TestFollowerTangentFD(t *testing.T) {
 		if err := p.Assemble(true); err != nil {
 			t.Fatal(err)
 		}
-		n := p.Dofs.N
-		var kmax, emax float64
+		var kmax float64
 		kv := append([]float64(nil), p.K.Val...)
 		for _, v := range kv {
 			kmax = math.Max(kmax, math.Abs(v))
 		}
 		// (the pressures are large against the modulus, so the load
 		// stiffness dominates the tangent)
-		rp, rm := make([]float64, n), make([]float64, n)
-		for b := 0; b < n; b++ {
-			u0 := p.U[b]
-			h := 1e-6
-			p.U[b] = u0 + h
-			if err := p.Assemble(false); err != nil {
-				t.Fatal(err)
+		emax := fdTangentError(t, p, func(a, b int) float64 {
+			if q := p.pos(a, b); q >= 0 {
+				return kv[q]
 			}
-			copy(rp, p.Full)
-			p.U[b] = u0 - h
-			if err := p.Assemble(false); err != nil {
-				t.Fatal(err)
-			}
-			copy(rm, p.Full)
-			p.U[b] = u0
-			for a := 0; a < n; a++ {
-				fd := (rp[a] - rm[a]) / (2 * h)
-				var k float64
-				if q := p.pos(a, b); q >= 0 {
-					k = kv[q]
-				}
-				emax = math.Max(emax, math.Abs(fd-k))
-			}
-		}
+			return 0
+		})
 		if rel := emax / kmax; !(rel < 1e-6) {
 			t.Errorf("%v: follower tangent error %.3g relative, want < 1e-6", kin, rel)
 		}
 	}
+}
+
+// fdTangentError returns the largest difference between the tangent k(a, b)
+// and the central finite difference (step 1e-6 relative) of the global
+// residual p.Full with respect to each unknown.
+func fdTangentError(t *testing.T, p *Problem, k func(a, b int) float64) float64 {
+	t.Helper()
+	n := p.Dofs.N
+	rp, rm := make([]float64, n), make([]float64, n)
+	var emax float64
+	for b := 0; b < n; b++ {
+		u0 := p.U[b]
+		h := 1e-6 * math.Max(1, math.Abs(u0))
+		p.U[b] = u0 + h
+		if err := p.Assemble(false); err != nil {
+			t.Fatal(err)
+		}
+		copy(rp, p.Full)
+		p.U[b] = u0 - h
+		if err := p.Assemble(false); err != nil {
+			t.Fatal(err)
+		}
+		copy(rm, p.Full)
+		p.U[b] = u0
+		for a := 0; a < n; a++ {
+			emax = math.Max(emax, math.Abs((rp[a]-rm[a])/(2*h)-k(a, b)))
+		}
+	}
+	return emax
 }
