@@ -35,8 +35,9 @@
 // triangles with an edge that short are not split for their angles.
 //
 // CDT returns the triangulation without refinement; Check verifies a mesh's
-// structure (orientation, no overlap or duplicate, boundary edges are
-// sub-segments). The result is deterministic: the same input gives the same
+// structure (positive orientation, no duplicate triangle, every edge shared by
+// at most two triangles in opposite directions, boundary edges are
+// sub-segments; a global overlap would still need an area check). The result is deterministic: the same input gives the same
 // mesh.
 package tri
 
