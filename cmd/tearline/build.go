@@ -109,6 +109,12 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	if !*c.Adapt.Coarsen {
 		cfg.Follow.Wake = 1
 	}
+	if cfg.Adapt {
+		// The first mesh of an adaptive run has the fine zone the
+		// tip-following field will give it (mesh.ahead is for fixed meshes,
+		// which must be fine along the whole presumed path).
+		cfg.Size.Ahead = cfg.Follow.Ahead * unit
+	}
 	cfg.Carve = remesh.DefaultCarveOptions()
 	cfg.Carve.Simplify = c.Adapt.Simplify
 	cfg.Transfer = transfer.DefaultOptions()
