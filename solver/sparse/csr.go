@@ -198,7 +198,7 @@ func (t *Triplet) CSR() *CSR {
 		end := a.RowPtr[i+1]
 		r := rowSorter{cols[start:end], vals[start:end]}
 		if !sort.IsSorted(r) {
-			sort.Stable(r)
+			sort.Sort(r)
 		}
 		a.RowPtr[i] = out
 		for p := start; p < end; p++ {

@@ -2,6 +2,8 @@ package sparse
 
 import (
 	"math"
+	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -24,12 +26,17 @@ type numeric struct {
 	npiv []int
 	fm   []int
 	nnz  int
-	ws   workspace
+	cb   []cbInfo // contribution block of each supernode
+	// wss[0…workers−1] factor independent subtrees; wss[len−1] the
+	// supernodes above them (or everything, when serial).
+	wss  []workspace
+	errs []error
+	wg   sync.WaitGroup
 }
 
-// cbInfo locates a contribution block on the stack.
+// cbInfo locates a contribution block on the stack of workspace ws.
 type cbInfo struct {
-	off, ioff, m, ndelay int
+	ws, off, ioff, m, ndelay int
 }
 
 type workspace struct {
@@ -37,7 +44,6 @@ type workspace struct {
 	stack          []float64
 	istack         []int
 	top, itop      int
-	cb             []cbInfo
 	rowPos, colPos []int
 	tmp, u         []float64
 	cmap           []int
@@ -59,6 +65,85 @@ func growI(s []int, n int) []int {
 	return make([]int, n, n+n/4)
 }
 
+// treePlan assigns whole subtrees of the assembly tree to workers; the
+// supernodes above them (top) are factored afterwards with the Schur
+// updates split between all workers. Subtree-to-processor mapping as in
+// Geist & Ng 1989 (Int. J. Parallel Programming 18, "Task scheduling for
+// parallel sparse Cholesky factorization"), greedy by estimated flops.
+type treePlan struct {
+	workers int
+	sub     [][]int // per worker: subtree roots
+	size    []int   // supernodes in the subtree of s
+	top     []int   // remaining supernodes, increasing (postorder)
+}
+
+func (sym *symbolic) planFor(workers int) *treePlan {
+	if sym.plan != nil && sym.plan.workers == workers {
+		return sym.plan
+	}
+	ns := len(sym.first) - 1
+	p := &treePlan{workers: workers, sub: make([][]int, workers), size: make([]int, ns)}
+	wt := make([]float64, ns)
+	var total float64
+	for sn := 0; sn < ns; sn++ {
+		k := float64(sym.first[sn+1] - sym.first[sn])
+		r := float64(sym.strPtr[sn+1] - sym.strPtr[sn])
+		wt[sn] += 2*k*k*k/3 + 2*k*k*r + 2*k*r*r
+		p.size[sn]++
+		if q := sym.parent[sn]; q >= 0 {
+			wt[q] += wt[sn]
+			p.size[q] += p.size[sn]
+		}
+	}
+	var list []int
+	inTop := make([]bool, ns)
+	for sn := 0; sn < ns; sn++ {
+		if sym.parent[sn] < 0 {
+			list = append(list, sn)
+			total += wt[sn]
+		}
+	}
+	// Split the heaviest subtree into its children until the heaviest
+	// fits well inside one worker's share.
+	for iter := 0; iter < 4*ns && len(list) > 0; iter++ {
+		hi, sum := 0, 0.0
+		for i, s := range list {
+			sum += wt[s]
+			if wt[s] > wt[list[hi]] {
+				hi = i
+			}
+		}
+		s := list[hi]
+		kids := sym.kids[sym.kidPtr[s]:sym.kidPtr[s+1]]
+		if wt[s] <= 0.4*sum || len(kids) == 0 || len(list) > 16*workers {
+			break
+		}
+		inTop[s] = true
+		list = append(list[:hi], list[hi+1:]...)
+		list = append(list, kids...)
+	}
+	// Largest subtree first to the least loaded worker.
+	sort.Slice(list, func(i, j int) bool { return wt[list[i]] > wt[list[j]] })
+	load := make([]float64, workers)
+	for _, s := range list {
+		w := 0
+		for i := range load {
+			if load[i] < load[w] {
+				w = i
+			}
+		}
+		load[w] += wt[s]
+		p.sub[w] = append(p.sub[w], s)
+	}
+	for sn := 0; sn < ns; sn++ {
+		if inTop[sn] {
+			p.top = append(p.top, sn)
+		}
+	}
+	sym.plan = p
+	return p
+}
+
 // factor computes the numeric factorisation of a for the analysed pattern.
 // Pivots of magnitude ≤ tiny are refused.
 func (num *numeric) factor(sym *symbolic, val []float64, tau, tiny float64, workers int) error {
@@ -68,35 +153,85 @@ func (num *numeric) factor(sym *symbolic, val []float64, tau, tiny float64, work
 		num.idx = make([][]int, ns)
 		num.npiv = make([]int, ns)
 		num.fm = make([]int, ns)
+		num.cb = make([]cbInfo, ns)
 	}
-	ws := &num.ws
 	n := sym.n
-	ws.stack = growF(ws.stack, sym.stackEst)
-	if len(ws.cb) != ns {
-		ws.cb = make([]cbInfo, ns)
+	// Tree parallelism pays only when there is enough work to share.
+	if workers > 1 && (ns < 8*workers || sym.flops < 2e7) {
+		workers = 1
 	}
-	ws.rowPos = growI(ws.rowPos, n)
-	ws.colPos = growI(ws.colPos, n)
-	ws.top, ws.itop = 0, 0
-	num.nnz = 0
+	if len(num.wss) != workers+1 {
+		num.wss = make([]workspace, workers+1)
+		num.errs = make([]error, workers+1)
+	}
+	for i := range num.wss {
+		ws := &num.wss[i]
+		if i == workers && cap(ws.stack) < sym.stackEst {
+			ws.stack = make([]float64, sym.stackEst)
+		}
+		ws.stack = ws.stack[:cap(ws.stack)] // keep what earlier runs grew
+		ws.rowPos = growI(ws.rowPos, n)
+		ws.colPos = growI(ws.colPos, n)
+		ws.top, ws.itop = 0, 0
+		num.errs[i] = nil
+	}
+	topWS := workers
+	ws := &num.wss[topWS]
 	ws.pool.start(workers)
 	defer ws.pool.stop()
-	for sn := 0; sn < ns; sn++ {
-		if err := num.factorFront(sym, sn, val, tau, tiny); err != nil {
-			return err
+	if workers == 1 {
+		for sn := 0; sn < ns; sn++ {
+			if err := num.factorFront(sym, sn, val, tau, tiny, topWS); err != nil {
+				return err
+			}
 		}
+	} else {
+		plan := sym.planFor(workers)
+		num.wg.Add(workers)
+		for w := 0; w < workers; w++ {
+			go num.factorSubtrees(sym, plan, w, val, tau, tiny)
+		}
+		num.wg.Wait()
+		for w := 0; w < workers; w++ {
+			if num.errs[w] != nil {
+				return num.errs[w]
+			}
+		}
+		for _, sn := range plan.top {
+			if err := num.factorFront(sym, sn, val, tau, tiny, topWS); err != nil {
+				return err
+			}
+		}
+	}
+	num.nnz = 0
+	for sn := 0; sn < ns; sn++ {
+		np, m := num.npiv[sn], num.fm[sn]
+		num.nnz += np*np + 2*np*(m-np)
 	}
 	return nil
 }
 
-// factorFront assembles, factors and stores the front of supernode sn and
-// pushes its contribution block.
-func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny float64) error {
-	ws := &num.ws
+// factorSubtrees factors worker w's subtrees in workspace w.
+func (num *numeric) factorSubtrees(sym *symbolic, plan *treePlan, w int, val []float64, tau, tiny float64) {
+	defer num.wg.Done()
+	for _, root := range plan.sub[w] {
+		for sn := root - plan.size[root] + 1; sn <= root; sn++ {
+			if err := num.factorFront(sym, sn, val, tau, tiny, w); err != nil {
+				num.errs[w] = err
+				return
+			}
+		}
+	}
+}
+
+// factorFront assembles, factors and stores the front of supernode sn in
+// workspace wi and pushes its contribution block there.
+func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny float64, wi int) error {
+	ws := &num.wss[wi]
 	kids := sym.kids[sym.kidPtr[sn]:sym.kidPtr[sn+1]]
 	d := 0
 	for _, c := range kids {
-		d += ws.cb[c].ndelay
+		d += num.cb[c].ndelay
 	}
 	f, l := sym.first[sn], sym.first[sn+1]
 	k := l - f
@@ -111,9 +246,10 @@ func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny 
 	rows, cols := ws.rows, ws.cols
 	t := 0
 	for _, c := range kids {
-		cb := ws.cb[c]
-		copy(rows[t:], ws.istack[cb.ioff:cb.ioff+cb.ndelay])
-		copy(cols[t:], ws.istack[cb.ioff+cb.m:cb.ioff+cb.m+cb.ndelay])
+		cb := num.cb[c]
+		is := num.wss[cb.ws].istack
+		copy(rows[t:], is[cb.ioff:cb.ioff+cb.ndelay])
+		copy(cols[t:], is[cb.ioff+cb.m:cb.ioff+cb.m+cb.ndelay])
 		t += cb.ndelay
 	}
 	for v := f; v < l; v++ {
@@ -136,26 +272,32 @@ func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny 
 		F[(int(sym.asmRow[e])+d)*m+int(sym.asmCol[e])+d] += val[sym.asmVal[e]]
 	}
 	// Extend-add of the children's contribution blocks.
+	pop := -1
 	for _, c := range kids {
-		cb := ws.cb[c]
+		cb := num.cb[c]
+		if cb.ws == wi && pop < 0 {
+			pop = c
+		}
+		src := num.wss[cb.ws].stack[cb.off : cb.off+cb.m*cb.m]
+		is := num.wss[cb.ws].istack[cb.ioff : cb.ioff+2*cb.m]
 		mc := cb.m
 		ws.cmap = growI(ws.cmap, mc)
 		cm := ws.cmap
 		for b := 0; b < mc; b++ {
-			cm[b] = ws.colPos[ws.istack[cb.ioff+mc+b]]
+			cm[b] = ws.colPos[is[mc+b]]
 		}
-		src := ws.stack[cb.off : cb.off+mc*mc]
 		for r := 0; r < mc; r++ {
-			dst := F[ws.rowPos[ws.istack[cb.ioff+r]]*m:]
+			dst := F[ws.rowPos[is[r]]*m:]
 			srow := src[r*mc : r*mc+mc]
 			for b, v := range srow {
 				dst[cm[b]] += v
 			}
 		}
 	}
-	if len(kids) > 0 {
-		ws.top = ws.cb[kids[0]].off
-		ws.itop = ws.cb[kids[0]].ioff
+	// The children factored in this workspace are on top of its stack.
+	if pop >= 0 {
+		ws.top = num.cb[pop].off
+		ws.itop = num.cb[pop].ioff
 	}
 
 	np, bad, badMag := partialLU(F, m, nfs, rows, cols, tau, tiny, ws)
@@ -180,10 +322,9 @@ func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny 
 	copy(num.idx[sn][m:], cols[:m])
 	num.npiv[sn] = np
 	num.fm[sn] = m
-	num.nnz += np*np + 2*np*mr
 
 	// Push the contribution block.
-	cb := cbInfo{off: ws.top, ioff: ws.itop, m: mr, ndelay: nfs - np}
+	cb := cbInfo{ws: wi, off: ws.top, ioff: ws.itop, m: mr, ndelay: nfs - np}
 	if need := cb.off + mr*mr; need > len(ws.stack) {
 		ns := make([]float64, need+need/4)
 		copy(ns, ws.stack[:ws.top])
@@ -202,7 +343,7 @@ func (num *numeric) factorFront(sym *symbolic, sn int, val []float64, tau, tiny 
 	copy(ws.istack[cb.ioff+mr:], cols[np:m])
 	ws.top += mr * mr
 	ws.itop += 2 * mr
-	ws.cb[sn] = cb
+	num.cb[sn] = cb
 	return nil
 }
 
