@@ -26,9 +26,17 @@
 //
 // The factorisation is multifrontal (Duff & Reid 1983, ACM TOMS 9) on the
 // pattern of A+Aᵀ ordered by approximate minimum degree (Amestoy, Davis &
-// Duff 1996, SIAM J. Matrix Anal. Appl. 17). Each front is a dense matrix
-// factored with blocked kernels; pivots are chosen by threshold partial
-// pivoting inside the fully summed block, and a pivot that fails the
-// threshold is delayed to the parent front, so matrices with zero diagonal
-// blocks (saddle-point systems) factor without a special ordering.
+// Duff 1996, SIAM J. Matrix Anal. Appl. 17). Before ordering, every
+// variable with a zero or absent diagonal (a multiplier of a saddle-point
+// system) is paired with a neighbour and the pair is ordered as one node,
+// so both land in the same front. The matrix is equilibrated (Ruiz 2001)
+// so that the pivot threshold compares like with like across fields with
+// different units. Each front is a dense matrix factored with blocked
+// kernels (gonum's blas64); pivots are chosen by threshold partial pivoting
+// inside the fully summed block, and a column that fails the threshold is
+// delayed to the parent front. Independent subtrees of the assembly tree
+// are factored by separate goroutines, and the large Schur-complement
+// updates near the root are split between them. Solve finishes with
+// iterative refinement until the componentwise backward error is at the
+// level of rounding.
 package sparse

@@ -84,7 +84,9 @@ func (o Options) Validate() error {
 
 // SingularError reports a matrix that is structurally or numerically
 // singular: no acceptable pivot was found for column Col (an index of the
-// original matrix); Pivot is the largest magnitude available for it.
+// original matrix). Pivot is the largest magnitude available for it in the
+// equilibrated matrix, whose rows and columns have largest magnitude 1, so
+// it compares directly with Options.SingularTol.
 type SingularError struct {
 	Col   int
 	Pivot float64
@@ -195,11 +197,6 @@ func (lu *LU) Factorize(a *CSR) error {
 	amax := lu.equilibrate(a)
 	o := lu.options()
 	if err := lu.num.factor(lu.sym, lu.sval, o.PivotThreshold, o.SingularTol*amax, o.Workers); err != nil {
-		var se *SingularError
-		if errors.As(err, &se) {
-			// Report the magnitude in the units of the given matrix.
-			se.Pivot /= lu.cs[se.Col] * lu.rs[se.Col]
-		}
 		return err
 	}
 	lu.a = a
