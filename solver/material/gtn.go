@@ -683,13 +683,14 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 		return fmt.Errorf("%w (trial σ_m = %g, σ_eq = %g, p = %g, f = %g)", err, smTr, math.Sqrt(q), old.P, old.F)
 	}
 	u1, beta, u3 := ev.u1, u[1], u[2]
-	if ev.f >= m.fBreak {
-		m.broken(old, ev.f, new, out)
-		return nil
-	}
 
-	// New state.
-	*new = State{P: old.P + u3, F: ev.f}
+	// New state. A point whose porosity reaches f_break in this step is
+	// marked broken but still answers with the stress and tangent of the
+	// converged GTN update (small: q₁f* is then close to 1): zeroing them
+	// at once would make the response jump between global Newton
+	// iterations as the point crosses f_break back and forth, and the
+	// iterations would stall. It carries no stress from the next step on.
+	*new = State{P: old.P + u3, F: ev.f, Broken: ev.f >= m.fBreak}
 	for i := 0; i < 4; i++ {
 		dk := 0.0
 		if i < 3 {

@@ -416,8 +416,12 @@ func TestGTNLossOfCapacityNoNaN(t *testing.T) {
 			peak = math.Max(peak, sm)
 			if st.Broken {
 				broke = true
-				if out.T != (Sym{}) || out.DTdE != ([4][4]float64{}) || out.DPdE != (Sym{}) {
-					t.Errorf("dir %v: broken point still carries stress or stiffness: %+v", dir, out)
+				// The step that breaks the point still answers with its
+				// converged (small) GTN stress, so that the global Newton
+				// iterations see a continuous response; from the next
+				// step on the point carries nothing (checked below).
+				if sm > 0.1*peak {
+					t.Errorf("dir %v: breaking step carries σ_m = %g, not small against the peak %g", dir, sm, peak)
 				}
 				if st.F < fb {
 					t.Errorf("dir %v: broken at f = %g below f_break = %g", dir, st.F, fb)
@@ -434,7 +438,7 @@ func TestGTNLossOfCapacityNoNaN(t *testing.T) {
 		}
 		// A broken point stays broken.
 		nw, out, err := gtnStep(m, scaled(dir, 1), 0, 0, st)
-		if err != nil || !nw.Broken || out.T != (Sym{}) {
+		if err != nil || !nw.Broken || out.T != (Sym{}) || out.DTdE != ([4][4]float64{}) || out.DPdE != (Sym{}) {
 			t.Errorf("dir %v: broken point revived: %+v %+v %v", dir, nw, out, err)
 		}
 	}
