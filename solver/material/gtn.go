@@ -342,9 +342,10 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	}
 	p := lp.pN + u3
 	A, dA := par.Hardening.Flow(p)
+	sA := 1.0 // ∂A_eff/∂A of the flow-stress floor
 	if !m.local {
-		A += lp.lamb + m.r*(p-lp.abar)
-		dA += m.r
+		A, sA = m.flowFloor(A + lp.lamb + m.r*(p-lp.abar))
+		dA = sA * (dA + m.r)
 	}
 	if !(A > 0) {
 		return
@@ -457,8 +458,8 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		if m.local {
 			ev.ry[i][2], ev.ry[i][3] = 0, 0
 		} else {
-			ev.ry[i][2] = -m.r * dd[i][2]
-			ev.ry[i][3] = dd[i][2]
+			ev.ry[i][2] = -m.r * sA * dd[i][2]
+			ev.ry[i][3] = sA * dd[i][2]
 		}
 	}
 	ev.sm, ev.a, ev.f, ev.u1 = sm, A, f, u1
@@ -475,6 +476,22 @@ func (m *GTN) nucleation(p float64) (aN, daN float64) {
 	z := (p - m.par.EpsN) / m.par.SN
 	aN = m.nuc * math.Exp(-0.5*z*z)
 	return aN, -aN * z / m.par.SN
+}
+
+// flowFloor keeps the flow stress of the regularised model positive:
+// A_eff = A above a₀ = 0.05σ₀ and a₀·exp((A − a₀)/a₀) below, which is C¹
+// and tends to zero as A → −∞; s is dA_eff/dA. The gradient term
+// λ ≈ −cΔā can push A = R + λ + r(p − ā) below zero at the edge of a
+// localisation band next to broken material, where the continuum has no
+// meaning left; without the floor the integration fails there at every
+// increment size. (Our choice; no single source.)
+func (m *GTN) flowFloor(a float64) (aEff, s float64) {
+	a0 := 0.05 * m.sigma0
+	if a >= a0 {
+		return a, 1
+	}
+	s = math.Exp((a - a0) / a0)
+	return a0 * s, s
 }
 
 // zeroFlow returns the first unknown for Δε_p = 0 at the given Δp.
@@ -648,7 +665,7 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 	}
 	aN, _ := m.par.Hardening.Flow(old.P)
 	if !m.local {
-		aN += in.Lambda + m.r*(old.P-in.Abar)
+		aN, _ = m.flowFloor(aN + in.Lambda + m.r*(old.P-in.Abar))
 	}
 	if !(aN > 0) {
 		return fmt.Errorf("gtn: flow stress A = R(p) + λ + r(p − ā) = %g must stay > 0 (p = %g, ā = %g, λ = %g)", aN, old.P, in.Abar, in.Lambda)

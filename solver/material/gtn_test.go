@@ -495,6 +495,8 @@ func tangentCases() []tangentCase {
 		{"regularised coalescence", reg, coal, Sym{0.075, 0.05, 0.035, 0.012}, 0.14, -20, true},
 		{"regularised nucleation", nucReg, State{Ep: ep, P: 0.28, F: 0.012}, Sym{0.012, -0.002, 0.003, 0.006}, 0.3, 15, true},
 		{"regularised j2 perfect", perfReg, State{}, Sym{0.006, -0.002, -0.001, 0.003}, 0.002, 10, true},
+		// λ = −490 brings A = R + λ + r(p − ā) below the floor 0.05σ₀.
+		{"regularised flow-stress floor", reg, worn, Sym{0.006, 0.002, 0.001, 0.003}, 0.03, -490, true},
 	}
 }
 
@@ -926,7 +928,6 @@ func TestGTNBadInputErrors(t *testing.T) {
 	}{
 		{"NaN strain", Sym{math.NaN(), 0, 0, 0}, 0, "not finite"},
 		{"Inf strain", Sym{0, math.Inf(1), 0, 0}, 0, "not finite"},
-		{"negative flow stress", Sym{0.01, 0, 0, 0}, -1000, "must stay > 0"},
 	}
 	for _, tc := range cases {
 		_, _, err := gtnStep(m, tc.E, 0, tc.lam, m.Initial())
