@@ -1,0 +1,134 @@
+package main
+
+import (
+	"math"
+	"math/rand"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// plasticCase is a small boundary-layer disk of regularised GTN material
+// loaded into the plastic range: a few steps with real history.
+const plasticCase = `
+[geometry]
+kind = "ssy"
+[geometry.ssy]
+radius = 8.0
+tip_radius = 0.05
+[mesh]
+h_fine = 0.1
+h_far = 1.5
+fine_radius = 0.6
+[material]
+young = 200000.0
+poisson = 0.3
+yield_stress = 450.0
+f0 = 0.005
+length = 0.2
+[loading]
+kind = "k_field"
+k = 2500.0
+[solver]
+increment = 0.1
+max_increment = 0.1
+[stop]
+t = 1.0
+[output]
+fields_every = 100
+checkpoint_minutes = 0.0001
+[adapt]
+enabled = false
+`
+
+// buildBinary compiles the command once for the tests that kill it.
+func buildBinary(t *testing.T) string {
+	t.Helper()
+	bin := filepath.Join(t.TempDir(), "tearline")
+	cmd := exec.Command("go", "build", "-o", bin, ".")
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	return bin
+}
+
+// comparableRows drops the columns that measure the machine (wall time,
+// memory) and returns the rest as numbers.
+func comparableRows(t *testing.T, path string) [][]float64 {
+	t.Helper()
+	header, rows := readCSV(t, path)
+	skip := map[int]bool{column(t, header, "wall_s"): true, column(t, header, "rss_mb"): true}
+	var out [][]float64
+	for _, r := range rows {
+		var v []float64
+		for i, s := range r {
+			if skip[i] {
+				continue
+			}
+			x := math.NaN()
+			if s != "" {
+				var err error
+				if x, err = strconv.ParseFloat(s, 64); err != nil {
+					t.Fatalf("%s: field %q: %v", path, s, err)
+				}
+			}
+			v = append(v, x)
+		}
+		out = append(out, v)
+	}
+	return out
+}
+
+// TestResumeAfterKill: a run killed with SIGKILL at a random moment and
+// resumed ends with the same history.csv rows as an uninterrupted run, to
+// 1e-10 relative (issue: checkpoint and resume; DESIGN.md §4).
+func TestResumeAfterKill(t *testing.T) {
+	bin := buildBinary(t)
+	casePath := writeCase(t, plasticCase)
+	ref := filepath.Join(t.TempDir(), "ref")
+	start := time.Now()
+	if out, err := exec.Command(bin, "run", casePath, "-o", ref).CombinedOutput(); err != nil {
+		t.Fatalf("uninterrupted run: %v\n%s", err, out)
+	}
+	full := time.Since(start)
+	want := comparableRows(t, filepath.Join(ref, "history.csv"))
+	if len(want) < 5 {
+		t.Fatalf("reference run has %d steps, want at least 5", len(want))
+	}
+	rng := rand.New(rand.NewSource(time.Now().UnixNano()))
+	for trial := 0; trial < 2; trial++ {
+		dir := filepath.Join(t.TempDir(), "killed")
+		cmd := exec.Command(bin, "run", casePath, "-o", dir)
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		// Kill somewhere between the first checkpoint and the end.
+		delay := time.Duration((0.3 + 0.6*rng.Float64()) * float64(full))
+		time.Sleep(delay)
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+		if _, err := os.Stat(filepath.Join(dir, "checkpoint", "state.gob")); err != nil {
+			t.Logf("trial %d: killed after %v before the first checkpoint; skipping this trial", trial, delay)
+			continue
+		}
+		if out, err := exec.Command(bin, "resume", dir).CombinedOutput(); err != nil {
+			t.Fatalf("trial %d (killed after %v): resume: %v\n%s", trial, delay, err, out)
+		}
+		got := comparableRows(t, filepath.Join(dir, "history.csv"))
+		if len(got) != len(want) {
+			t.Fatalf("trial %d (killed after %v): %d rows after resume, want %d", trial, delay, len(got), len(want))
+		}
+		for i := range got {
+			for j := range got[i] {
+				a, b := got[i][j], want[i][j]
+				if math.IsNaN(a) != math.IsNaN(b) || math.Abs(a-b) > 1e-10*math.Max(math.Abs(b), 1e-300) && math.Abs(a-b) > 1e-14 {
+					t.Errorf("trial %d row %d column %d: resumed %.15g, uninterrupted %.15g", trial, i+1, j, a, b)
+				}
+			}
+		}
+	}
+}
