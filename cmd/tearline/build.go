@@ -72,6 +72,10 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	so := solver.DefaultOptions()
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement
 	so.MaxSteps, so.MaxIter, so.RTol = c.Stop.MaxSteps, c.Solver.MaxIter, c.Solver.Tolerance
+	// A quadratically converging step of a softening material takes 4–6
+	// iterations; count up to 5 as easy so the increment can grow again
+	// after a cut-back.
+	so.EasyIter = 5
 	cfg.Solver = so
 
 	tipNames := d.Tips()

@@ -44,7 +44,7 @@ kind         "k_field" (remote Williams field: k, t_stress), "pin" (C(T) pin: va
 
 [solver]
 increment, min_increment, max_increment   of the pseudo-time t (defaults 0.02, 1e-6, 0.1)
-max_iterations (15), tolerance (1e-8), mixed (true: u–θ–P element), workers (0 = all cores)
+max_iterations (15), tolerance (1e-6, relative to each field's force scale), mixed (true: u–θ–P element), workers (0 = all cores)
 
 [stop]
 t (1), da (0 = no limit), max_steps, hours (0 = no limit)

@@ -22,14 +22,14 @@ title = "demo: adaptive small-scale-yielding crack growth, alloy TL-7"
 [geometry]
 kind = "ssy"
 [geometry.ssy]
-radius = 40.0
+radius = 20.0
 tip_radius = 0.05
 full = false
 
 [mesh]
 h_fine = 0.05
-h_far = 4.0
-fine_radius = 0.5
+h_far = 2.0
+fine_radius = 0.15
 grading = 0.3
 
 [material]
@@ -49,7 +49,7 @@ penalty = 1.0
 
 [loading]
 kind = "k_field"
-k = 4000.0
+k = 8000.0
 
 [solver]
 increment = 0.02

@@ -245,7 +245,7 @@ func (s *solverSection) complete(src *caseSource) error {
 		s.MaxIter = 15
 	}
 	if s.Tolerance == 0 {
-		s.Tolerance = 1e-8
+		s.Tolerance = 1e-6
 	}
 	if s.Mixed == nil {
 		t := true
