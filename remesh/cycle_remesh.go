@@ -38,9 +38,11 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 	gp := c.GaussPoints()
 	n := len(gp.Points)
 	f.State = make([]material.State, n)
-	// History: the stress work W, then the 5 components of F and of P
-	// (kept so that a checkpoint restores the committed points exactly).
-	f.History = make([][]float64, 11)
+	// History: the stress work W, the 5 components of F and of P (kept so
+	// that a checkpoint restores the committed points exactly), and the 4
+	// components of the elastic log strain Eᵉ = E(F) − Eᵖ (see
+	// reconcilePlasticStrain).
+	f.History = make([][]float64, 15)
 	for k := range f.History {
 		f.History[k] = make([]float64, n)
 	}
@@ -52,14 +54,96 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 			f.History[1+k][i] = g.F[k]
 			f.History[6+k][i] = g.P[k]
 		}
+		if ee, ok := elasticStrain(g.F, g.State.Ep); ok {
+			for k := 0; k < 4; k++ {
+				f.History[11+k][i] = ee[k]
+			}
+		}
 	}
 	return f, nil
 }
 
+// logStrainOf returns E = ½ ln(FᵀF) of a deformation gradient in the
+// Gauss-point layout (11, 12, 21, 22, 33); ok is false for an unusable F
+// (never assembled, or inverted).
+func logStrainOf(F [5]float64) (material.Sym, bool) {
+	c := material.Sym{F[0]*F[0] + F[2]*F[2], F[1]*F[1] + F[3]*F[3], F[4] * F[4], F[0]*F[1] + F[2]*F[3]}
+	if det := (F[0]*F[3] - F[1]*F[2]) * F[4]; !(det > 0) {
+		return material.Sym{}, false
+	}
+	e, _ := material.LogStrain(c)
+	return e, true
+}
+
+// elasticStrain returns Eᵉ = E(F) − Eᵖ.
+func elasticStrain(F [5]float64, ep material.Sym) (material.Sym, bool) {
+	e, ok := logStrainOf(F)
+	if !ok {
+		return material.Sym{}, false
+	}
+	for k := range e {
+		e[k] -= ep[k]
+	}
+	return e, true
+}
+
+// reconcilePlasticStrain makes the transferred state compatible with the
+// transferred displacement: at every new Gauss point the plastic strain is
+// set to Eᵖ = E(F(u)) − Eᵉ, with Eᵉ the projected elastic strain. The
+// recovered Eᵖ is smoothed where the plastic strain peaks, while u is
+// interpolated exactly; their mismatch would appear as an elastic strain of
+// the size of the plastic one (stresses of tens of GPa at a crack tip).
+// Transferring the elastic strain and letting Eᵖ absorb the difference keeps
+// the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
+// on transfer operators for evolving meshes).
+func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
+	if len(f.History) < 15 {
+		return nil
+	}
+	rule := fem.ElementRule()
+	nq := rule.Len()
+	st := c.Prob.State()
+	mixed := c.Prob.Mixed()
+	fixed := make([][]material.State, len(st))
+	for e := range st {
+		fixed[e] = append([]material.State(nil), st[e]...)
+		for g := 0; g < nq; g++ {
+			s := &fixed[e][g]
+			if s.Broken {
+				continue
+			}
+			F, err := c.Prob.DeformationGradient(e, rule.L[g], c.Prob.Committed)
+			if err != nil {
+				return err
+			}
+			E, ok := logStrainOf(F)
+			if !ok {
+				return fmt.Errorf("element %d point %d: transferred displacement inverts the element", e, g)
+			}
+			if mixed {
+				// The material sees the strain with its trace replaced
+				// by the volume variable θ (three-field element).
+				theta := 0.0
+				for k := 0; k < 3; k++ {
+					v, _ := c.Prob.Nodal(c.Prob.Committed, c.Mesh.Tri[e][k], fem.Theta)
+					theta += rule.L[g][k] * v
+				}
+				d := (theta - E.Trace()) / 3
+				E[0], E[1], E[2] = E[0]+d, E[1]+d, E[2]+d
+			}
+			i := e*nq + g
+			for k := 0; k < 4; k++ {
+				s.Ep[k] = E[k] - f.History[11+k][i]
+			}
+		}
+	}
+	return c.Prob.SetState(fixed)
+}
+
 // gaussData unpacks the History arrays of fields into W, F and P.
 func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
-	if len(f.History) != 11 {
-		return nil, nil, nil, fmt.Errorf("state holds %d history arrays, want 11 (W, F, P)", len(f.History))
+	if len(f.History) < 11 {
+		return nil, nil, nil, fmt.Errorf("state holds %d history arrays, want at least 11 (W, F, P)", len(f.History))
 	}
 	n := len(f.History[0])
 	F, P = make([][5]float64, n), make([][5]float64, n)
@@ -196,6 +280,9 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	}
 	if err := c.install(to, t, false); err != nil {
 		return nil, fmt.Errorf("install transferred state: %w", err)
+	}
+	if err := c.reconcilePlasticStrain(to); err != nil {
+		return nil, fmt.Errorf("transferred state: %w", err)
 	}
 	rr.MapWall = time.Since(t0)
 
