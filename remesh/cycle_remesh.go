@@ -88,8 +88,8 @@ func elasticStrain(F [5]float64, ep material.Sym) (material.Sym, bool) {
 }
 
 // reconcilePlasticStrain makes the transferred state compatible with the
-// transferred displacement: at every new Gauss point the plastic strain is
-// set to Eᵖ = E(F(u)) − Eᵉ, with Eᵉ the projected elastic strain. The
+// transferred displacement: at a new Gauss point where the two disagree by
+// more than twice the elastic strain, the plastic strain is set to Eᵖ = E(F(u)) − Eᵉ, with Eᵉ the projected elastic strain. The
 // recovered Eᵖ is smoothed where the plastic strain peaks, while u is
 // interpolated exactly; their mismatch would appear as an elastic strain of
 // the size of the plastic one (stresses of tens of GPa at a crack tip).
@@ -132,8 +132,21 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 				E[0], E[1], E[2] = E[0]+d, E[1]+d, E[2]+d
 			}
 			i := e*nq + g
+			// Only where the mismatch is large against the elastic strain
+			// itself: elsewhere the projected Eᵖ is the better estimate
+			// (measured: reconciling everywhere moved the re-equilibrated
+			// reaction of a plastic boundary-layer disk by 0.24%, against
+			// 0.025% without).
+			var ee, mis material.Sym
 			for k := 0; k < 4; k++ {
-				s.Ep[k] = E[k] - f.History[11+k][i]
+				ee[k] = f.History[11+k][i]
+				mis[k] = E[k] - s.Ep[k] - ee[k]
+			}
+			if math.Sqrt(mis.Ddot(mis)) <= 2*math.Max(math.Sqrt(ee.Ddot(ee)), 1e-4) {
+				continue
+			}
+			for k := 0; k < 4; k++ {
+				s.Ep[k] = E[k] - ee[k]
 			}
 		}
 	}

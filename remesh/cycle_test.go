@@ -10,6 +10,7 @@ import (
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/transfer"
 )
 
 // recorder keeps every record the cycle reports.
@@ -156,5 +157,79 @@ func TestCheckpointRoundTrip(t *testing.T) {
 			t.Errorf("row %d: resumed (step %d, t %g, J %.12g), uninterrupted (step %d, t %g, J %.12g)",
 				i, a.Step, a.T, a.JDomain, b.Step, b.T, b.JDomain)
 		}
+	}
+}
+
+// TestRemeshReaction: on a converged elastic-plastic state the reaction
+// force changes by less than 1% through a remesh and transfer and comes
+// back within 0.1% after re-equilibration at the same load (V13; the
+// limits are those of the adaptive-cycle issue, common practice).
+func TestRemeshReaction(t *testing.T) {
+	cfg := elasticSSY(t, 2500)
+	par := material.DefaultGTN()
+	par.Hardening = material.PowerLaw{Sigma0: 450, Eps0: 450 / 200e3, N: 0.1}
+	par.F0, par.FC, par.FF = 0.005, 0.02, 0.2
+	par.Length, par.Penalty = 0.2, 450
+	mat, err := material.NewGTN(par)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cfg.Material, cfg.F0, cfg.Fc, cfg.FBreak, cfg.Length = mat, par.F0, par.FC, par.BreakPorosity(), 0.2
+	cfg.Size = SizeOptions{HFine: 0.1, HFar: 2, FineRadius: 0.6}
+	cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
+		r, err := p.Reaction("remote")
+		return p.TCommitted, r[1], err
+	}
+	cfg.Solver.Dt, cfg.Solver.DtMax, cfg.Solver.TEnd = 0.25, 0.25, 0.5
+	cfg.Adapt = true
+	cfg.Trigger = DefaultTriggerOptions(0.2)
+	cfg.Follow = DefaultFollowOptions(0.2, 2)
+	cfg.Carve = DefaultCarveOptions()
+	cfg.Transfer = transfer.DefaultOptions()
+	cfg.Transfer.F0, cfg.Transfer.FBreak = par.F0, par.BreakPorosity()
+	c, err := NewCycle(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c.Cfg.Adapt = false // reach the plastic state on the first mesh
+	var rec recorder
+	if _, err := c.Run(&rec); err != nil {
+		t.Fatal(err)
+	}
+	if rec.steps[len(rec.steps)-1].MaxPorosity <= par.F0 {
+		t.Fatalf("no plastic void growth before the remesh (max f %g)", rec.steps[len(rec.steps)-1].MaxPorosity)
+	}
+	c.Cfg.Adapt = true
+	rr, err := c.remesh(Decision{Reason: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rr.ElemsAfter == rr.ElemsBefore {
+		t.Errorf("the remesh kept %d elements: not a new mesh", rr.ElemsAfter)
+	}
+	// The new mesh has its own discretisation error: the reference after
+	// re-equilibration is the same loading solved from scratch on it.
+	bcs, _ := cfg.BCs(c.Mesh)
+	p, err := fem.NewProblem(c.Mesh, mat, cfg.FE, bcs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := solver.New(p, cfg.Solver)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := s.Run(func(solver.Step) error { return nil }); err != nil {
+		t.Fatal(err)
+	}
+	_, fresh, _ := cfg.Measure(p)
+	through := math.Abs(rr.ForceTransfer-rr.ForceBefore) / math.Abs(rr.ForceBefore)
+	after := math.Abs(rr.ForceAfter-fresh) / math.Abs(fresh)
+	t.Logf("reaction %.6g → %.6g after transfer (%.3f%%) → %.6g after re-equilibration; solved afresh on the new mesh %.6g (%.4f%%); elements %d → %d",
+		rr.ForceBefore, rr.ForceTransfer, 100*through, rr.ForceAfter, fresh, 100*after, rr.ElemsBefore, rr.ElemsAfter)
+	if through > 0.01 {
+		t.Errorf("reaction changed by %.3f%% through the transfer, allowed 1%%", 100*through)
+	}
+	if after > 0.001 {
+		t.Errorf("reaction after re-equilibration %.4f%% from the fresh solution on the new mesh, allowed 0.1%%", 100*after)
 	}
 }
