@@ -58,7 +58,7 @@ min_increment = 1e-5
 
 [stop]
 t = 1.0
-da = 0.5
+da = 0.15
 
 [output]
 fields_every = 10
