@@ -1,8 +1,6 @@
 package main
 
 import (
-	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"time"
@@ -20,23 +18,17 @@ LU factors, and the memory the solve will need. Exit status 0 valid, 2 bad input
 `
 
 func checkCommand(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("check", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	fs.Usage = func() { fmt.Fprint(stderr, checkUsage) }
-	var sets setFlags
-	fs.Var(&sets, "set", "override section.key=value (repeatable)")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	fs := newFlags("check", checkUsage, stderr)
+	sets := setOverrides(fs)
+	pos, code, done := parseCommand(fs, args)
+	if done {
+		return code
 	}
 	if len(pos) != 1 {
 		fmt.Fprintf(stderr, "tearline check: need one case file\n%s", checkUsage)
 		return 2
 	}
-	c, src, err := loadCase(pos[0], sets)
+	c, src, err := loadCase(pos[0], *sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2

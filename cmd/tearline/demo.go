@@ -1,8 +1,6 @@
 package main
 
 import (
-	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -76,18 +74,12 @@ to DIR/case.toml; change it and use 'tearline run' to explore.
 `
 
 func demoCommand(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	fs.Usage = func() { fmt.Fprint(stderr, demoUsage) }
+	fs := newFlags("demo", demoUsage, stderr)
 	out := fs.String("o", "demo-run", "run folder")
-	var sets setFlags
-	fs.Var(&sets, "set", "override section.key=value (repeatable)")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	sets := setOverrides(fs)
+	pos, code, done := parseCommand(fs, args)
+	if done {
+		return code
 	}
 	if len(pos) != 0 {
 		fmt.Fprintf(stderr, "tearline demo: unexpected argument %q\n%s", pos[0], demoUsage)
@@ -106,5 +98,5 @@ func demoCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stdout, "tearline demo: adaptive crack growth in small-scale yielding, into %s\n", *out)
 	fmt.Fprintln(stdout, "  "+caution)
-	return startRun(path, *out, sets, stdout, stderr)
+	return startRun(path, *out, *sets, stdout, stderr)
 }

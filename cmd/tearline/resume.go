@@ -2,8 +2,6 @@ package main
 
 import (
 	"encoding/json"
-	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -23,15 +21,10 @@ had never stopped. Exit status as for 'tearline run'.
 `
 
 func resumeCommand(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("resume", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	fs.Usage = func() { fmt.Fprint(stderr, resumeUsage) }
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	fs := newFlags("resume", resumeUsage, stderr)
+	pos, code, done := parseCommand(fs, args)
+	if done {
+		return code
 	}
 	if len(pos) != 1 {
 		fmt.Fprintf(stderr, "tearline resume: need the run folder\n%s", resumeUsage)

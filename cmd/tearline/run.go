@@ -53,24 +53,18 @@ Exit status: 0 completed, 1 stopped early (results so far kept), 2 bad input.
 `
 
 func runCommand(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("run", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	fs.Usage = func() { fmt.Fprint(stderr, runUsage) }
+	fs := newFlags("run", runUsage, stderr)
 	out := fs.String("o", "", "run folder")
-	var sets setFlags
-	fs.Var(&sets, "set", "override section.key=value (repeatable)")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	sets := setOverrides(fs)
+	pos, code, done := parseCommand(fs, args)
+	if done {
+		return code
 	}
 	if len(pos) != 1 || *out == "" {
 		fmt.Fprintf(stderr, "tearline run: need one case file and -o DIR\n%s", runUsage)
 		return 2
 	}
-	return startRun(pos[0], *out, sets, stdout, stderr)
+	return startRun(pos[0], *out, *sets, stdout, stderr)
 }
 
 // startRun validates a case and runs it into dir.
@@ -415,4 +409,32 @@ func resistanceJ(r historyRow) float64 {
 		return r.JE1820
 	}
 	return r.JDomain
+}
+
+// newFlags returns the flag set of a subcommand; -h prints its usage.
+func newFlags(name, usage string, stderr io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.Usage = func() { fmt.Fprint(stderr, usage) }
+	return fs
+}
+
+// setOverrides registers the repeatable --set flag.
+func setOverrides(fs *flag.FlagSet) *setFlags {
+	var sets setFlags
+	fs.Var(&sets, "set", "override section.key=value (repeatable)")
+	return &sets
+}
+
+// parseCommand parses a subcommand's arguments; done is true when the
+// caller should return code at once (help asked for, or a flag error).
+func parseCommand(fs *flag.FlagSet, args []string) (pos []string, code int, done bool) {
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return nil, 0, true
+		}
+		return nil, 2, true
+	}
+	return pos, 0, false
 }
