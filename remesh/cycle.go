@@ -372,7 +372,10 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 			js, err := c.domainJ(gp)
 			if err == nil && len(js) > 0 {
 				rec.JRings = js
-				rec.JDomain = median(js)
+				// The outermost ring: the most remote from the process
+				// zone, where incremental plasticity and damage spoil
+				// path independence least (common practice).
+				rec.JDomain = js[len(js)-1]
 			}
 		}
 		if op, err := c.ctod(); err == nil {

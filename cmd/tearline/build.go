@@ -91,10 +91,10 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		unit = 2 * c.Mesh.HFine
 	}
 	if len(tipNames) > 0 && !d.Axisymmetric {
-		cfg.J = &remesh.JConfig{Unit: unit, Rings: []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 6}, {In: 6, Out: 8}}}
+		cfg.J = &remesh.JConfig{Unit: unit, Rings: []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}}
 		// Rings must stay inside the body: scale them down on small domains.
-		if lim := 0.25 * d.Scale(); 8*unit > lim {
-			cfg.J.Unit = lim / 8
+		if lim := 0.25 * d.Scale(); 16*unit > lim {
+			cfg.J.Unit = lim / 16
 		}
 	}
 	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
@@ -250,6 +250,9 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 			return l.K * p.TCommitted, nan, nil
 		}
 	case "pin":
+		// The pin touches the hole on a narrow arc about the loading
+		// direction and acts as a hinge (see fem.Pin.Contact).
+		const pinContact = 10.0
 		pinLabel := "pin"
 		if l.Label != "" {
 			pinLabel = l.Label
@@ -257,9 +260,9 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 		if err := need(pinLabel, "loading.label"); err != nil {
 			return err
 		}
-		base.Pins = append(base.Pins, fem.Pin{Label: pinLabel, Comp: 1, Value: l.Value})
+		base.Pins = append(base.Pins, fem.Pin{Label: pinLabel, Comp: 1, Value: l.Value, Contact: pinContact})
 		if labels["pin_lower"] {
-			base.Pins = append(base.Pins, fem.Pin{Label: "pin_lower", Comp: 1, Value: -l.Value})
+			base.Pins = append(base.Pins, fem.Pin{Label: "pin_lower", Comp: 1, Value: -l.Value, Contact: pinContact})
 		}
 		// The body is free to slide along the crack: hold one point of the
 		// load line (a rigid-body constraint, no force).
@@ -272,11 +275,23 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 			rs.ct = &criteria.CTSpecimen{W: w, B: rs.thickness, BN: rs.thickness, A0: *k.CrackRatio * w, El: el}
 		}
 		thick := rs.thickness
+		_, lineOK := d.Points["loadline"]
+		_, lowerOK := d.Points["loadline_lower"]
 		cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
 			f, err := p.PinForce(0)
-			// Load-line displacement: both pins move apart (by symmetry in
-			// a half model, by the second pin in a full one).
-			return 2 * l.Value * p.TCommitted, f * thick, err
+			if err != nil || !lineOK {
+				// No load-line point: the pins' separation.
+				return 2 * l.Value * p.TCommitted, f * thick, err
+			}
+			// Load-line displacement as a clip gauge on the load line
+			// measures it (ASTM E1820): the opening of the notch faces at
+			// the load line, free of the pin-contact deformation.
+			up, _ := p.Nodal(p.Committed, p.Mesh.Points["loadline"], fem.Uy)
+			down := -up // mirror image in a half model
+			if lowerOK {
+				down, _ = p.Nodal(p.Committed, p.Mesh.Points["loadline_lower"], fem.Uy)
+			}
+			return up - down, f * thick, nil
 		}
 	case "displacement", "pressure":
 		label := l.Label

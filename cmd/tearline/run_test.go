@@ -236,3 +236,36 @@ func TestKeyLines(t *testing.T) {
 		}
 	}
 }
+
+// TestCTE1820AgainstDomainJ runs the C(T) case of the test data (GTN,
+// half model, pin loading) up to the onset of growth: J from force versus
+// load-line displacement by ASTM E1820 (η = 2 + 0.522 b₀/W) agrees with the
+// domain integral within 5% (V12: ASTM E1820; Li, Shih & Needleman 1985).
+func TestCTE1820AgainstDomainJ(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "run")
+	var stderr bytes.Buffer
+	code := dispatch([]string{"run", "../../testdata/ct.toml", "-o", out, "--set", "stop.t=0.2", "--set", "adapt.enabled=false"}, io.Discard, &stderr)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr.String())
+	}
+	header, rows := readCSV(t, filepath.Join(out, "history.csv"))
+	jd, je, da := column(t, header, "J_domain"), column(t, header, "J_E1820"), column(t, header, "da")
+	checked := 0
+	for i, r := range rows {
+		if r[da] != "0" {
+			continue // the check holds before growth
+		}
+		dom, err1 := strconv.ParseFloat(r[jd], 64)
+		e18, err2 := strconv.ParseFloat(r[je], 64)
+		if err1 != nil || err2 != nil {
+			t.Fatalf("row %d: J_domain %q, J_E1820 %q", i+1, r[jd], r[je])
+		}
+		if rel := math.Abs(e18-dom) / dom; rel > 0.05 {
+			t.Errorf("row %d: J_E1820 %.5g, J_domain %.5g: %.1f%% apart (V12 allows 5%%)", i+1, e18, dom, 100*rel)
+		}
+		checked++
+	}
+	if checked < 4 {
+		t.Fatalf("only %d rows before growth, want at least 4", checked)
+	}
+}

@@ -85,6 +85,11 @@ type Pin struct {
 	Comp  int
 	Value float64
 	Func  func(t float64) float64
+	// Contact is the half-angle in degrees of the contact arc about the
+	// loading direction; 0 means 90 (the whole loaded half of the hole).
+	// A narrow arc acts as a hinge: a half arc tied to one displacement
+	// also resists the rotation of the hole and stiffens a C(T) specimen.
+	Contact float64
 }
 
 // BCs collects the boundary conditions of a problem.
@@ -259,9 +264,17 @@ func (p *Problem) setBCs(b BCs) error {
 		} else if pn.Value < 0 {
 			sign = -1
 		}
+		if !(pn.Contact >= 0 && pn.Contact <= 90) {
+			return fmt.Errorf("%s: contact half-angle %g° must lie in [0, 90]", what, pn.Contact)
+		}
+		cosC := 0.0
+		if pn.Contact > 0 && pn.Contact < 90 {
+			cosC = math.Cos(pn.Contact * math.Pi / 180)
+		}
 		var arc []int
 		for _, n := range nodes {
-			if sign*(m.X[n][pn.Comp]-cx[pn.Comp]) >= -1e-12*p.size {
+			d := math.Hypot(m.X[n][0]-cx[0], m.X[n][1]-cx[1])
+			if sign*(m.X[n][pn.Comp]-cx[pn.Comp]) >= cosC*d-1e-12*p.size {
 				arc = append(arc, n)
 				q := prescribed{dof: p.Dofs.Of(n, Field(pn.Comp)), comp: pn.Comp, x: m.X[n], value: pn.Value, pinFn: pn.Func}
 				if err := add(what, q); err != nil {
