@@ -1,12 +1,15 @@
 package main
 
 import (
+	"encoding/json"
+	"errors"
 	"math"
 	"math/rand"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
@@ -130,5 +133,55 @@ func TestResumeAfterKill(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestInterruptStopsCleanly: SIGINT (Ctrl-C) ends a run at the end of the
+// step in progress with exit status 1, a checkpoint and summary.json status
+// "stopped"; resume then completes it (DESIGN.md §3 clean stops, §6).
+func TestInterruptStopsCleanly(t *testing.T) {
+	bin := buildBinary(t)
+	casePath := writeCase(t, plasticCase)
+	dir := filepath.Join(t.TempDir(), "run")
+	cmd := exec.Command(bin, "run", casePath, "-o", dir)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	// Wait for the first step, then interrupt.
+	deadline := time.Now().Add(2 * time.Minute)
+	for {
+		_, rows := func() ([]string, [][]string) {
+			if _, err := os.Stat(filepath.Join(dir, "history.csv")); err != nil {
+				return nil, nil
+			}
+			return readCSV(t, filepath.Join(dir, "history.csv"))
+		}()
+		if len(rows) >= 1 || time.Now().After(deadline) {
+			break
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	cmd.Process.Signal(os.Interrupt)
+	err := cmd.Wait()
+	var exit *exec.ExitError
+	if !errors.As(err, &exit) || exit.ExitCode() != 1 {
+		t.Fatalf("interrupted run: %v, want exit status 1", err)
+	}
+	var s summary
+	data, err := os.ReadFile(filepath.Join(dir, "summary.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &s); err != nil {
+		t.Fatal(err)
+	}
+	if s.Status != "stopped" || !strings.Contains(s.Reason, "interrupted") {
+		t.Errorf("summary status %q reason %q, want stopped / interrupted", s.Status, s.Reason)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "checkpoint", "state.gob")); err != nil {
+		t.Fatalf("no checkpoint after Ctrl-C: %v", err)
+	}
+	if out, err := exec.Command(bin, "resume", dir).CombinedOutput(); err != nil {
+		t.Fatalf("resume after Ctrl-C: %v\n%s", err, out)
 	}
 }
