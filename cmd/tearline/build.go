@@ -29,16 +29,24 @@ type runSetup struct {
 	length    float64
 }
 
-// buildRun maps a validated case onto the packages' typed options.
+// prepareCase loads, validates and maps a case: what run, check and
+// resume share. Every error is an input error.
+func prepareCase(path string, sets []string) (*caseFile, *caseSource, *runSetup, error) {
+	c, src, err := loadCase(path, sets)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	rs, err := buildRun(c, src)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	return c, src, rs, nil
+}
+
+// buildRun maps a validated case (from loadCase) onto the packages' typed
+// options.
 func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
-	d, err := c.Geometry.domain(src)
-	if err != nil {
-		return nil, err
-	}
-	sf, err := c.Mesh.sizeField(d, src, c.Material.Length)
-	if err != nil {
-		return nil, err
-	}
+	d, sf := c.domain, c.size // built and validated by loadCase
 	mat, err := c.Material.model()
 	if err != nil {
 		return nil, badInput("%s: %v", src.where("material"), err)

@@ -11,6 +11,9 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"tearline/remesh"
+	"tearline/remesh/geom"
 )
 
 // caseFile is the whole case file. Only the command line knows this format:
@@ -25,6 +28,10 @@ type caseFile struct {
 	Stop     stopSection     `toml:"stop"`
 	Output   outputSection   `toml:"output"`
 	Adapt    adaptSection    `toml:"adapt"`
+
+	// domain and size are built once by complete and reused by buildRun.
+	domain *geom.Domain
+	size   *remesh.SizeField
 }
 
 // caseSource remembers where every key of a case came from, so that an

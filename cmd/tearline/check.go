@@ -28,12 +28,7 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline check: need one case file\n%s", checkUsage)
 		return 2
 	}
-	c, src, err := loadCase(pos[0], *sets)
-	if err != nil {
-		fmt.Fprintf(stderr, "tearline: %v\n", err)
-		return 2
-	}
-	rs, err := buildRun(c, src)
+	c, src, rs, err := prepareCase(pos[0], *sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2

@@ -12,9 +12,11 @@ func (c *caseFile) complete(src *caseSource) error {
 	if err != nil {
 		return err
 	}
-	if _, err := c.Mesh.sizeField(d, src, c.Material.Length); err != nil {
+	sf, err := c.Mesh.sizeField(d, src, c.Material.Length)
+	if err != nil {
 		return err
 	}
+	c.domain, c.size = d, sf
 	_, hasTip := d.Points["tip"]
 	natural := "displacement"
 	for _, l := range d.Labels() {

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -32,14 +33,9 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	dir := pos[0]
 	casePath := filepath.Join(dir, "case.toml")
-	c, src, err := loadCase(casePath, nil)
+	c, _, rs, err := prepareCase(casePath, nil)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %s is not a run folder: %v\n", dir, err)
-		return 2
-	}
-	rs, err := buildRun(c, src)
-	if err != nil {
-		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2
 	}
 	cpPath := filepath.Join(dir, "checkpoint", "state.gob")
@@ -126,11 +122,11 @@ func parseHistoryRow(line string) (historyRow, error) {
 	}
 	num := func(s string) float64 {
 		if s == "" {
-			return nanValue()
+			return math.NaN()
 		}
 		v, err := strconv.ParseFloat(s, 64)
 		if err != nil {
-			return nanValue()
+			return math.NaN()
 		}
 		return v
 	}

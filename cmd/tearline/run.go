@@ -69,12 +69,7 @@ func runCommand(args []string, stdout, stderr io.Writer) int {
 
 // startRun validates a case and runs it into dir.
 func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int {
-	c, src, err := loadCase(casePath, sets)
-	if err != nil {
-		fmt.Fprintf(stderr, "tearline: %v\n", err)
-		return 2
-	}
-	rs, err := buildRun(c, src)
+	c, _, rs, err := prepareCase(casePath, sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2
@@ -145,8 +140,6 @@ type observer struct {
 	lastCP   time.Time
 	cpEvery  time.Duration
 	stopping atomic.Bool
-	lastMesh int // step of the last boundary file
-	started  time.Time
 	iters    []int
 }
 
@@ -174,7 +167,7 @@ var remeshColumns = []string{
 
 func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.Writer, resume bool) (*observer, error) {
 	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, stdout: stdout, lastCP: time.Now(),
-		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute)), lastMesh: -1, started: time.Now()}
+		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute))}
 	if f, ok := stdout.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			ob.tty = true
@@ -319,8 +312,16 @@ func (ob *observer) fracture() {
 				da, j = append(da, r.Da), append(j, jv)
 			}
 		}
-		if len(da) >= 3 {
-			if tm, err := criteria.TearingModulus(da, j, ob.rs.young, ob.rs.sigma0, 2*ob.rs.length); err == nil {
+		// The slope at the last point uses only the points of its centred
+		// window, so only those are passed (no re-evaluation of the whole
+		// record at every step).
+		window := 2 * ob.rs.length
+		first := len(da)
+		for first > 0 && math.Abs(da[first-1]-da[len(da)-1]) <= window/2 {
+			first--
+		}
+		if len(da)-first >= 2 {
+			if tm, err := criteria.TearingModulus(da[first:], j[first:], ob.rs.young, ob.rs.sigma0, window); err == nil {
 				last.Tearing = tm[len(tm)-1]
 			}
 		}

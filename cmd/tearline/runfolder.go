@@ -209,5 +209,3 @@ func peakRSSMB() float64 {
 	}
 	return 0
 }
-
-func nanValue() float64 { return math.NaN() }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"math"
-	"sort"
 	"strings"
 )
 
@@ -155,19 +154,26 @@ func (m *materialSection) complete(src *caseSource) error {
 	if err := choice(m.Hardening, []string{"power", "voce", "table", "perfect"}, src, "material.hardening"); err != nil {
 		return err
 	}
-	vals := map[string]float64{"yield_stress": m.Yield, "q1": m.Q1, "q2": m.Q2, "reference_strain": m.RefStrain}
-	for _, key := range sortedKeys(vals) {
-		if err := positive(vals[key], src, "material."+key); err != nil {
-			return err
-		}
+	if err := checkEach(src, "material", positive, []keyValue{
+		{"yield_stress", m.Yield},
+		{"q1", m.Q1},
+		{"q2", m.Q2},
+		{"reference_strain", m.RefStrain},
+	}); err != nil {
+		return err
 	}
-	vals = map[string]float64{"f0": m.F0, "length": m.Length, "penalty": m.Penalty,
-		"nucleation_fraction": m.NuclF, "nucleation_strain": m.NuclStrain, "nucleation_spread": m.NuclSpread,
-		"hardening_exponent": m.Exponent, "voce_saturation": m.VoceQ, "voce_rate": m.VoceB}
-	for _, key := range sortedKeys(vals) {
-		if err := nonNegative(vals[key], src, "material."+key); err != nil {
-			return err
-		}
+	if err := checkEach(src, "material", nonNegative, []keyValue{
+		{"f0", m.F0},
+		{"length", m.Length},
+		{"penalty", m.Penalty},
+		{"nucleation_fraction", m.NuclF},
+		{"nucleation_strain", m.NuclStrain},
+		{"nucleation_spread", m.NuclSpread},
+		{"hardening_exponent", m.Exponent},
+		{"voce_saturation", m.VoceQ},
+		{"voce_rate", m.VoceB},
+	}); err != nil {
+		return err
 	}
 	if !(m.F0 < m.Fc && m.Fc < m.Ff && m.Ff < 1/m.Q1) {
 		return badInput("%s: porosities must satisfy 0 ≤ f0 < fc < ff < 1/q1 (= %.4g); have f0 = %g, fc = %g, ff = %g",
@@ -251,12 +257,13 @@ func (s *solverSection) complete(src *caseSource) error {
 		t := true
 		s.Mixed = &t
 	}
-	vals := map[string]float64{"increment": s.Increment, "min_increment": s.MinIncrement,
-		"max_increment": s.MaxIncrement, "tolerance": s.Tolerance}
-	for _, key := range sortedKeys(vals) {
-		if err := positive(vals[key], src, "solver."+key); err != nil {
-			return err
-		}
+	if err := checkEach(src, "solver", positive, []keyValue{
+		{"increment", s.Increment},
+		{"min_increment", s.MinIncrement},
+		{"max_increment", s.MaxIncrement},
+		{"tolerance", s.Tolerance},
+	}); err != nil {
+		return err
 	}
 	if !(s.MinIncrement <= s.Increment && s.Increment <= s.MaxIncrement) {
 		return badInput("%s: need min_increment ≤ increment ≤ max_increment, have %g, %g, %g",
@@ -281,11 +288,8 @@ func (s *stopSection) complete(src *caseSource) error {
 	if err := positive(s.T, src, "stop.t"); err != nil {
 		return err
 	}
-	vals := map[string]float64{"da": s.Da, "hours": s.Hours}
-	for _, key := range sortedKeys(vals) {
-		if err := nonNegative(vals[key], src, "stop."+key); err != nil {
-			return err
-		}
+	if err := checkEach(src, "stop", nonNegative, []keyValue{{"da", s.Da}, {"hours", s.Hours}}); err != nil {
+		return err
 	}
 	if s.MaxSteps < 0 {
 		return badInput("%s: %d must be positive", src.where("stop.max_steps"), s.MaxSteps)
@@ -323,12 +327,14 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 			*d.v = d.def
 		}
 	}
-	vals := map[string]float64{"margin": a.Margin, "ahead": a.Ahead, "wake": a.Wake,
-		"alert_plastic_strain": a.AlertP, "simplify": a.Simplify}
-	for _, key := range sortedKeys(vals) {
-		if err := positive(vals[key], src, "adapt."+key); err != nil {
-			return err
-		}
+	if err := checkEach(src, "adapt", positive, []keyValue{
+		{"margin", a.Margin},
+		{"ahead", a.Ahead},
+		{"wake", a.Wake},
+		{"alert_plastic_strain", a.AlertP},
+		{"simplify", a.Simplify},
+	}); err != nil {
+		return err
 	}
 	if a.Wake < 1 {
 		return badInput("%s: %g must be ≥ 1 (a multiple of h_fine)", src.where("adapt.wake"), a.Wake)
@@ -339,12 +345,19 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 	return nil
 }
 
-// sortedKeys lists a map's keys in order, for stable messages.
-func sortedKeys[M ~map[string]V, V any](m M) []string {
-	keys := make([]string, 0, len(m))
-	for k := range m {
-		keys = append(keys, k)
+// keyValue is one number of a section, named by its key.
+type keyValue struct {
+	key   string
+	value float64
+}
+
+// checkEach applies check to every value in order and returns the first
+// error; the keys are those of section.
+func checkEach(src *caseSource, section string, check func(float64, *caseSource, string) error, vals []keyValue) error {
+	for _, kv := range vals {
+		if err := check(kv.value, src, section+"."+kv.key); err != nil {
+			return err
+		}
 	}
-	sort.Strings(keys)
-	return keys
+	return nil
 }
