@@ -28,7 +28,8 @@ type CycleConfig struct {
 	Material material.Model
 	// F0, Fc and FBreak are the material's porosity levels (initial,
 	// coalescence onset, broken): they set the transfer bounds and the
-	// damage-front levels.
+	// damage-front levels. Fc = 0 means a material without porosity (no
+	// damage front, Δa stays 0).
 	F0, Fc, FBreak float64
 	// Length is the internal length ℓ (0 = local model); the adaptive
 	// cycle measures its zones in Length, or in 2·h_fine for a local model.
@@ -351,38 +352,50 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 	if k := c.Cfg.KField; k != nil {
 		rec.JFar = criteria.FarFieldJ(k.K*p.TCommitted, k.El)
 	}
-	if len(c.Seeds) > 0 {
-		front, err := criteria.LocateFront(c.Mesh, gp, criteria.FrontOptions{Fc: c.Cfg.Fc, Tips: c.Seeds})
-		if err != nil {
-			return nil, fmt.Errorf("step %d: crack tip: %w", c.Steps, err)
-		}
-		// The run's Δa is that of the tip that has grown furthest.
-		for i, t := range front.Tips {
-			if t.DA >= c.Da {
-				c.Da, c.DaProj = t.DA, t.DAProj
-			}
-			if i < len(c.Tips) && t.Grown {
-				c.Tips[i].X = t.X
-				c.Tips[i].Dir = tipDirection(t, c.seedDir[i])
-			}
-		}
-		rec.Da, rec.DaProj = c.Da, c.DaProj
-		rec.TipX = c.Tips[0].X
-		if c.Cfg.J != nil {
-			js, err := c.domainJ(gp)
-			if err == nil && len(js) > 0 {
-				rec.JRings = js
-				// The outermost ring: the most remote from the process
-				// zone, where incremental plasticity and damage spoil
-				// path independence least (common practice).
-				rec.JDomain = js[len(js)-1]
-			}
-		}
-		if op, err := c.ctod(); err == nil {
-			rec.CTOD = op
+	if len(c.Seeds) == 0 {
+		return rec, nil
+	}
+	if err := c.locateTips(gp); err != nil {
+		return nil, err
+	}
+	rec.Da, rec.DaProj = c.Da, c.DaProj
+	rec.TipX = c.Tips[0].X
+	if c.Cfg.J != nil {
+		if js, err := c.domainJ(gp); err == nil && len(js) > 0 {
+			rec.JRings = js
+			// The outermost ring: the most remote from the process zone,
+			// where incremental plasticity and damage spoil path
+			// independence least (common practice).
+			rec.JDomain = js[len(js)-1]
 		}
 	}
+	if op, err := c.ctod(); err == nil {
+		rec.CTOD = op
+	}
 	return rec, nil
+}
+
+// locateTips moves the crack tips to the current damage front and updates
+// Δa. A material without porosity (Fc = 0) has no front: the tips stay.
+func (c *Cycle) locateTips(gp *fem.GaussPoints) error {
+	if !(c.Cfg.Fc > 0) {
+		return nil
+	}
+	front, err := criteria.LocateFront(c.Mesh, gp, criteria.FrontOptions{Fc: c.Cfg.Fc, Tips: c.Seeds})
+	if err != nil {
+		return fmt.Errorf("step %d: crack tip: %w", c.Steps, err)
+	}
+	// The run's Δa is that of the tip that has grown furthest.
+	for i, t := range front.Tips {
+		if t.DA >= c.Da {
+			c.Da, c.DaProj = t.DA, t.DAProj
+		}
+		if i < len(c.Tips) && t.Grown {
+			c.Tips[i].X = t.X
+			c.Tips[i].Dir = tipDirection(t, c.seedDir[i])
+		}
+	}
+	return nil
 }
 
 // tipDirection is the growth direction of a tip: the chord of the last part
@@ -451,16 +464,6 @@ func (c *Cycle) brokenCount() int {
 		}
 	}
 	return n
-}
-
-func median(v []float64) float64 {
-	s := append([]float64(nil), v...)
-	sort.Float64s(s)
-	n := len(s)
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return 0.5 * (s[n/2-1] + s[n/2])
 }
 
 func seedOf(x, dir [2]float64) criteria.Seed { return criteria.Seed{X: x, Dir: dir} }

@@ -218,8 +218,7 @@ func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
 	if err := p.SetGaussData(F, P, W); err != nil {
 		return err
 	}
-	p.T, p.TCommitted = t, t
-	p.SetTime(t)
+	p.Restart(t)
 	return nil
 }
 
