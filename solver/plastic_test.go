@@ -280,31 +280,9 @@ func TestRegularisedHomogeneous(t *testing.T) {
 // tangent).
 func TestGTNPlateWithHole(t *testing.T) {
 	for _, length := range []float64{0, 0.2} {
-		m, err := fem.Structured(10, 12, fem.AnnularSector(1, 4, 0, math.Pi/2, 4))
-		if err != nil {
-			t.Fatal(err)
-		}
 		par := material.DefaultGTN()
 		par.Length, par.F0 = length, 0.01
-		mat, err := material.NewGTN(par)
-		if err != nil {
-			t.Fatal(err)
-		}
-		bcs := fem.BCs{
-			Symmetries: []fem.Symmetry{{Label: "bottom", Comp: 1}, {Label: "top", Comp: 0}},
-			Displacements: []fem.Displacement{{Label: "right", Fix: [2]bool{true, false},
-				Func: func(X [2]float64, t float64) [2]float64 { return [2]float64{0.04 * t * X[0], 0} }}},
-		}
-		p, err := fem.NewProblem(m, mat, fem.Options{}, bcs)
-		if err != nil {
-			t.Fatal(err)
-		}
-		o := DefaultOptions()
-		o.Dt, o.DtMax = 0.02, 0.05
-		s, err := New(p, o)
-		if err != nil {
-			t.Fatal(err)
-		}
+		p, s := gtnPlateWithHole(t, par, 0.04)
 		var its []int
 		res, err := s.Run(func(st Step) error { its = append(its, st.Iterations); return nil })
 		if err != nil {
@@ -339,31 +317,9 @@ func TestGTNBreakingRun(t *testing.T) {
 	if os.Getenv("TEARLINE_LONG") != "1" {
 		t.Skip("long test: set TEARLINE_LONG=1")
 	}
-	m, err := fem.Structured(10, 12, fem.AnnularSector(1, 4, 0, math.Pi/2, 4))
-	if err != nil {
-		t.Fatal(err)
-	}
 	par := material.DefaultGTN()
 	par.F0 = 0.03
-	mat, err := material.NewGTN(par)
-	if err != nil {
-		t.Fatal(err)
-	}
-	bcs := fem.BCs{
-		Symmetries: []fem.Symmetry{{Label: "bottom", Comp: 1}, {Label: "top", Comp: 0}},
-		Displacements: []fem.Displacement{{Label: "right", Fix: [2]bool{true, false},
-			Func: func(X [2]float64, t float64) [2]float64 { return [2]float64{0.12 * t * X[0], 0} }}},
-	}
-	p, err := fem.NewProblem(m, mat, fem.Options{}, bcs)
-	if err != nil {
-		t.Fatal(err)
-	}
-	o := DefaultOptions()
-	o.Dt, o.DtMax = 0.02, 0.05
-	s, err := New(p, o)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p, s := gtnPlateWithHole(t, par, 0.12)
 	var force []float64
 	res, err := s.Run(func(st Step) error {
 		f, err := p.Reaction("right")
@@ -387,4 +343,36 @@ func TestGTNBreakingRun(t *testing.T) {
 	if res.Status != Completed || broken == 0 || force[len(force)-1] > 0.9*peak {
 		t.Errorf("want a completed run with broken elements and a softened force")
 	}
+}
+
+// gtnPlateWithHole sets up a quarter of a plate with a hole (10 × 12 graded
+// annular sector, radii 1 to 4) of GTN material, its outer edge stretched
+// radially to strain·t, with the solver's defaults and increments of 0.02 to
+// 0.05.
+func gtnPlateWithHole(t *testing.T, par material.GTNParams, strain float64) (*fem.Problem, *Solver) {
+	t.Helper()
+	m, err := fem.Structured(10, 12, fem.AnnularSector(1, 4, 0, math.Pi/2, 4))
+	if err != nil {
+		t.Fatal(err)
+	}
+	mat, err := material.NewGTN(par)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bcs := fem.BCs{
+		Symmetries: []fem.Symmetry{{Label: "bottom", Comp: 1}, {Label: "top", Comp: 0}},
+		Displacements: []fem.Displacement{{Label: "right", Fix: [2]bool{true, false},
+			Func: func(X [2]float64, t float64) [2]float64 { return [2]float64{strain * t * X[0], 0} }}},
+	}
+	p, err := fem.NewProblem(m, mat, fem.Options{}, bcs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := DefaultOptions()
+	o.Dt, o.DtMax = 0.02, 0.05
+	s, err := New(p, o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p, s
 }
