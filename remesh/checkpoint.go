@@ -7,32 +7,36 @@ import (
 	"io"
 	"time"
 
+	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/transfer"
 )
 
 // checkpointVersion changes whenever the layout below does; an older
 // checkpoint is refused with a clear error rather than misread.
-const checkpointVersion = 1
+const checkpointVersion = 2
 
 // checkpoint is everything a run needs to continue exactly where it was:
 // the mesh, the committed fields and Gauss-point state, the pseudo-time and
 // next increment, the crack tips and the fine zone, and the counters.
 type checkpoint struct {
-	Version         int
-	Mesh            *fem.Mesh
-	Fields          *transfer.Fields
-	T, Dt           float64
+	Version int
+	Mesh    *fem.Mesh
+	Fields  *transfer.Fields
+	// T is the load factor, Tau the pseudo-time (they differ under an
+	// opening control, whose constraint offset is Offset), Dt the next
+	// increment of Tau.
+	T, Tau, Dt      float64
+	Offset          float64
 	Steps, Remeshes int
 	PeakDofs        int
 	Da, DaProj      float64
 	Tips            []Tip
 	Zone            FineZone
 	Wall            time.Duration
-	// PrevDu and PrevDt are the solver's last converged increment (its
-	// predictor for the next one).
-	PrevDu []float64
-	PrevDt float64
+	// Prev is the solver's last converged increment (its predictor for
+	// the next one).
+	Prev solver.Previous
 	// Extra is the caller's own state (the command line keeps its history
 	// bookkeeping there).
 	Extra []byte
@@ -46,12 +50,15 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 		return err
 	}
 	cp := checkpoint{
-		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Dt: c.Dt,
+		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Tau: c.Tau, Dt: c.Dt,
 		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
 		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra,
 	}
 	if c.solver != nil && c.solver.P == c.Prob {
-		cp.PrevDu, cp.PrevDt = c.solver.PreviousIncrement()
+		cp.Prev = c.solver.PreviousIncrement()
+		if ctl := c.solver.Controlled(); ctl != nil {
+			cp.Offset = ctl.Offset
+		}
 	}
 	return gob.NewEncoder(w).Encode(&cp)
 }
@@ -76,7 +83,7 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
 	c := &Cycle{Cfg: cfg, Dt: cp.Dt, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
-		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall, prevDu: cp.PrevDu, prevDt: cp.PrevDt}
+		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall, Tau: cp.Tau, prev: cp.Prev, offset: cp.Offset, hasOffset: cfg.Control != nil}
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
 		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))

@@ -44,6 +44,10 @@ type CycleConfig struct {
 	Measure func(p *fem.Problem) (control, force float64, err error)
 
 	Solver solver.Options
+	// Control, when not nil, returns the opening control of a mesh's
+	// problem: the pseudo-time then drives that opening and the load
+	// factor (fem.Problem.T) is solved for (see solver.Control).
+	Control func(p *fem.Problem) (*solver.Control, error)
 
 	// Adapt switches the adaptive cycle on; the options below are used
 	// only then.
@@ -80,7 +84,7 @@ type JConfig struct {
 // a quantity that does not apply.
 type StepRecord struct {
 	Step              int
-	T                 float64
+	T, Load           float64 // pseudo-time and load factor (equal unless under a Control)
 	Control, Force    float64
 	JFar, JDomain     float64
 	JRings            []float64
@@ -150,16 +154,21 @@ type Cycle struct {
 	Da, DaProj      float64
 	// Wall is the wall time of the run so far (carried across resumes).
 	Wall time.Duration
+	// Tau is the committed pseudo-time: the load factor, or under a
+	// Control the pseudo-time that drives the opening.
+	Tau float64
 
 	gp     fem.GaussPoints
 	solver *solver.Solver
-	// prevDu, prevDt: the solver's last converged increment, restored from
-	// a checkpoint into the first solver of a resumed run.
-	prevDu  []float64
-	prevDt  float64
-	started time.Time
-	stop    *stopRequest
-	seedDir [][2]float64
+	// prev: the solver's last converged increment, restored from a
+	// checkpoint into the first solver of a resumed run, with the
+	// control's offset (hasOffset).
+	prev      solver.Previous
+	offset    float64
+	hasOffset bool
+	started   time.Time
+	stop      *stopRequest
+	seedDir   [][2]float64
 }
 
 type stopRequest struct {
@@ -257,17 +266,31 @@ func (c *Cycle) Run(obs Observer) (Outcome, error) {
 		if err != nil {
 			return Outcome{}, err
 		}
-		if c.prevDt > 0 {
-			if err := s.SetPreviousIncrement(c.prevDu, c.prevDt); err != nil {
+		if c.Cfg.Control != nil {
+			ctl, err := c.Cfg.Control(c.Prob)
+			if err != nil {
+				return Outcome{}, fmt.Errorf("opening control: %w", err)
+			}
+			if err := s.SetControl(ctl, c.Tau); err != nil {
+				return Outcome{}, fmt.Errorf("opening control: %w", err)
+			}
+			if c.hasOffset {
+				s.Controlled().Offset = c.offset
+				c.hasOffset = false
+			}
+		}
+		if c.prev.Dt > 0 {
+			if err := s.SetPreviousIncrement(c.prev); err != nil {
 				return Outcome{}, err
 			}
-			c.prevDu, c.prevDt = nil, 0
+			c.prev = solver.Previous{}
 		}
 		c.solver = s
 		c.stop = nil
 		res, err := s.Run(func(st solver.Step) error {
 			c.Wall = wall0 + time.Since(c.started)
 			c.Dt = s.NextDt()
+			c.Tau = s.Time()
 			c.Steps++
 			rec, err := c.record(st, false)
 			if err != nil {
@@ -279,7 +302,7 @@ func (c *Cycle) Run(obs Observer) (Outcome, error) {
 			return c.decide(rec)
 		})
 		c.Wall = wall0 + time.Since(c.started)
-		out := Outcome{Status: res.Status, Reason: res.Reason, Steps: c.Steps, T: c.Prob.TCommitted, Da: c.Da, PeakDof: c.PeakDofs}
+		out := Outcome{Status: res.Status, Reason: res.Reason, Steps: c.Steps, T: c.Tau, Da: c.Da, PeakDof: c.PeakDofs}
 		if err != nil && !errors.Is(err, solver.ErrStop) {
 			return out, err
 		}
@@ -335,7 +358,7 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 	p := c.Prob
 	gp := c.GaussPoints()
 	rec := &StepRecord{
-		Step: c.Steps, T: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.Mesh.Tri) - c.brokenCount(),
+		Step: c.Steps, T: c.Tau, Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.Mesh.Tri) - c.brokenCount(),
 		Remeshes: c.Remeshes, Iters: st.Iterations, Cutbacks: st.Cutbacks,
 		JFar: math.NaN(), JDomain: math.NaN(), CTOD: math.NaN(),
 		Residuals: append([]float64(nil), st.Residuals...), Reequilibrium: equil,

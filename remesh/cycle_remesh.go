@@ -227,7 +227,7 @@ func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
 func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	t := c.Prob.TCommitted
 	rr := &RemeshRecord{
-		Index: c.Remeshes + 1, Step: c.Steps, T: t, Da: c.Da, Reason: d.Reason,
+		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau, Da: c.Da, Reason: d.Reason,
 		DofsBefore: c.Prob.Dofs.N, ElemsBefore: len(c.Mesh.Tri),
 	}
 	var err error

@@ -351,11 +351,17 @@ func TestGTNBreakingRun(t *testing.T) {
 // 0.05.
 func gtnPlateWithHole(t *testing.T, par material.GTNParams, strain float64) (*fem.Problem, *Solver) {
 	t.Helper()
-	m, err := fem.Structured(10, 12, fem.AnnularSector(1, 4, 0, math.Pi/2, 4))
+	mat, err := material.NewGTN(par)
 	if err != nil {
 		t.Fatal(err)
 	}
-	mat, err := material.NewGTN(par)
+	return plateWithHole(t, mat, strain)
+}
+
+// plateWithHole is gtnPlateWithHole for any material.
+func plateWithHole(t *testing.T, mat material.Model, strain float64) (*fem.Problem, *Solver) {
+	t.Helper()
+	m, err := fem.Structured(10, 12, fem.AnnularSector(1, 4, 0, math.Pi/2, 4))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -133,6 +133,7 @@ var ErrStop = errors.New("solver: stop requested")
 type Step struct {
 	Index      int     // 1, 2, … within the run
 	T, Dt      float64 // time reached and the increment taken
+	Load       float64 // load factor reached (= T unless under a Control)
 	Iterations int     // Newton iterations (linear solves) of the converged attempt
 	Cutbacks   int     // failed attempts before it
 	// Residuals is the scaled residual norm at each iteration of the
@@ -183,6 +184,11 @@ type Solver struct {
 	dt       float64
 	dPrev    []float64 // last converged increment of the unknowns
 	dtPrev   float64   // and its time increment (0: none usable)
+	dLamPrev float64   // and its load-factor increment (under a Control)
+
+	ctl  *Control  // nil: the pseudo-time is the load factor
+	tauC float64   // committed pseudo-time under a Control
+	x2   []float64 // response to the load rate (bordered solve)
 }
 
 // New returns a solver for p.
@@ -232,7 +238,7 @@ func (s *Solver) ResetHistory() { s.dtPrev = 0 }
 // (after a state transfer).
 func (s *Solver) Increment(t float64) (Step, error) {
 	p := s.P
-	st := Step{T: t, Dt: t - p.TCommitted}
+	st := Step{T: t, Dt: t - s.Time()}
 	s.history = s.history[:0]
 	it, err := s.newton(t)
 	st.Iterations = it
@@ -246,7 +252,12 @@ func (s *Solver) Increment(t float64) (Step, error) {
 		s.dPrev[i] = p.U[i] - p.Committed[i]
 	}
 	s.dtPrev = st.Dt
+	s.dLamPrev = p.T - p.TCommitted
 	p.Commit()
+	st.Load = p.TCommitted
+	if s.ctl != nil {
+		s.tauC = t
+	}
 	return st, nil
 }
 
@@ -255,13 +266,20 @@ func (s *Solver) Increment(t float64) (Step, error) {
 func (s *Solver) newton(t float64) (int, error) {
 	p, o := s.P, s.Opt
 	p.Rollback()
-	if dt := t - p.TCommitted; o.Extrapolate && s.dtPrev > 0 && dt > 0 {
+	load := t // under a Control the load factor starts from its committed value
+	if s.ctl != nil {
+		load = p.TCommitted
+	}
+	if dt := t - s.Time(); o.Extrapolate && s.dtPrev > 0 && dt > 0 {
 		f := dt / s.dtPrev
 		for i, d := range s.dPrev {
 			p.U[i] += f * d
 		}
+		if s.ctl != nil {
+			load += f * s.dLamPrev
+		}
 	}
-	p.SetTime(t)
+	p.SetTime(load)
 	if err := p.Assemble(true); err != nil {
 		return 0, &attemptError{"assembly at the start of the increment failed", err}
 	}
@@ -276,7 +294,7 @@ func (s *Solver) newton(t float64) (int, error) {
 	s.history = append(s.history, m0)
 	first := true
 	for it := 0; ; it++ {
-		conv := s.converged(!first)
+		conv := s.converged(!first) && s.controlResidual(t) <= o.UTol
 		if conv {
 			return it, nil
 		}
@@ -292,11 +310,23 @@ func (s *Solver) newton(t float64) (int, error) {
 		if err := s.lin.Solve(s.du, s.u0); err != nil {
 			return it, &attemptError{"linear solve failed", err}
 		}
+		var dLoad float64
+		if s.ctl != nil {
+			var err error
+			if dLoad, err = s.borderedStep(t); err != nil {
+				return it, &attemptError{"bordered solve of the opening control failed", err}
+			}
+		}
 		for _, v := range s.du {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return it, &attemptError{reason: "Newton correction is not finite"}
 			}
 		}
+		load0 := p.T
+		// Under a Control the first correction brings the load in: its
+		// base may be in equilibrium, so the residual cannot judge it;
+		// the line search starts once the constraint holds.
+		search := o.LineSearch && s.controlResidual(t) <= o.UTol
 		copy(s.u0, p.U)
 		copy(s.rBase, p.Res)
 		alpha := 1.0
@@ -305,12 +335,15 @@ func (s *Solver) newton(t float64) (int, error) {
 			for i := range p.U {
 				p.U[i] = s.u0[i] + alpha*s.du[i]
 			}
+			if s.ctl != nil {
+				p.SetTime(load0 + alpha*dLoad)
+			}
 			err := p.Assemble(true)
 			if err == nil {
 				// compare base and trial with the trial's force scales
 				s.setScales()
 				mBase, m = s.merit(s.rBase), s.merit(p.Res)
-				if !o.LineSearch || m <= (1-1e-4*alpha)*mBase || ls >= o.LineSearchMax {
+				if !search || m <= (1-1e-4*alpha)*mBase || ls >= o.LineSearchMax {
 					break
 				}
 			} else if !o.LineSearch || ls >= o.LineSearchMax {
@@ -329,6 +362,11 @@ func (s *Solver) newton(t float64) (int, error) {
 			alpha = math.Min(math.Max(next, 0.1*alpha), 0.5*alpha)
 		}
 		s.history = append(s.history, m)
+		if first && s.ctl != nil {
+			// under a Control the load enters with the first correction:
+			// the start of the increment may be in equilibrium
+			m0 = math.Max(m0, m)
+		}
 		s.rho = 1
 		if mBase > 0 && m < mBase {
 			s.rho = m / mBase
@@ -422,25 +460,25 @@ func (s *Solver) converged(withCorr bool) bool {
 // falls below DtMin, MaxSteps is reached, or each returns ErrStop; other
 // errors from each end the run and are returned.
 func (s *Solver) Run(each func(Step) error) (Result, error) {
-	p, o := s.P, s.Opt
-	res := Result{T: p.TCommitted}
+	o := s.Opt
+	res := Result{T: s.Time()}
 	cuts := 0
 	lastCut := false
 	for {
-		if p.TCommitted >= o.TEnd*(1-1e-12) {
+		if s.Time() >= o.TEnd*(1-1e-12) {
 			res.Status = Completed
 			return res, nil
 		}
 		if res.Steps >= o.MaxSteps {
-			res.Status, res.Reason = Stopped, fmt.Sprintf("step limit %d reached at t = %g", o.MaxSteps, p.TCommitted)
+			res.Status, res.Reason = Stopped, fmt.Sprintf("step limit %d reached at t = %g", o.MaxSteps, s.Time())
 			return res, nil
 		}
 		start := time.Now()
-		dt := math.Min(s.dt, o.TEnd-p.TCommitted)
+		dt := math.Min(s.dt, o.TEnd-s.Time())
 		var st Step
 		var err error
 		for {
-			st, err = s.Increment(p.TCommitted + dt)
+			st, err = s.Increment(s.Time() + dt)
 			if err == nil {
 				break
 			}
@@ -451,14 +489,14 @@ func (s *Solver) Run(each func(Step) error) (Result, error) {
 			s.dt = dt
 			if dt < o.DtMin {
 				res.Status = Stopped
-				res.Reason = fmt.Sprintf("increment %.3g below the minimum %.3g at t = %g after %d cut-backs; last failure: %v", dt, o.DtMin, p.TCommitted, cuts, err)
-				res.T = p.TCommitted
+				res.Reason = fmt.Sprintf("increment %.3g below the minimum %.3g at t = %g after %d cut-backs; last failure: %v", dt, o.DtMin, s.Time(), cuts, err)
+				res.T = s.Time()
 				return res, nil
 			}
 		}
 		res.Steps++
 		res.Iterations += st.Iterations
-		res.T = p.TCommitted
+		res.T = s.Time()
 		st.Index = res.Steps
 		st.Cutbacks = cuts
 		st.Wall = time.Since(start)

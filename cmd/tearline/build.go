@@ -255,6 +255,9 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 		cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
 			return l.K * p.TCommitted, nan, nil
 		}
+		if l.Control == "opening" {
+			cfg.Control = openingControl(tip.Dir, l.Opening)
+		}
 	case "pin":
 		// The pin touches the hole on a narrow arc about the loading
 		// direction and acts as a hinge (see fem.Pin.Contact).
@@ -347,4 +350,35 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 	}
 	cfg.BCs = func(m *fem.Mesh) (fem.BCs, error) { return base, nil }
 	return nil
+}
+
+// openingControl returns the control of the crack opening at the points
+// "opening" (and "opening_lower" of a full model) that addOpeningPoints
+// placed: the displacement along the crack normal n, twice the upper
+// face's in a half model (mirror plane), upper minus lower otherwise; it
+// reaches opening at t = 1.
+func openingControl(dir [2]float64, opening float64) func(p *fem.Problem) (*solver.Control, error) {
+	n := [2]float64{-dir[1], dir[0]}
+	return func(p *fem.Problem) (*solver.Control, error) {
+		up, ok := p.Mesh.Points["opening"]
+		if !ok {
+			return nil, fmt.Errorf("the mesh has no point \"opening\"")
+		}
+		c := &solver.Control{Rate: opening}
+		add := func(node int, sign float64) {
+			for k, f := range [2]fem.Field{fem.Ux, fem.Uy} {
+				if n[k] != 0 {
+					c.Dofs = append(c.Dofs, p.Dofs.Of(node, f))
+					c.Weights = append(c.Weights, sign*n[k])
+				}
+			}
+		}
+		if lo, ok := p.Mesh.Points["opening_lower"]; ok {
+			add(up, 1)
+			add(lo, -1)
+		} else {
+			add(up, 2)
+		}
+		return c, nil
+	}
 }

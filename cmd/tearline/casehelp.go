@@ -40,6 +40,10 @@ penalty                                augmentation penalty r, in units of σ₀
 kind         "k_field" (remote Williams field: k, t_stress), "pin" (C(T) pin: value),
              "displacement" (label, component, value), "pressure" (label, value);
              default: the specimen's natural load. Magnitudes are those at t = 1.
+control      "load" (t scales the load) or "opening" (k_field only: t drives the crack
+             opening at opening_at behind the initial tip (default 5ℓ), which reaches
+             opening at t = 1; the load factor K/k is solved for — for tearing at
+             nearly constant K, where load control stalls)
 [[loading.fix]]  label, component ("x", "y", "r", "z", "both") — extra supports
 
 [solver]

@@ -27,8 +27,17 @@ func (c *caseFile) complete(src *caseSource) error {
 			natural = "pin"
 		}
 	}
-	if err := c.Loading.complete(src, natural); err != nil {
+	unit := c.Material.Length // zones of a local model are measured in 2·h_fine
+	if !(unit > 0) {
+		unit = 2 * c.Mesh.HFine
+	}
+	if err := c.Loading.complete(src, natural, unit); err != nil {
 		return err
+	}
+	if c.Loading.Control == "opening" {
+		if err := addOpeningPoints(d, c.Loading.OpeningAt); err != nil {
+			return badInput("%s: %v", src.where("loading.opening_at"), err)
+		}
 	}
 	if err := c.Solver.complete(src); err != nil {
 		return err

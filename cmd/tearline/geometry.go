@@ -383,3 +383,50 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 func (m *meshSection) options() remesh.MeshOptions {
 	return remesh.MeshOptions{MinAngle: m.MinAngle, MaxPoints: m.MaxPoints}
 }
+
+// addOpeningPoints adds the named points of an opening control to d: where
+// the line normal to the crack at distance behind the initial tip "tip"
+// crosses the crack faces (pieces labelled "crack"), "opening" on the side
+// the normal (−dir_y, dir_x) points to and "opening_lower" on the other
+// (full models). The mesher keeps named points as vertices, so the
+// controlled node survives every remesh.
+func addOpeningPoints(d *geom.Domain, behind float64) error {
+	tip, ok := d.Points["tip"]
+	if !ok {
+		return fmt.Errorf("the opening control needs a crack tip point \"tip\" in the geometry")
+	}
+	o := [2]float64{tip.X[0] - behind*tip.Dir[0], tip.X[1] - behind*tip.Dir[1]}
+	n := [2]float64{-tip.Dir[1], tip.Dir[0]}
+	found := 0
+	for _, loop := range d.Loops() {
+		for _, pc := range loop {
+			if pc.Label != geom.LabelCrack || pc.Kind != geom.Line {
+				continue
+			}
+			// the piece A + s(B − A) meets the line (X − o)·dir = 0 at s
+			ab := [2]float64{pc.B[0] - pc.A[0], pc.B[1] - pc.A[1]}
+			den := ab[0]*tip.Dir[0] + ab[1]*tip.Dir[1]
+			if den == 0 {
+				continue
+			}
+			s := ((o[0]-pc.A[0])*tip.Dir[0] + (o[1]-pc.A[1])*tip.Dir[1]) / den
+			if !(s > 1e-6 && s < 1-1e-6) {
+				continue
+			}
+			x := [2]float64{pc.A[0] + s*ab[0], pc.A[1] + s*ab[1]}
+			name := "opening"
+			if (x[0]-o[0])*n[0]+(x[1]-o[1])*n[1] < 0 {
+				name = "opening_lower"
+			}
+			if _, dup := d.Points[name]; dup {
+				return fmt.Errorf("the line %g behind the tip crosses the crack faces more than once on one side", behind)
+			}
+			d.Points[name] = geom.Point{X: x}
+			found++
+		}
+	}
+	if _, ok := d.Points["opening"]; !ok || found == 0 {
+		return fmt.Errorf("no straight crack face at %g behind the tip (the opening point must lie on a straight crack face, between the tip's rounding and the outer boundary)", behind)
+	}
+	return nil
+}

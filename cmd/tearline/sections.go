@@ -43,6 +43,12 @@ type loadingSection struct {
 	Component string     `toml:"component"`
 	Value     float64    `toml:"value"` // displacement or pressure at t = 1
 	Fix       []fixEntry `toml:"fix"`   // extra supports
+	// Control is "load" (t is the load factor) or "opening" (t drives the
+	// crack opening at the point OpeningAt behind the initial tip, which
+	// reaches Opening at t = 1; the load factor is solved for).
+	Control   string  `toml:"control"`
+	OpeningAt float64 `toml:"opening_at"`
+	Opening   float64 `toml:"opening"`
 }
 
 // fixEntry is one support: a component of the displacement held at zero on a label.
@@ -204,12 +210,31 @@ func (m *materialSection) complete(src *caseSource) error {
 	return nil
 }
 
-func (l *loadingSection) complete(src *caseSource, natural string) error {
+func (l *loadingSection) complete(src *caseSource, natural string, unit float64) error {
 	if l.Kind == "" {
 		l.Kind = natural
 	}
 	if err := choice(l.Kind, []string{"k_field", "displacement", "pin", "pressure"}, src, "loading.kind"); err != nil {
 		return err
+	}
+	if l.Control == "" {
+		l.Control = "load"
+	}
+	if err := choice(l.Control, []string{"load", "opening"}, src, "loading.control"); err != nil {
+		return err
+	}
+	if l.Control == "opening" {
+		if l.Kind != "k_field" {
+			return badInput("%s: control = \"opening\" drives a remote K field (kind = \"k_field\"); kind %q is displacement-driven already or not supported", src.where("loading.control"), l.Kind)
+		}
+		if l.OpeningAt == 0 {
+			l.OpeningAt = 5 * unit
+		}
+		if err := checkEach(src, "loading", positive, []keyValue{{"opening", l.Opening}, {"opening_at", l.OpeningAt}}); err != nil {
+			return err
+		}
+	} else if l.Opening != 0 || l.OpeningAt != 0 {
+		return badInput("%s: loading.opening and loading.opening_at need control = \"opening\"", src.where("loading.control"))
 	}
 	switch l.Kind {
 	case "k_field":

@@ -239,6 +239,9 @@ func (p *Problem) Assemble(tangent bool) error {
 			diag = s / float64(n)
 		}
 	}
+	if tangent && p.rate != nil {
+		p.loadRate()
+	}
 	for _, d := range p.constr {
 		p.Res[d] = 0
 		if !tangent {

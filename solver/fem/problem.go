@@ -125,6 +125,7 @@ type Problem struct {
 	followerScale float64 // largest nodal follower force at t = 1 (reference geometry)
 	pinComp       []int
 	label         map[string][]int // label → nodes
+	rate          []float64        // dR/dT of the free unknowns, when tracked
 }
 
 const (

@@ -1,0 +1,141 @@
+package solver
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Control replaces the load factor by a linear combination of unknowns
+// (a crack opening, say) as the quantity that follows the pseudo-time: the
+// load factor T of the problem becomes an unknown found with the
+// displacements, and each increment of pseudo-time τ prescribes
+//
+//	Σ Weights[i]·U[Dofs[i]] = Offset + Rate·τ.
+//
+// This is displacement control of a crack-opening measure (common
+// practice for tearing under load control, where the response passes a
+// limit or the crack runs at nearly constant load: the opening of a point
+// behind the tip keeps growing with the crack). Each Newton iteration
+// solves the bordered system with one factorisation of the tangent
+//
+//	K·x₁ = −R,  K·x₂ = −∂R/∂T,  ΔT = −(g + w·x₁)/(w·x₂),  Δu = x₁ + ΔT·x₂,
+//
+// g being the constraint's residual (Batoz & Dhatt 1979, displacement
+// control of a single combination).
+type Control struct {
+	Dofs    []int
+	Weights []float64
+	Rate    float64 // change of the controlled value per unit pseudo-time
+	Offset  float64 // controlled value at τ = 0 (SetControl sets it)
+}
+
+// Value is the controlled combination at the unknowns u.
+func (c *Control) Value(u []float64) float64 {
+	var v float64
+	for i, d := range c.Dofs {
+		v += c.Weights[i] * u[d]
+	}
+	return v
+}
+
+// SetControl switches the solver to control c from pseudo-time tau on
+// (nil switches it back to load-factor control, with τ = T). The offset is
+// set so that the committed unknowns satisfy the constraint at tau; the
+// previous increment is forgotten.
+func (s *Solver) SetControl(c *Control, tau float64) error {
+	if c == nil {
+		s.ctl = nil
+		return nil
+	}
+	p := s.P
+	if len(c.Dofs) == 0 || len(c.Dofs) != len(c.Weights) {
+		return fmt.Errorf("solver: control has %d unknowns and %d weights; need as many, at least one", len(c.Dofs), len(c.Weights))
+	}
+	if !(c.Rate != 0) || math.IsInf(c.Rate, 0) {
+		return fmt.Errorf("solver: control rate %g must be finite and non-zero", c.Rate)
+	}
+	for i, d := range c.Dofs {
+		if d < 0 || d >= p.Dofs.N {
+			return fmt.Errorf("solver: control unknown %d outside 0…%d", d, p.Dofs.N-1)
+		}
+		if p.Constrained(d) {
+			return fmt.Errorf("solver: control unknown %d (node %d) is prescribed or orphaned; the controlled opening must be free", d, p.Dofs.NodeOf[d])
+		}
+		if w := c.Weights[i]; w == 0 || math.IsNaN(w) || math.IsInf(w, 0) {
+			return fmt.Errorf("solver: control weight %d is %g; must be finite and non-zero", i, w)
+		}
+	}
+	if err := p.TrackLoadRate(); err != nil {
+		return err
+	}
+	cc := *c
+	cc.Dofs = append([]int(nil), c.Dofs...)
+	cc.Weights = append([]float64(nil), c.Weights...)
+	cc.Offset = cc.Value(p.Committed) - cc.Rate*tau
+	s.ctl = &cc
+	s.tauC = tau
+	s.dtPrev = 0
+	if s.x2 == nil {
+		s.x2 = make([]float64, p.Dofs.N)
+	}
+	return nil
+}
+
+// Controlled returns the control in use (nil under load-factor control).
+func (s *Solver) Controlled() *Control { return s.ctl }
+
+// Time is the committed pseudo-time: τ under a Control, else the
+// problem's committed load factor.
+func (s *Solver) Time() float64 {
+	if s.ctl != nil {
+		return s.tauC
+	}
+	return s.P.TCommitted
+}
+
+// SetTime sets the committed pseudo-time τ of a controlled run (resume);
+// the constraint's offset is kept.
+func (s *Solver) SetTime(tau float64) { s.tauC = tau }
+
+// borderedStep turns the Newton correction x₁ = s.du of the factorised
+// tangent into that of the bordered system at pseudo-time t, and returns
+// the load-factor correction.
+func (s *Solver) borderedStep(t float64) (float64, error) {
+	p, c := s.P, s.ctl
+	rate := p.LoadRate()
+	for i, r := range rate {
+		s.u0[i] = -r
+	}
+	if err := s.lin.Solve(s.x2, s.u0); err != nil {
+		return 0, err
+	}
+	g := c.Value(p.U) - (c.Offset + c.Rate*t)
+	den := c.Value(s.x2)
+	if !(math.Abs(den) > 0) || math.IsInf(den, 0) {
+		return 0, errors.New("the controlled opening does not respond to the load factor")
+	}
+	dT := -(g + c.Value(s.du)) / den
+	if math.IsNaN(dT) || math.IsInf(dT, 0) {
+		return 0, errors.New("load-factor correction is not finite")
+	}
+	for i, x := range s.x2 {
+		s.du[i] += dT * x
+	}
+	return dT, nil
+}
+
+// controlResidual is |g| of the constraint at pseudo-time t relative to the
+// controlled change over the increment (0 without a control).
+func (s *Solver) controlResidual(t float64) float64 {
+	c := s.ctl
+	if c == nil {
+		return 0
+	}
+	g := c.Value(s.P.U) - (c.Offset + c.Rate*t)
+	d := math.Abs(c.Rate * (t - s.tauC))
+	if d == 0 {
+		d = math.Max(math.Abs(c.Value(s.P.Committed)), 1e-300)
+	}
+	return math.Abs(g) / d
+}
