@@ -35,6 +35,25 @@ func FarFieldJ(K float64, el Elastic) float64 {
 	return K * K * (1 - el.Nu*el.Nu) / el.E
 }
 
+// FarFieldJMixed returns the plane-strain energy release rate of a mixed
+// mode-I/mode-II field: J = (K_I² + K_II²)(1−ν²)/E (Irwin 1957; e.g.
+// Anderson, Fracture Mechanics, ch. 2).
+func FarFieldJMixed(KI, KII float64, el Elastic) float64 {
+	return (KI*KI + KII*KII) * (1 - el.Nu*el.Nu) / el.E
+}
+
+// KinkAngle returns the crack-growth direction θ₀ (radians, from the crack
+// direction, positive towards the normal n) of the maximum-hoop-stress
+// criterion of Erdogan & Sih (1963, J. Basic Eng. 85): the root of
+// K_I sin θ + K_II (3 cos θ − 1) = 0 with the hoop stress a maximum,
+// θ₀ = 2 atan[(K_I − √(K_I² + 8K_II²)) / (4K_II)]; 0 for K_II = 0.
+func KinkAngle(KI, KII float64) float64 {
+	if KII == 0 {
+		return 0
+	}
+	return 2 * math.Atan((KI-math.Sqrt(KI*KI+8*KII*KII))/(4*KII))
+}
+
 // Face selects which crack face a point on the crack line behind the tip
 // (θ = ±π exactly) belongs to.
 type Face int
@@ -47,16 +66,20 @@ const (
 	LowerFace Face = -1
 )
 
-// KField is the plane-strain mode-I near-tip field: the leading singular
-// term with stress intensity K and the constant T-stress term of the
-// Williams (1957, J. Appl. Mech. 24) expansion, for a crack that lies behind
-// Tip along −Dir and would grow along +Dir. Displacements are those of linear
-// elasticity with κ = 3 − 4ν (e.g. Anderson, Fracture Mechanics, ch. 2).
+// KField is the plane-strain near-tip field: the leading singular mode-I
+// term with stress intensity K, the constant T-stress term of the Williams
+// (1957, J. Appl. Mech. 24) expansion and, optionally, the leading singular
+// mode-II (in-plane shear) term with stress intensity KII, for a crack that
+// lies behind Tip along −Dir and would grow along +Dir. Displacements are
+// those of linear elasticity with κ = 3 − 4ν (e.g. Anderson, Fracture
+// Mechanics, ch. 2, mode-I and mode-II crack-tip fields). KII = 0 (the zero
+// value) gives the pure mode-I field.
 type KField struct {
-	K, T float64    // stress intensity and T-stress
+	K, T float64    // mode-I stress intensity and T-stress
 	El   Elastic    // elastic constants
 	Tip  [2]float64 // crack-tip position
 	Dir  [2]float64 // crack direction (need not be unit length)
+	KII  float64    // mode-II stress intensity (0 = pure mode I)
 }
 
 // Validate checks the elastic constants and the direction.
@@ -69,6 +92,9 @@ func (k KField) Validate() error {
 	}
 	if math.IsNaN(k.K) || math.IsInf(k.K, 0) || math.IsNaN(k.T) || math.IsInf(k.T, 0) {
 		return fmt.Errorf("K-field: K = %g and T = %g must be finite", k.K, k.T)
+	}
+	if math.IsNaN(k.KII) || math.IsInf(k.KII, 0) {
+		return fmt.Errorf("K-field: K_II = %g must be finite", k.KII)
 	}
 	return nil
 }
@@ -118,6 +144,13 @@ func (k KField) DisplacementFace(x [2]float64, face Face) [2]float64 {
 	s, c := math.Sincos(th / 2)
 	u1 := a * c * (kappa - 1 + 2*s*s)
 	u2 := a * s * (kappa + 1 - 2*c*c)
+	if k.KII != 0 {
+		// Mode II (Anderson, Fracture Mechanics, ch. 2): the faces slide,
+		// u₁ = ±b(κ+1) and u₂ = 0 at θ = ±π.
+		b := k.KII / (2 * mu) * math.Sqrt(r/(2*math.Pi))
+		u1 += b * s * (kappa + 1 + 2*c*c)
+		u2 += -b * c * (kappa - 1 - 2*s*s)
+	}
 	if k.T != 0 {
 		// Uniform σ₁₁ = T in plane strain: ε₁₁ = (1−ν²)T/E, ε₂₂ = −ν(1+ν)T/E.
 		nu := k.El.Nu
@@ -145,6 +178,14 @@ func (k KField) StressFace(x [2]float64, face Face) material.Sym {
 	s11 := a*c*(1-s*s3) + k.T
 	s22 := a * c * (1 + s*s3)
 	s12 := a * c * s * c3
+	if k.KII != 0 {
+		// Mode II (Anderson, Fracture Mechanics, ch. 2): pure shear
+		// σ₁₂ = K_II/√(2πr) on the crack line ahead of the tip.
+		b := k.KII / math.Sqrt(2*math.Pi*r)
+		s11 += -b * s * (2 + c*c3)
+		s22 += b * s * c * c3
+		s12 += b * c * (1 - s*s3)
+	}
 	// Rotate to the global frame: σ = Q σ' Qᵀ with Q = [t n].
 	g11 := t[0]*t[0]*s11 + 2*t[0]*n[0]*s12 + n[0]*n[0]*s22
 	g22 := t[1]*t[1]*s11 + 2*t[1]*n[1]*s12 + n[1]*n[1]*s22
