@@ -75,6 +75,9 @@ type Options struct {
 	// Linear is the linear solver; nil means an equilibrated sparse.LU
 	// with its default options.
 	Linear LinearSolver
+	// Failed, if not nil, hears of every failed attempt (the increment
+	// from t that was tried and why it failed) before the cut-back.
+	Failed func(t, dt float64, err error)
 }
 
 // DefaultOptions returns the defaults: t from 0 to 1 in a first increment
@@ -270,7 +273,9 @@ func (s *Solver) newton(t float64) (int, error) {
 	if s.ctl != nil {
 		load = p.TCommitted
 	}
+	extrapolated := false
 	if dt := t - s.Time(); o.Extrapolate && s.dtPrev > 0 && dt > 0 {
+		extrapolated = true
 		f := dt / s.dtPrev
 		for i, d := range s.dPrev {
 			p.U[i] += f * d
@@ -281,7 +286,20 @@ func (s *Solver) newton(t float64) (int, error) {
 	}
 	p.SetTime(load)
 	if err := p.Assemble(true); err != nil {
-		return 0, &attemptError{"assembly at the start of the increment failed", err}
+		// The extrapolation may overshoot where the response turns (an
+		// element near breaking): start again from the converged state.
+		if !extrapolated {
+			return 0, &attemptError{"assembly at the start of the increment failed", err}
+		}
+		p.Rollback()
+		load = t
+		if s.ctl != nil {
+			load = p.TCommitted
+		}
+		p.SetTime(load)
+		if err := p.Assemble(true); err != nil {
+			return 0, &attemptError{"assembly at the start of the increment failed", err}
+		}
 	}
 	if !s.analysed {
 		if err := s.lin.Analyze(p.K); err != nil {
@@ -374,6 +392,12 @@ func (s *Solver) newton(t float64) (int, error) {
 		if math.IsNaN(m) || m > o.Diverge*math.Max(m0, 1e-300) {
 			return it + 1, &attemptError{reason: fmt.Sprintf("divergence: scaled residual %.3g from %.3g", m, m0)}
 		}
+		// Stagnation: a Newton iteration that converges reduces the
+		// residual many times over in three iterations; one that has not
+		// halved it by then is not worth finishing (common practice).
+		if h := s.history; len(h) > stagnantAfter && m > 0.5*h[len(h)-4] {
+			return it + 1, &attemptError{reason: fmt.Sprintf("stagnation: scaled residual %.3g after %d iterations, %.3g three iterations before", m, it+1, h[len(h)-4])}
+		}
 		if alpha < 1 {
 			for i := range s.du {
 				s.du[i] *= alpha
@@ -382,6 +406,10 @@ func (s *Solver) newton(t float64) (int, error) {
 		first = false
 	}
 }
+
+// stagnantAfter is the number of iterations before the stagnation test
+// applies.
+const stagnantAfter = 6
 
 // setScales freezes, for the attempt, the force scale of each field.
 func (s *Solver) setScales() {
@@ -481,6 +509,9 @@ func (s *Solver) Run(each func(Step) error) (Result, error) {
 			st, err = s.Increment(s.Time() + dt)
 			if err == nil {
 				break
+			}
+			if o.Failed != nil {
+				o.Failed(s.Time(), dt, err)
 			}
 			res.Cutbacks++
 			cuts++

@@ -44,6 +44,7 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: %s has no checkpoint to resume from: %v\n", dir, err)
 		return 2
 	}
+	rs.cfg.Solver.Failed = retryReporter(stdout)
 	cyc, extra, err := remesh.ResumeCycle(rs.cfg, f)
 	f.Close()
 	if err != nil {

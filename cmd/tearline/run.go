@@ -87,6 +87,7 @@ func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
 	}
+	rs.cfg.Solver.Failed = retryReporter(stdout)
 	cyc, err := remesh.NewCycle(rs.cfg)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
@@ -443,4 +444,12 @@ func parseCommand(fs *flag.FlagSet, args []string) (pos []string, code int, done
 		return nil, 2, true
 	}
 	return pos, 0, false
+}
+
+// retryReporter prints why an increment failed before it is cut back, so
+// that a run that slows down says what troubles it.
+func retryReporter(w io.Writer) func(t, dt float64, err error) {
+	return func(t, dt float64, err error) {
+		fmt.Fprintf(w, "  retry: increment %.3g from t %.6g failed: %v\n", dt, t, err)
+	}
 }

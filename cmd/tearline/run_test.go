@@ -25,7 +25,7 @@ func writeCase(t *testing.T, text string) string {
 }
 
 // readCSV reads a run-folder table into its header and rows.
-func readCSV(t *testing.T, path string) ([]string, [][]string) {
+func readCSV(t testing.TB, path string) ([]string, [][]string) {
 	t.Helper()
 	f, err := os.Open(path)
 	if err != nil {
@@ -42,7 +42,7 @@ func readCSV(t *testing.T, path string) ([]string, [][]string) {
 	return recs[0], recs[1:]
 }
 
-func column(t *testing.T, header []string, name string) int {
+func column(t testing.TB, header []string, name string) int {
 	t.Helper()
 	for i, h := range header {
 		if h == name {
