@@ -612,10 +612,14 @@ func (lp *gtnLocal) iterate(u0 [3]float64) (u [3]float64, ev gtnEval, err error)
 		if !accepted {
 			// Stagnation at rounding: the Newton correction is negligible
 			// although the residual is above newtonTol (ill-conditioned
-			// states, e.g. f → 0 under high pressure). Accept it.
+			// states, e.g. f → 0 under high pressure, or a flow stress
+			// floored to a tiny A next to a localisation band, where the
+			// rounding floor of the residual ∝ μ/A exceeds newtonTol).
+			// Accept it when no unknown would change by more than 1e-8
+			// relative.
 			small := true
 			for i := range du {
-				small = small && math.Abs(du[i]) <= 1e-13*(1+math.Abs(u[i]))
+				small = small && math.Abs(du[i]) <= 1e-8*(1+math.Abs(u[i]))
 			}
 			if small && ev.normRes < 1e-6 {
 				return u, ev, nil
