@@ -226,15 +226,24 @@ func (c *Cycle) hWake() float64 {
 	return c.Cfg.Size.WithDefaults().HFar
 }
 
-// setMesh builds the problem on mesh m (its state virgin).
-func (c *Cycle) setMesh(m *fem.Mesh) error {
+// newProblem builds the problem on mesh m (its state virgin).
+func (c *Cycle) newProblem(m *fem.Mesh) (*fem.Problem, error) {
 	bcs, err := c.Cfg.BCs(m)
 	if err != nil {
-		return fmt.Errorf("cycle: boundary conditions: %w", err)
+		return nil, fmt.Errorf("cycle: boundary conditions: %w", err)
 	}
 	p, err := fem.NewProblem(m, c.Cfg.Material, c.Cfg.FE, bcs)
 	if err != nil {
-		return fmt.Errorf("cycle: problem: %w", err)
+		return nil, fmt.Errorf("cycle: problem: %w", err)
+	}
+	return p, nil
+}
+
+// setMesh makes the problem on mesh m (its state virgin) the current one.
+func (c *Cycle) setMesh(m *fem.Mesh) error {
+	p, err := c.newProblem(m)
+	if err != nil {
+		return err
 	}
 	if c.Prob != nil {
 		c.Prob.Close()

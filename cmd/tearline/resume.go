@@ -70,7 +70,7 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: %s: %v\n", dir, err)
 		return 1
 	}
-	fmt.Fprintf(stdout, "tearline: resuming %s at step %d, t = %.5g, Δa = %.4g\n", dir, cyc.Steps, cyc.Prob.TCommitted, cyc.Da)
+	fmt.Fprintf(stdout, "tearline: resuming %s at step %d, t = %.5g, Δa = %.4g\n", dir, cyc.Steps, cyc.Tau, cyc.Da)
 	return ob.run(cyc, stderr)
 }
 

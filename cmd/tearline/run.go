@@ -229,7 +229,7 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: plots: %v\n", perr)
 	}
 	s := summary{Status: status, Reason: reason, Steps: cyc.Steps, Remeshes: cyc.Remeshes, FinalDa: cyc.Da,
-		FinalT: cyc.Prob.TCommitted, PeakDofs: cyc.PeakDofs, PeakRSSMB: peakRSSMB(), WallSeconds: cyc.Wall.Seconds(),
+		FinalT: cyc.Tau, PeakDofs: cyc.PeakDofs, PeakRSSMB: peakRSSMB(), WallSeconds: cyc.Wall.Seconds(),
 		CaseSHA256: ob.hash, MedianIters: medianInt(ob.iters)}
 	if n := len(ob.rows); n > 0 && !math.IsNaN(ob.rows[n-1].JDomain) {
 		s.FinalJDomain = ob.rows[n-1].JDomain
@@ -241,7 +241,7 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	ob.history.Close()
 	ob.remeshes.Close()
 	fmt.Fprintf(ob.stdout, "tearline: %s after %d steps, %d remeshes, Δa = %.4g, t = %.4g (%s); results in %s\n",
-		status, cyc.Steps, cyc.Remeshes, cyc.Da, cyc.Prob.TCommitted, reason, ob.dir)
+		status, cyc.Steps, cyc.Remeshes, cyc.Da, cyc.Tau, reason, ob.dir)
 	if status == "stopped" {
 		fmt.Fprintf(stderr, "tearline: stopped: %s\n", reason)
 	}

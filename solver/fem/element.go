@@ -59,6 +59,7 @@ type ElementError struct {
 	Elem, Point int
 	Reason      string
 	Err         error
+	Inverted    bool // det F ≤ 0 at the point
 }
 
 func (e *ElementError) Error() string {
@@ -165,7 +166,7 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 		}
 		J := (F11*F22 - F12*F21) * F33
 		if !(J > 0) {
-			return &ElementError{Elem: e, Point: g, Reason: fmt.Sprintf("det F = %g ≤ 0", J)}
+			return &ElementError{Elem: e, Point: g, Reason: fmt.Sprintf("det F = %g ≤ 0", J), Inverted: true}
 		}
 		C := material.Sym{F11*F11 + F21*F21, F12*F12 + F22*F22, F33 * F33, F11*F12 + F21*F22}
 		E, dEdC := material.LogStrain(C)

@@ -1,0 +1,75 @@
+package remesh
+
+import (
+	"math"
+	"testing"
+
+	"tearline/solver/material"
+)
+
+// TestAdmissibleElastic: a transferred point whose elastic strain gives a
+// trial stress outside the GTN yield surface (Gurson 1977 with Tvergaard's
+// q₁, q₂, 1981) is scaled back onto it, σ*(τ) = R(p) to 1e-9, keeping the
+// total strain (Eᵖ takes up the difference); a point inside is left alone.
+func TestAdmissibleElastic(t *testing.T) {
+	par := material.DefaultGTN()
+	m, err := material.NewGTN(par)
+	if err != nil {
+		t.Fatal(err)
+	}
+	el := par.Elastic
+	mu := el.Young / (2 * (1 + el.Poisson))
+	lam := el.Young * el.Poisson / ((1 + el.Poisson) * (1 - 2*el.Poisson))
+	sigmaStar := func(ee material.Sym, f float64) float64 {
+		tr := ee.Trace()
+		var tau material.Sym
+		for k := 0; k < 4; k++ {
+			tau[k] = 2 * mu * ee[k]
+		}
+		for k := 0; k < 3; k++ {
+			tau[k] += lam * tr
+		}
+		s, err := m.EffectiveStress(tau, f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	E := material.Sym{0.05, -0.01, 0.02, 0.03}
+	for _, c := range []struct {
+		name   string
+		ee     material.Sym // elastic strain before
+		change bool
+	}{
+		{"far outside (mean stress ~ 13 GPa)", material.Sym{0.03, 0.03, 0.02, 0.001}, true},
+		{"outside in shear", material.Sym{0.001, -0.001, 0, 0.01}, true},
+		{"inside", material.Sym{0.0005, 0.0002, 0.0001, 0.0001}, false},
+	} {
+		s := material.State{F: 0.03, P: 0.3}
+		for k := 0; k < 4; k++ {
+			s.Ep[k] = E[k] - c.ee[k]
+		}
+		before := s.Ep
+		changed, err := admissibleElastic(m, &s, E)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if changed != c.change {
+			t.Errorf("%s: changed = %v, want %v", c.name, changed, c.change)
+			continue
+		}
+		var ee material.Sym
+		for k := 0; k < 4; k++ {
+			ee[k] = E[k] - s.Ep[k]
+		}
+		r, _ := par.Hardening.Flow(s.P)
+		got := sigmaStar(ee, s.F)
+		if c.change {
+			if math.Abs(got-r) > 1e-9*r {
+				t.Errorf("%s: σ* = %.10g after scaling, want R(p) = %.10g", c.name, got, r)
+			}
+		} else if s.Ep != before {
+			t.Errorf("%s: plastic strain changed", c.name)
+		}
+	}
+}
