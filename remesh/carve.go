@@ -9,6 +9,7 @@ import (
 
 	"tearline/remesh/geom"
 	"tearline/solver/fem"
+	"tearline/solver/material"
 )
 
 // CrackLabel is the boundary label of crack faces created by removing
@@ -75,22 +76,22 @@ type Carved struct {
 	Kept     [][]bool
 }
 
-// BrokenElements marks the elements all of whose Gauss points are broken
-// (DESIGN.md §3: such an element leaves the geometry at the next remesh).
+// BrokenElements marks the broken elements (fem.ElementBroken: more than
+// half of their Gauss points broken); they leave the geometry at the next
+// remesh (DESIGN.md §3).
+
 func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 	if gp == nil || gp.PerElement <= 0 || len(gp.Points)%gp.PerElement != 0 {
 		return nil, fmt.Errorf("remesh: broken elements: %d Gauss points do not fill elements of %d points", lenPoints(gp), perElement(gp))
 	}
 	ne := len(gp.Points) / gp.PerElement
 	out := make([]bool, ne)
+	st := make([]material.State, gp.PerElement)
 	for e := range out {
-		out[e] = true
-		for i := 0; i < gp.PerElement; i++ {
-			if !gp.At(e, i).State.Broken {
-				out[e] = false
-				break
-			}
+		for i := range st {
+			st[i] = gp.At(e, i).State
 		}
+		out[e] = fem.ElementBroken(st)
 	}
 	return out, nil
 }

@@ -193,6 +193,28 @@ func (c *Cycle) straightenElement(e int) bool {
 // errInverted: the transferred displacement inverts an element.
 var errInverted = errors.New("transferred displacement inverts the element")
 
+// yieldStress is the current yield stress of GTN point g of element e
+// with cumulative plastic strain p: A = R(p) + λ + r(p − ā) with the
+// interpolated nodal ā and λ of the regularised model, R(p) otherwise.
+func (c *Cycle) yieldStress(m *material.GTN, e, g int, p float64) float64 {
+	par := m.Params()
+	a, _ := par.Hardening.Flow(p)
+	if !c.Prob.Regularised() {
+		return a
+	}
+	rule := fem.ElementRule()
+	var abar, lam float64
+	for k := 0; k < 3; k++ {
+		n := c.Mesh.Tri[e][k]
+		v, _ := c.Prob.Nodal(c.Prob.Committed, n, fem.Abar)
+		l, _ := c.Prob.Nodal(c.Prob.Committed, n, fem.Lambda)
+		abar += rule.L[g][k] * v
+		lam += rule.L[g][k] * l
+	}
+	_, r := m.Regularisation()
+	return a + lam + r*(p-abar)
+}
+
 // maxRepairs bounds the points settleTransferred may repair in one remesh.
 const maxRepairs = 200
 
@@ -231,9 +253,17 @@ func (c *Cycle) settleTransferred() (int, error) {
 		if err2 != nil {
 			return n, err
 		}
-		changed, err2 := admissibleElastic(gtn, s, E)
-		if err2 != nil || !changed {
+		flow := c.yieldStress(gtn, ee.Elem, ee.Point, s.P)
+		changed, err2 := admissibleElastic(gtn, s, E, flow)
+		if err2 != nil {
 			return n, err
+		}
+		if !changed {
+			// inside the surface by this measure and still failing:
+			// release half of the elastic strain and try again
+			for k := 0; k < 4; k++ {
+				s.Ep[k] = 0.5 * (s.Ep[k] + E[k])
+			}
 		}
 		if err := c.Prob.SetState(fixed); err != nil {
 			return n, err
@@ -252,7 +282,7 @@ func (c *Cycle) settleTransferred() (int, error) {
 // boundary-layer case). It is applied only to points whose update fails:
 // applied to every point outside, it changed 220 points of a converged
 // plastic disk and its re-equilibration failed.
-func admissibleElastic(m *material.GTN, s *material.State, E material.Sym) (bool, error) {
+func admissibleElastic(m *material.GTN, s *material.State, E material.Sym, flow float64) (bool, error) {
 	par := m.Params()
 	el := par.Elastic
 	mu := el.Young / (2 * (1 + el.Poisson))
@@ -273,7 +303,7 @@ func admissibleElastic(m *material.GTN, s *material.State, E material.Sym) (bool
 	if err != nil {
 		return false, err
 	}
-	r, _ := par.Hardening.Flow(s.P)
+	r := math.Max(flow, 1e-3*m.Sigma0())
 	if !(seff > r) {
 		return false, nil
 	}
@@ -462,11 +492,11 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	if err != nil {
 		return nil, err
 	}
-	st, err := s.Increment(t)
+	its, err := c.reequilibrate(s, t)
+	rr.Iterations = its
 	if err != nil {
-		return nil, fmt.Errorf("re-equilibration at t = %g: %w", t, err)
+		return nil, fmt.Errorf("re-equilibration at load factor %g: %w", t, err)
 	}
-	rr.Iterations = st.Iterations
 	rr.EquilWall = time.Since(t0)
 	if _, rr.ForceAfter, err = c.Cfg.Measure(c.Prob); err != nil {
 		return nil, err
@@ -476,4 +506,43 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	c.Remeshes++
 	done = true
 	return rr, nil
+}
+
+// reequilibrate brings the transferred state into equilibrium at load
+// factor load: one increment to the same load, or — when that fails (a
+// full Newton solve against the whole out-of-balance force inverts
+// elements at a blunted, softening tip) — by relaxing the out-of-balance
+// force r₀ of the transferred state in steps, R(u) = (1 − s)·r₀ for s
+// rising to 1 (common practice: incremental release of the residual
+// forces after a mesh change). It returns the Newton iterations spent.
+func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
+	st, err := s.Increment(load)
+	its := st.Iterations
+	if err == nil {
+		return its, nil
+	}
+	first := err
+	p := c.Prob
+	if err := p.Assemble(false); err != nil {
+		return its, first
+	}
+	if err := p.SetImbalance(p.Res, 1); err != nil {
+		return its, err
+	}
+	defer p.SetImbalance(nil, 0)
+	done, ds := 0.0, 0.25
+	for done < 1 {
+		next := math.Min(1, done+ds)
+		p.SetImbalanceScale(1 - next)
+		st, err := s.Increment(load)
+		its += st.Iterations
+		if err != nil {
+			if ds /= 2; ds < 1.0/256 {
+				return its, fmt.Errorf("%v; relaxing the out-of-balance force stopped at %.1f%%: %w", first, 100*done, err)
+			}
+			continue
+		}
+		done = next
+	}
+	return its, nil
 }

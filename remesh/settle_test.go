@@ -50,7 +50,8 @@ func TestAdmissibleElastic(t *testing.T) {
 			s.Ep[k] = E[k] - c.ee[k]
 		}
 		before := s.Ep
-		changed, err := admissibleElastic(m, &s, E)
+		r, _ := par.Hardening.Flow(s.P)
+		changed, err := admissibleElastic(m, &s, E, r)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -62,7 +63,6 @@ func TestAdmissibleElastic(t *testing.T) {
 		for k := 0; k < 4; k++ {
 			ee[k] = E[k] - s.Ep[k]
 		}
-		r, _ := par.Hardening.Flow(s.P)
 		got := sigmaStar(ee, s.F)
 		if c.change {
 			if math.Abs(got-r) > 1e-9*r {

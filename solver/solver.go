@@ -75,6 +75,15 @@ type Options struct {
 	// Linear is the linear solver; nil means an equilibrated sparse.LU
 	// with its default options.
 	Linear LinearSolver
+	// StrainCap, if > 0, limits a Newton correction to at most this
+	// change of strain: where the relative displacement correction of the
+	// corners of an active element, |Δu_a − Δu_b|/|X_a − X_b|, exceeds it
+	// anywhere, the whole correction is scaled down to it (damped Newton,
+	// common practice). Near a solution corrections are tiny and the
+	// quadratic convergence is untouched; far from it — a nearly released
+	// element at a breaking tip, whose stiffness is almost lost — it stops
+	// one correction from inverting elements.
+	StrainCap float64
 	// Failed, if not nil, hears of every failed attempt (the increment
 	// from t that was tried and why it failed) before the cut-back.
 	Failed func(t, dt float64, err error)
@@ -86,7 +95,7 @@ type Options struct {
 // failure, line search on (4 trials), divergence at 1e6×, extrapolation on.
 func DefaultOptions() Options {
 	return Options{
-		TEnd: 1, Dt: 0.1, DtMin: 1e-6, DtMax: 1, MaxSteps: 100000, MaxIter: 15,
+		TEnd: 1, Dt: 0.1, DtMin: 1e-6, DtMax: 1, MaxSteps: 100000, MaxIter: 15, StrainCap: 0.25,
 		RTol: 1e-6, UTol: 1e-4, TightFactor: 1e-3, Grow: 1.5, EasyIter: 4, Cut: 0.5,
 		LineSearch: true, LineSearchMax: 4, Diverge: 1e6, Extrapolate: true,
 	}
@@ -123,6 +132,8 @@ func (o Options) Validate() error {
 		return fmt.Errorf("solver options: Cut = %g must be in (0, 1)", o.Cut)
 	case o.LineSearch && (o.LineSearchMax < 1 || o.LineSearchMax > 50):
 		return fmt.Errorf("solver options: LineSearchMax = %d must be in [1, 50]", o.LineSearchMax)
+	case !(o.StrainCap >= 0) || math.IsInf(o.StrainCap, 0):
+		return fmt.Errorf("solver options: StrainCap = %g must be finite and ≥ 0 (0 = no cap)", o.StrainCap)
 	case !(o.TightFactor <= 1):
 		return fmt.Errorf("solver options: TightFactor = %g must be ≤ 1", o.TightFactor)
 	}
@@ -311,6 +322,7 @@ func (s *Solver) newton(t float64) (int, error) {
 	m0 := s.merit(p.Res)
 	s.history = append(s.history, m0)
 	first := true
+	lastCap := -10 // the last iteration whose correction was capped
 	for it := 0; ; it++ {
 		conv := s.converged(!first) && s.controlResidual(t) <= o.UTol
 		if conv {
@@ -338,6 +350,16 @@ func (s *Solver) newton(t float64) (int, error) {
 		for _, v := range s.du {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return it, &attemptError{reason: "Newton correction is not finite"}
+			}
+		}
+		if o.StrainCap > 0 {
+			if c := s.strainCorrection(); c > o.StrainCap {
+				lastCap = it
+				f := o.StrainCap / c
+				for i := range s.du {
+					s.du[i] *= f
+				}
+				dLoad *= f
 			}
 		}
 		load0 := p.T
@@ -395,7 +417,7 @@ func (s *Solver) newton(t float64) (int, error) {
 		// Stagnation: a Newton iteration that converges reduces the
 		// residual many times over in three iterations; one that has not
 		// halved it by then is not worth finishing (common practice).
-		if h := s.history; len(h) > stagnantAfter && m > 0.5*h[len(h)-4] {
+		if h := s.history; len(h) > stagnantAfter && it-lastCap > 3 && m > 0.5*h[len(h)-4] {
 			return it + 1, &attemptError{reason: fmt.Sprintf("stagnation: scaled residual %.3g after %d iterations, %.3g three iterations before", m, it+1, h[len(h)-4])}
 		}
 		if alpha < 1 {
@@ -405,6 +427,30 @@ func (s *Solver) newton(t float64) (int, error) {
 		}
 		first = false
 	}
+}
+
+// strainCorrection is the largest relative displacement correction of the
+// corners of an active element.
+func (s *Solver) strainCorrection() float64 {
+	p := s.P
+	var m float64
+	for e, t := range p.Mesh.Tri {
+		if p.Broken(e) {
+			continue
+		}
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			xa, xb := p.Mesh.X[a], p.Mesh.X[b]
+			l := math.Hypot(xa[0]-xb[0], xa[1]-xb[1])
+			ax, ay := p.Dofs.Of(a, fem.Ux), p.Dofs.Of(a, fem.Uy)
+			bx, by := p.Dofs.Of(b, fem.Ux), p.Dofs.Of(b, fem.Uy)
+			d := math.Hypot(s.du[ax]-s.du[bx], s.du[ay]-s.du[by])
+			if l > 0 && d > m*l {
+				m = d / l
+			}
+		}
+	}
+	return m
 }
 
 // stagnantAfter is the number of iterations before the stagnation test

@@ -5,6 +5,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strconv"
 	"testing"
 )
 
@@ -30,5 +31,54 @@ func BenchmarkElasticRun100k(b *testing.B) {
 		}
 		b.ReportMetric(float64(s.PeakDofs), "unknowns")
 		b.ReportMetric(s.PeakRSSMB, "peak-MB")
+	}
+}
+
+// BenchmarkSSYRun runs testdata/ssy.toml as it stands (adaptive, to its
+// stop.da) and reports the wall time, the median Newton iterations per
+// step (target ≤ 6), the steps, remeshes, final Δa, peak unknowns and peak
+// memory. About 15 minutes per run on two cores: use -benchtime 1x.
+func BenchmarkSSYRun(b *testing.B) {
+	for i := 0; i < b.N; i++ {
+		reportRun(b, runFolder(b, "../../testdata/ssy.toml"))
+	}
+}
+
+// BenchmarkSSYLong is the long version of V14: ssy.toml to Δa = 30ℓ,
+// adaptive and on the fixed mesh fine along 32ℓ of path (mesh.ahead),
+// one sub-benchmark each; the figures go into DEVELOPERS.md. Hours on two
+// cores: use -benchtime 1x and run the sub-benchmarks one at a time.
+func BenchmarkSSYLong(b *testing.B) {
+	long := []string{"stop.da=3.0", "mesh.ahead=3.2"}
+	for _, c := range []struct {
+		name string
+		sets []string
+	}{
+		{"adaptive", long},
+		{"fixed", append(append([]string(nil), long...), "adapt.enabled=false")},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				r := runFolder(b, "../../testdata/ssy.toml", c.sets...)
+				reportRun(b, r)
+				for _, n := range []float64{2, 5, 10, 20, 30} {
+					b.ReportMetric(r.jAt(n*0.1), "J@"+strconv.Itoa(int(n))+"ℓ")
+				}
+			}
+		})
+	}
+}
+
+// reportRun reports a run's summary figures as benchmark metrics.
+func reportRun(b *testing.B, r runRecord) {
+	b.ReportMetric(r.sum.WallSeconds, "wall-s")
+	b.ReportMetric(r.sum.MedianIters, "median-iters")
+	b.ReportMetric(float64(r.sum.Steps), "steps")
+	b.ReportMetric(float64(r.sum.Remeshes), "remeshes")
+	b.ReportMetric(r.sum.FinalDa, "final-da")
+	b.ReportMetric(float64(r.sum.PeakDofs), "unknowns")
+	b.ReportMetric(r.sum.PeakRSSMB, "peak-MB")
+	if r.sum.Status != "completed" {
+		b.Logf("run %s: %s", r.sum.Status, r.sum.Reason)
 	}
 }

@@ -213,6 +213,11 @@ func (p *Problem) Assemble(tangent bool) error {
 		p.Full[d] -= p.T * p.fext[d]
 	}
 	p.assembleFollower(tangent)
+	if p.imbalance != nil && p.imbScale != 0 {
+		for d, v := range p.imbalance {
+			p.Full[d] -= p.imbScale * v
+		}
+	}
 	p.refreshConstraints(true)
 	copy(p.Res, p.Full)
 	for _, d := range p.Full {
