@@ -76,10 +76,9 @@ type Carved struct {
 	Kept     [][]bool
 }
 
-// BrokenElements marks the broken elements (fem.ElementBroken: more than
-// half of their Gauss points broken); they leave the geometry at the next
-// remesh (DESIGN.md §3).
-
+// BrokenElements marks the broken elements (fem.ElementBroken: all their
+// Gauss points broken); they leave the geometry at the next remesh
+// (DESIGN.md §3).
 func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 	if gp == nil || gp.PerElement <= 0 || len(gp.Points)%gp.PerElement != 0 {
 		return nil, fmt.Errorf("remesh: broken elements: %d Gauss points do not fill elements of %d points", lenPoints(gp), perElement(gp))

@@ -254,6 +254,16 @@ func (c *Cycle) settleTransferred() (int, error) {
 			return n, err
 		}
 		flow := c.yieldStress(gtn, ee.Elem, ee.Point, s.P)
+		if r, _ := gtn.Params().Hardening.Flow(s.P); c.Prob.Regularised() && flow < 0.5*r {
+			// The interpolated multiplier field (λ swings by ±10σ₀ between
+			// neighbouring nodes next to a softening zone) leaves no
+			// elastic range, A = R + λ + r(p − ā) ≤ 0. λ and ā are
+			// unknowns, not history: restart them at the element's
+			// corners from the local solution ā = p, λ = 0, and let the
+			// re-equilibration find them.
+			c.localRegularisation(ee.Elem, s.P)
+			continue
+		}
 		changed, err2 := admissibleElastic(gtn, s, E, flow)
 		if err2 != nil {
 			return n, err
@@ -545,4 +555,19 @@ func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
 		done = next
 	}
 	return its, nil
+}
+
+// localRegularisation sets ā = p and λ = 0 at the corners of element e in
+// the current and committed unknowns.
+func (c *Cycle) localRegularisation(e int, p float64) {
+	pr := c.Prob
+	for k := 0; k < 3; k++ {
+		n := c.Mesh.Tri[e][k]
+		if d := pr.Dofs.Of(n, fem.Abar); d >= 0 {
+			pr.Committed[d], pr.U[d] = p, p
+		}
+		if d := pr.Dofs.Of(n, fem.Lambda); d >= 0 {
+			pr.Committed[d], pr.U[d] = 0, 0
+		}
+	}
 }

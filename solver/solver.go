@@ -77,8 +77,8 @@ type Options struct {
 	Linear LinearSolver
 	// StrainCap, if > 0, limits a Newton correction to at most this
 	// change of strain: where the relative displacement correction of the
-	// corners of an active element, |Δu_a − Δu_b|/|X_a − X_b|, exceeds it
-	// anywhere, the whole correction is scaled down to it (damped Newton,
+	// corners of an active element, |Δu_a − Δu_b|/|X_a − X_b|, or the
+	// correction of the volume variable θ or of ā exceeds it anywhere, the whole correction is scaled down to it (damped Newton,
 	// common practice). Near a solution corrections are tiny and the
 	// quadratic convergence is untouched; far from it — a nearly released
 	// element at a breaking tip, whose stiffness is almost lost — it stops
@@ -92,7 +92,8 @@ type Options struct {
 // DefaultOptions returns the defaults: t from 0 to 1 in a first increment
 // of 0.1 (0.1 ≤ Δt ≤ 1 adaptively, down to 1e-6), 15 iterations, RTol 1e-6,
 // UTol 1e-4, TightFactor 1e-3, growth 1.5 after ≤ 4 iterations, halving on
-// failure, line search on (4 trials), divergence at 1e6×, extrapolation on.
+// failure, line search on (4 trials), divergence at 1e6×, extrapolation on,
+// corrections capped at a strain change of 0.25.
 func DefaultOptions() Options {
 	return Options{
 		TEnd: 1, Dt: 0.1, DtMin: 1e-6, DtMax: 1, MaxSteps: 100000, MaxIter: 15, StrainCap: 0.25,
@@ -448,6 +449,12 @@ func (s *Solver) strainCorrection() float64 {
 			if l > 0 && d > m*l {
 				m = d / l
 			}
+		}
+	}
+	// θ and ā are strains themselves
+	for d, v := range s.du {
+		if f := p.Dofs.FieldOf[d]; f == fem.Theta || f == fem.Abar {
+			m = math.Max(m, math.Abs(v))
 		}
 	}
 	return m
