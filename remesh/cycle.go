@@ -382,7 +382,7 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 		rec.MaxPorosity = math.Max(rec.MaxPorosity, gp.Points[i].State.F)
 	}
 	if k := c.Cfg.KField; k != nil {
-		rec.JFar = criteria.FarFieldJ(k.K*p.TCommitted, k.El)
+		rec.JFar = criteria.FarFieldJMixed(k.K*p.TCommitted, k.KII*p.TCommitted, k.El)
 	}
 	if len(c.Seeds) == 0 {
 		return rec, nil

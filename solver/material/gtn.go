@@ -479,22 +479,25 @@ func (m *GTN) nucleation(p float64) (aN, daN float64) {
 }
 
 // flowFloor keeps the flow stress of the regularised model positive:
-// A_eff = A above a₀ = 0.05σ₀ and a₀·exp((A − a₀)/a₀) below, which is C¹
-// and tends to zero as A → −∞; s is dA_eff/dA. The gradient term
-// λ ≈ −cΔā can push A = R + λ + r(p − ā) below zero at the edge of a
-// localisation band next to broken material, where the continuum has no
-// meaning left; without the floor the integration fails there at every
-// increment size. (Our choice; no single source.)
+// A_eff = A above a₀ = 0.05σ₀ and a_min + (a₀ − a_min)·exp((A − a₀)/(a₀ − a_min))
+// below, with a_min = 0.01σ₀: C¹ at a₀ and never below a_min; s is
+// dA_eff/dA. The gradient term λ ≈ −cΔā can push A = R + λ + r(p − ā)
+// below zero at the edge of a localisation band next to broken material,
+// where the continuum has no meaning left; without the floor the
+// integration fails there at every increment size. A floor tending to
+// zero (the first version) still failed there: a point left with a yield
+// stress of 10⁻¹⁸σ₀ yields at any stress and its local Newton iteration
+// does not converge (measured on the boundary-layer case and the V10
+// notched bar). (Our choice; no single source.)
 func (m *GTN) flowFloor(a float64) (aEff, s float64) {
-	a0 := 0.05 * m.sigma0
+	a0, amin := 0.05*m.sigma0, 0.01*m.sigma0
 	if a >= a0 {
 		return a, 1
 	}
-	s = math.Exp((a - a0) / a0)
-	return a0 * s, s
+	s = math.Exp((a - a0) / (a0 - amin))
+	return amin + (a0-amin)*s, s
 }
 
-// zeroFlow returns the first unknown for Δε_p = 0 at the given Δp.
 func (lp *gtnLocal) zeroFlow(u3 float64) float64 {
 	if !lp.logF {
 		return 0
