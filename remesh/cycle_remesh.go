@@ -113,9 +113,9 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 			if s.Broken {
 				continue
 			}
-			E, err := c.materialStrain(e, g, mixed)
+			E, err := c.materialStrain(e, g, rule.L[g], mixed)
 			if errors.Is(err, errInverted) && c.straightenElement(e) {
-				E, err = c.materialStrain(e, g, mixed)
+				E, err = c.materialStrain(e, g, rule.L[g], mixed)
 			}
 			if err != nil {
 				return err
@@ -141,12 +141,11 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 	return c.Prob.SetState(fixed)
 }
 
-// materialStrain is the log strain the material sees at point g of element
-// e in the committed unknowns: with its trace replaced by the volume
+// materialStrain is the log strain the material sees at point g (at
+// barycentric coordinates l) of element e in the committed unknowns: with its trace replaced by the volume
 // variable θ in the three-field element.
-func (c *Cycle) materialStrain(e, g int, mixed bool) (material.Sym, error) {
-	rule := fem.ElementRule()
-	F, err := c.Prob.DeformationGradient(e, rule.L[g], c.Prob.Committed)
+func (c *Cycle) materialStrain(e, g int, l [3]float64, mixed bool) (material.Sym, error) {
+	F, err := c.Prob.DeformationGradient(e, l, c.Prob.Committed)
 	if err != nil {
 		return material.Sym{}, err
 	}
@@ -155,12 +154,7 @@ func (c *Cycle) materialStrain(e, g int, mixed bool) (material.Sym, error) {
 		return E, fmt.Errorf("element %d point %d: %w", e, g, errInverted)
 	}
 	if mixed {
-		theta := 0.0
-		for k := 0; k < 3; k++ {
-			v, _ := c.Prob.Nodal(c.Prob.Committed, c.Mesh.Tri[e][k], fem.Theta)
-			theta += rule.L[g][k] * v
-		}
-		d := (theta - E.Trace()) / 3
+		d := (c.atPoint(e, l, fem.Theta) - E.Trace()) / 3
 		E[0], E[1], E[2] = E[0]+d, E[1]+d, E[2]+d
 	}
 	return E, nil
@@ -212,7 +206,7 @@ func (c *Cycle) projectVolume() error {
 			continue
 		}
 		for g := 0; g < rule.Len(); g++ {
-			E, err := c.materialStrain(e, g, false)
+			E, err := c.materialStrain(e, g, rule.L[g], false)
 			if err != nil {
 				continue // inverted: settleTransferred straightens it later
 			}
@@ -239,26 +233,29 @@ func (c *Cycle) projectVolume() error {
 // errInverted: the transferred displacement inverts an element.
 var errInverted = errors.New("transferred displacement inverts the element")
 
-// yieldStress is the current yield stress of GTN point g of element e
+// yieldStress is the current yield stress of the GTN point at barycentric
+// coordinates l of element e
 // with cumulative plastic strain p: A = R(p) + λ + r(p − ā) with the
 // interpolated nodal ā and λ of the regularised model, R(p) otherwise.
-func (c *Cycle) yieldStress(m *material.GTN, e, g int, p float64) float64 {
+func (c *Cycle) yieldStress(m *material.GTN, e int, l [3]float64, p float64) float64 {
 	par := m.Params()
 	a, _ := par.Hardening.Flow(p)
 	if !c.Prob.Regularised() {
 		return a
 	}
-	rule := fem.ElementRule()
-	var abar, lam float64
-	for k := 0; k < 3; k++ {
-		n := c.Mesh.Tri[e][k]
-		v, _ := c.Prob.Nodal(c.Prob.Committed, n, fem.Abar)
-		l, _ := c.Prob.Nodal(c.Prob.Committed, n, fem.Lambda)
-		abar += rule.L[g][k] * v
-		lam += rule.L[g][k] * l
-	}
 	_, r := m.Regularisation()
-	return a + lam + r*(p-abar)
+	return a + c.atPoint(e, l, fem.Lambda) + r*(p-c.atPoint(e, l, fem.Abar))
+}
+
+// atPoint is the committed corner field f (θ, ā, λ: linear on the
+// element) at barycentric coordinates l of element e.
+func (c *Cycle) atPoint(e int, l [3]float64, f fem.Field) float64 {
+	var v float64
+	for k := 0; k < 3; k++ {
+		x, _ := c.Prob.Nodal(c.Prob.Committed, c.Mesh.Tri[e][k], f)
+		v += l[k] * x
+	}
+	return v
 }
 
 // maxRepairs bounds the points settleTransferred may repair in one remesh.
@@ -271,6 +268,7 @@ const maxRepairs = 200
 // repeated. It returns the number of points repaired.
 func (c *Cycle) settleTransferred() (int, error) {
 	gtn, _ := c.Cfg.Material.(*material.GTN)
+	rule := fem.ElementRule()
 	for n := 0; ; n++ {
 		err := c.Prob.Assemble(false)
 		var ee *fem.ElementError
@@ -295,11 +293,12 @@ func (c *Cycle) settleTransferred() (int, error) {
 		copy(fixed, st)
 		fixed[ee.Elem] = append([]material.State(nil), st[ee.Elem]...)
 		s := &fixed[ee.Elem][ee.Point]
-		E, err2 := c.materialStrain(ee.Elem, ee.Point, c.Prob.Mixed())
+		l := rule.L[ee.Point]
+		E, err2 := c.materialStrain(ee.Elem, ee.Point, l, c.Prob.Mixed())
 		if err2 != nil {
 			return n, err
 		}
-		flow := c.yieldStress(gtn, ee.Elem, ee.Point, s.P)
+		flow := c.yieldStress(gtn, ee.Elem, l, s.P)
 		if r, _ := gtn.Params().Hardening.Flow(s.P); c.Prob.Regularised() && flow < 0.5*r {
 			// The interpolated multiplier field (λ swings by ±10σ₀ between
 			// neighbouring nodes next to a softening zone) leaves no
@@ -339,23 +338,11 @@ func (c *Cycle) settleTransferred() (int, error) {
 // applied to every point outside, it changed 220 points of a converged
 // plastic disk and its re-equilibration failed.
 func admissibleElastic(m *material.GTN, s *material.State, E material.Sym, flow float64) (bool, error) {
-	par := m.Params()
-	el := par.Elastic
-	mu := el.Young / (2 * (1 + el.Poisson))
-	lam := el.Young * el.Poisson / ((1 + el.Poisson) * (1 - 2*el.Poisson))
 	var ee material.Sym
 	for k := 0; k < 4; k++ {
 		ee[k] = E[k] - s.Ep[k]
 	}
-	tr := ee.Trace()
-	var tau material.Sym
-	for k := 0; k < 4; k++ {
-		tau[k] = 2 * mu * ee[k]
-	}
-	for k := 0; k < 3; k++ {
-		tau[k] += lam * tr
-	}
-	seff, err := m.EffectiveStress(tau, s.F)
+	seff, err := m.EffectiveStress(m.Params().Elastic.Stress(ee), s.F)
 	if err != nil {
 		return false, err
 	}

@@ -78,8 +78,9 @@ type Options struct {
 	// StrainCap, if > 0, limits a Newton correction to at most this
 	// change of strain: where the relative displacement correction of the
 	// corners of an active element, |Δu_a − Δu_b|/|X_a − X_b|, or the
-	// correction of the volume variable θ or of ā exceeds it anywhere, the whole correction is scaled down to it (damped Newton,
-	// common practice). Near a solution corrections are tiny and the
+	// correction of the volume variable θ or of ā exceeds it anywhere,
+	// the whole correction is scaled down to it (damped Newton, common
+	// practice). Near a solution corrections are tiny and the
 	// quadratic convergence is untouched; far from it — a nearly released
 	// element at a breaking tip, whose stiffness is almost lost — it stops
 	// one correction from inverting elements.
@@ -281,10 +282,7 @@ func (s *Solver) Increment(t float64) (Step, error) {
 func (s *Solver) newton(t float64) (int, error) {
 	p, o := s.P, s.Opt
 	p.Rollback()
-	load := t // under a Control the load factor starts from its committed value
-	if s.ctl != nil {
-		load = p.TCommitted
-	}
+	load := s.startLoad(t)
 	extrapolated := false
 	if dt := t - s.Time(); o.Extrapolate && s.dtPrev > 0 && dt > 0 {
 		extrapolated = true
@@ -304,11 +302,7 @@ func (s *Solver) newton(t float64) (int, error) {
 			return 0, &attemptError{"assembly at the start of the increment failed", err}
 		}
 		p.Rollback()
-		load = t
-		if s.ctl != nil {
-			load = p.TCommitted
-		}
-		p.SetTime(load)
+		p.SetTime(s.startLoad(t))
 		if err := p.Assemble(true); err != nil {
 			return 0, &attemptError{"assembly at the start of the increment failed", err}
 		}
@@ -430,8 +424,18 @@ func (s *Solver) newton(t float64) (int, error) {
 	}
 }
 
+// startLoad is the load factor an attempt to pseudo-time t starts from,
+// before extrapolation: t itself, or under a Control the committed load
+// factor (the constraint finds the new one).
+func (s *Solver) startLoad(t float64) float64 {
+	if s.ctl != nil {
+		return s.P.TCommitted
+	}
+	return t
+}
+
 // strainCorrection is the largest relative displacement correction of the
-// corners of an active element.
+// corners of an active element, or the largest θ or ā correction.
 func (s *Solver) strainCorrection() float64 {
 	p := s.P
 	var m float64

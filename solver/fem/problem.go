@@ -542,11 +542,10 @@ func (p *Problem) LoadScale() float64 {
 // broken was tried: the abrupt release of the remaining stress made the
 // neighbours' return mapping fail on the boundary-layer case.)
 func ElementBroken(s []material.State) bool {
-	n := 0
 	for i := range s {
-		if s[i].Broken {
-			n++
+		if !s[i].Broken {
+			return false
 		}
 	}
-	return n == len(s)
+	return true
 }

@@ -31,6 +31,15 @@ func (e Elastic) Lame() (lambda, mu float64) {
 	return lambda, mu
 }
 
+// Stress returns the Kirchhoff stress of the Hencky law at the elastic
+// logarithmic strain ee: τ = λ tr(ee) I + 2μ ee.
+func (e Elastic) Stress(ee Sym) Sym {
+	l, m := e.Lame()
+	var t Sym
+	hookeStress(l, m, ee, &t)
+	return t
+}
+
 // Bulk returns the bulk modulus K = E/(3(1−2ν)).
 func (e Elastic) Bulk() float64 { return e.Young / (3 * (1 - 2*e.Poisson)) }
 
