@@ -104,6 +104,11 @@ func TestBadInput(t *testing.T) {
 		{"unknown --set key", goodElastic, []string{"mesh.h_tiny=1"}, []string{"--set mesh.h_tiny=1", "unknown key"}},
 		{"bad --set value", goodElastic, []string{"mesh.h_far=[1,2]"}, []string{"--set mesh.h_far=[1,2]"}},
 		{"--set without section", goodElastic, []string{"h_far=1"}, []string{"section.key"}},
+		{"unknown control", goodElastic, []string{`loading.control="arc"`}, []string{"loading.control", "opening"}},
+		{"opening control without opening", goodElastic, []string{`loading.control="opening"`}, []string{"loading.opening", "positive"}},
+		{"opening point off the crack faces", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", "loading.opening_at=20"},
+			[]string{"loading.opening_at", "no straight crack face"}},
+		{"opening without control", goodElastic, []string{"loading.opening=0.1"}, []string{"loading.opening", `control = "opening"`}},
 		{"porosity order", strings.Replace(goodElastic, `model = "elastic"`, "model = \"gtn\"\nfc = 0.3\nff = 0.2", 1), nil,
 			[]string{"f0 < fc < ff"}},
 	}
