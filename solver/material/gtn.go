@@ -562,7 +562,13 @@ func (lp *gtnLocal) solve() (u [3]float64, ev gtnEval, err error) {
 			return u, ev, nil
 		}
 	}
-	return lp.iterate([3]float64{lp.zeroFlow(0), 1, 0})
+	if u, ev, err = lp.iterate([3]float64{lp.zeroFlow(0), 1, 0}); err == nil {
+		return u, ev, nil
+	}
+	if ev.ok && ev.f >= lp.m.fBreak {
+		return u, ev, err
+	}
+	return lp.bracketed()
 }
 
 // iterate runs the damped, projected Newton iteration from u0.
@@ -633,6 +639,54 @@ func (lp *gtnLocal) iterate(u0 [3]float64) (u [3]float64, ev gtnEval, err error)
 	return u, ev, errLocalNewton
 }
 
+// gtnTrial is the elastic trial state of a step.
+type gtnTrial struct {
+	ee, t, s Sym     // trial elastic strain, stress and stress deviator
+	sm, q    float64 // trial mean stress and σ_eq²
+	aN       float64 // flow stress A at the start of the step
+	plastic  bool    // the trial stress lies outside the yield surface
+}
+
+// trial returns the elastic trial state. Plastic when σ*(T^tr) > A(p_n),
+// i.e. when the logarithmic yield function is positive at A = A(p_n).
+func (m *GTN) trial(in *Input, old *State) (tr gtnTrial, err error) {
+	for i := range tr.ee {
+		tr.ee[i] = in.E[i] - old.Ep[i]
+	}
+	hookeStress(m.lambda, m.mu, tr.ee, &tr.t)
+	tr.sm = tr.t.Trace() / 3
+	tr.s = Sym{tr.t[0] - tr.sm, tr.t[1] - tr.sm, tr.t[2] - tr.sm, tr.t[3]}
+	tr.q = 1.5 * tr.s.Ddot(tr.s)
+	if !finite(tr.sm) || !finite(tr.q) {
+		return tr, fmt.Errorf("gtn: trial stress not finite (strain %v)", in.E)
+	}
+	aN, _ := m.par.Hardening.Flow(old.P)
+	if !m.local {
+		aN, _ = m.flowFloor(aN + in.Lambda + m.r*(old.P-in.Abar))
+	}
+	if !(aN > 0) {
+		return tr, fmt.Errorf("gtn: flow stress A = R(p) + λ + r(p − ā) = %g must stay > 0 (p = %g, ā = %g, λ = %g)", aN, old.P, in.Abar, in.Lambda)
+	}
+	tr.aN = aN
+	fsN, _ := m.par.FStar(old.F)
+	if tr.q > 0 || fsN > 0 {
+		l, _, _, _ := logYield(tr.q/(aN*aN), 2*m.par.Q1*fsN, 1.5*m.par.Q2*tr.sm/aN)
+		tr.plastic = l-math.Log(1+m.par.Q1*m.par.Q1*fsN*fsN) > 0
+	}
+	return tr, nil
+}
+
+// localProblem sets up the local return-mapping problem of a plastic trial
+// state.
+func (m *GTN) localProblem(tr *gtnTrial, in *Input, old *State) gtnLocal {
+	lp := gtnLocal{m: m, smTr: tr.sm, q: tr.q, pN: old.P, fN: old.F, abar: in.Abar, lamb: in.Lambda, aN: tr.aN,
+		logF: old.F > 0}
+	if math.Abs(tr.sm) > 1e-13*(math.Abs(tr.sm)+math.Sqrt(tr.q)+tr.aN) {
+		lp.sgn = math.Copysign(1, tr.sm)
+	}
+	return lp
+}
+
 // Update integrates one step (see the type documentation). A broken point
 // stays broken with zero stress and tangent. On a local integration failure
 // it returns an error and leaves new and out unspecified, unless the failure
@@ -655,46 +709,20 @@ func (m *GTN) update(in *Input, old, new *State, out *Response, hist *[newtonMax
 		return nil
 	}
 	lam, mu, K := m.lambda, m.mu, m.bulk
-	var ee Sym
-	for i := range ee {
-		ee[i] = in.E[i] - old.Ep[i]
+	tr, err := m.trial(in, old)
+	if err != nil {
+		return err
 	}
-	var tTr Sym
-	hookeStress(lam, mu, ee, &tTr)
-	smTr := tTr.Trace() / 3
-	sTr := Sym{tTr[0] - smTr, tTr[1] - smTr, tTr[2] - smTr, tTr[3]}
-	q := 1.5 * sTr.Ddot(sTr)
-
-	// Trial check: plastic when σ*(T^tr) > A(p_n), i.e. when the logarithmic
-	// yield function is positive at A = A(p_n).
-	if !finite(smTr) || !finite(q) {
-		return fmt.Errorf("gtn: trial stress not finite (strain %v)", in.E)
-	}
-	aN, _ := m.par.Hardening.Flow(old.P)
-	if !m.local {
-		aN, _ = m.flowFloor(aN + in.Lambda + m.r*(old.P-in.Abar))
-	}
-	if !(aN > 0) {
-		return fmt.Errorf("gtn: flow stress A = R(p) + λ + r(p − ā) = %g must stay > 0 (p = %g, ā = %g, λ = %g)", aN, old.P, in.Abar, in.Lambda)
-	}
-	fsN, _ := m.par.FStar(old.F)
-	plastic := false
-	if q > 0 || fsN > 0 {
-		l, _, _, _ := logYield(q/(aN*aN), 2*m.par.Q1*fsN, 1.5*m.par.Q2*smTr/aN)
-		plastic = l-math.Log(1+m.par.Q1*m.par.Q1*fsN*fsN) > 0
-	}
-	if !plastic {
+	ee, tTr, sTr, smTr, q := tr.ee, tr.t, tr.s, tr.sm, tr.q
+	if !tr.plastic {
 		*new = *old
 		*out = Response{T: tTr, P: old.P}
 		hookeTangent(lam, mu, &out.DTdE)
 		out.Energy = 0.5 * tTr.Ddot(ee)
 		return nil
 	}
-	lp := gtnLocal{m: m, smTr: smTr, q: q, pN: old.P, fN: old.F, abar: in.Abar, lamb: in.Lambda, aN: aN, hist: hist,
-		logF: old.F > 0}
-	if math.Abs(smTr) > 1e-13*(math.Abs(smTr)+math.Sqrt(q)+aN) {
-		lp.sgn = math.Copysign(1, smTr)
-	}
+	lp := m.localProblem(&tr, in, old)
+	lp.hist = hist
 	u, ev, err := lp.solve()
 	if nHist != nil {
 		*nHist = lp.nHist
