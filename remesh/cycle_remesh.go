@@ -47,6 +47,8 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 	for k := range f.History {
 		f.History[k] = make([]float64, n)
 	}
+	rule := fem.ElementRule()
+	mixed := c.Prob.Mixed()
 	for i := range gp.Points {
 		g := &gp.Points[i]
 		f.State[i] = g.State
@@ -55,9 +57,11 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 			f.History[1+k][i] = g.F[k]
 			f.History[6+k][i] = g.P[k]
 		}
-		if ee, ok := elasticStrain(g.F, g.State.Ep); ok {
+		// The elastic strain the material saw: in the three-field element
+		// the trace of E is θ, not tr E(F), and σ_m = K(θ − tr Eᵖ).
+		if E, err := c.materialStrain(i/gp.PerElement, i%gp.PerElement, rule.L[i%gp.PerElement], mixed); err == nil {
 			for k := 0; k < 4; k++ {
-				f.History[11+k][i] = ee[k]
+				f.History[11+k][i] = E[k] - g.State.Ep[k]
 			}
 		}
 	}
@@ -73,18 +77,6 @@ func logStrainOf(F [5]float64) (material.Sym, bool) {
 		return material.Sym{}, false
 	}
 	e, _ := material.LogStrain(c)
-	return e, true
-}
-
-// elasticStrain returns Eᵉ = E(F) − Eᵖ.
-func elasticStrain(F [5]float64, ep material.Sym) (material.Sym, bool) {
-	e, ok := logStrainOf(F)
-	if !ok {
-		return material.Sym{}, false
-	}
-	for k := range e {
-		e[k] -= ep[k]
-	}
 	return e, true
 }
 
@@ -233,18 +225,14 @@ func (c *Cycle) projectVolume() error {
 // errInverted: the transferred displacement inverts an element.
 var errInverted = errors.New("transferred displacement inverts the element")
 
-// yieldStress is the current yield stress of the GTN point at barycentric
-// coordinates l of element e
-// with cumulative plastic strain p: A = R(p) + λ + r(p − ā) with the
-// interpolated nodal ā and λ of the regularised model, R(p) otherwise.
+// yieldStress is the current flow stress of the GTN point at barycentric
+// coordinates l of element e with cumulative plastic strain p, with the
+// interpolated nodal ā and λ of the regularised model.
 func (c *Cycle) yieldStress(m *material.GTN, e int, l [3]float64, p float64) float64 {
-	par := m.Params()
-	a, _ := par.Hardening.Flow(p)
 	if !c.Prob.Regularised() {
-		return a
+		return m.FlowStress(p, 0, 0)
 	}
-	_, r := m.Regularisation()
-	return a + c.atPoint(e, l, fem.Lambda) + r*(p-c.atPoint(e, l, fem.Abar))
+	return m.FlowStress(p, c.atPoint(e, l, fem.Abar), c.atPoint(e, l, fem.Lambda))
 }
 
 // atPoint is the committed corner field f (θ, ā, λ: linear on the

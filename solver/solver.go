@@ -412,7 +412,7 @@ func (s *Solver) newton(t float64) (int, error) {
 		// Stagnation: a Newton iteration that converges reduces the
 		// residual many times over in three iterations; one that has not
 		// halved it by then is not worth finishing (common practice).
-		if h := s.history; len(h) > stagnantAfter && it-lastCap > 3 && m > 0.5*h[len(h)-4] {
+		if h := s.history; len(h) > stagnantAfter && it-lastCap > 3 && m > stagnantBelow && m > 0.5*h[len(h)-4] {
 			return it + 1, &attemptError{reason: fmt.Sprintf("stagnation: scaled residual %.3g after %d iterations, %.3g three iterations before", m, it+1, h[len(h)-4])}
 		}
 		if alpha < 1 {
@@ -467,6 +467,15 @@ func (s *Solver) strainCorrection() float64 {
 // stagnantAfter is the number of iterations before the stagnation test
 // applies.
 const stagnantAfter = 6
+
+// stagnantBelow is the scaled residual below which an attempt is never
+// stopped for stagnation: close to convergence, points that break or
+// unload during the iteration slow Newton to a linear rate for a few
+// iterations, and such attempts converged within the iteration limit when
+// let run (measured on the fixed-mesh boundary-layer case at Δa ≈ 5ℓ: an
+// attempt stopped at 9.4e-4 after 11 iterations, and every cut-back after it
+// failed, while the same increment converged in 13 iterations).
+const stagnantBelow = 1e-2
 
 // setScales freezes, for the attempt, the force scale of each field.
 func (s *Solver) setScales() {

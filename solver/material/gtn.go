@@ -341,12 +341,7 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		return
 	}
 	p := lp.pN + u3
-	A, dA := par.Hardening.Flow(p)
-	sA := 1.0 // ∂A_eff/∂A of the flow-stress floor
-	if !m.local {
-		A, sA = m.flowFloor(A + lp.lamb + m.r*(p-lp.abar))
-		dA = sA * (dA + m.r)
-	}
+	A, dA, dAbar, dLambda := m.flowStress(p, lp.abar, lp.lamb)
 	if !(A > 0) {
 		return
 	}
@@ -455,12 +450,8 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		// ∂d/∂y: Q: (0,1,0,0); σ_m: (1,0,0,0); A: (0,0,−r,1) if regularised.
 		ev.ry[i][0] = dd[i][1]
 		ev.ry[i][1] = dd[i][0]
-		if m.local {
-			ev.ry[i][2], ev.ry[i][3] = 0, 0
-		} else {
-			ev.ry[i][2] = -m.r * sA * dd[i][2]
-			ev.ry[i][3] = sA * dd[i][2]
-		}
+		ev.ry[i][2] = dAbar * dd[i][2]
+		ev.ry[i][3] = dLambda * dd[i][2]
 	}
 	ev.sm, ev.a, ev.f, ev.u1 = sm, A, f, u1
 	ev.u1y, ev.u1u3 = u1y, u1u3
@@ -478,24 +469,51 @@ func (m *GTN) nucleation(p float64) (aN, daN float64) {
 	return aN, -aN * z / m.par.SN
 }
 
-// flowFloor keeps the flow stress of the regularised model positive:
-// A_eff = A above a₀ = 0.05σ₀ and a_min + (a₀ − a_min)·exp((A − a₀)/(a₀ − a_min))
-// below, with a_min = 0.01σ₀: C¹ at a₀ and never below a_min; s is
-// dA_eff/dA. The gradient term λ ≈ −cΔā can push A = R + λ + r(p − ā)
-// below zero at the edge of a localisation band next to broken material,
-// where the continuum has no meaning left; without the floor the
-// integration fails there at every increment size. A floor tending to
-// zero (the first version) still failed there: a point left with a yield
-// stress of 10⁻¹⁸σ₀ yields at any stress and its local Newton iteration
-// does not converge (measured on the boundary-layer case and the V10
-// notched bar). (Our choice; no single source.)
-func (m *GTN) flowFloor(a float64) (aEff, s float64) {
-	a0, amin := 0.05*m.sigma0, 0.01*m.sigma0
-	if a >= a0 {
-		return a, 1
+// Flow-stress bound of the regularised model (our choice; no single
+// source): the gradient term may lower the flow stress to floorShare·R(p)
+// and no further, reached smoothly over floorWidth·σ₀.
+const (
+	floorShare = 0.5
+	floorWidth = 0.05
+)
+
+// flowStress returns the flow stress A at matrix plastic strain p with the
+// interpolated ā and λ, and its derivatives with respect to p, ā and λ.
+// Local model: A = R(p). Regularised: A = R(p) + λ + r(p − ā), bounded
+// below by a₁ = αR(p), α = floorShare: with x = R + λ + r(p − ā) and
+// d = floorWidth·σ₀, A = x for x ≥ a₁ + d and A = a₁ + d·exp((x − a₁ − d)/d)
+// below (C¹ at a₁ + d, never below a₁).
+//
+// The gradient term λ ≈ −cΔā is negative at the edges of a localisation
+// band and next to broken material it reaches −10σ₀. Bounded only by a
+// small absolute floor (0.01σ₀, the previous version), the material there
+// yielded at a few MPa: the wake of the crack behaved as a fluid, the
+// Newton corrections asked for relative displacements of order one in it,
+// the strain cap scaled every correction down, and the fixed-mesh
+// boundary-layer run stopped at Δa ≈ 5ℓ with residuals that no increment
+// size reduced. A bound proportional to R keeps the edge softening that
+// sets the band width while the wake keeps its strength.
+func (m *GTN) flowStress(p, abar, lamb float64) (a, dp, dAbar, dLambda float64) {
+	r, dr := m.par.Hardening.Flow(p)
+	if m.local {
+		return r, dr, 0, 0
 	}
-	s = math.Exp((a - a0) / (a0 - amin))
-	return amin + (a0-amin)*s, s
+	x := r + lamb + m.r*(p-abar)
+	lo, d := floorShare*r, floorWidth*m.sigma0
+	if x >= lo+d {
+		return x, dr + m.r, -m.r, 1
+	}
+	s := math.Exp((x - lo - d) / d)
+	// ∂A/∂x = s and ∂A/∂R at fixed x = α(1 − s).
+	return lo + d*s, s*(dr+m.r) + floorShare*(1-s)*dr, -m.r * s, s
+}
+
+// FlowStress returns the flow stress A the model uses at matrix plastic
+// strain p with the non-local ā and multiplier λ at the point (both
+// ignored by the local model); see flowStress.
+func (m *GTN) FlowStress(p, abar, lambda float64) float64 {
+	a, _, _, _ := m.flowStress(p, abar, lambda)
+	return a
 }
 
 func (lp *gtnLocal) zeroFlow(u3 float64) float64 {
@@ -660,10 +678,7 @@ func (m *GTN) trial(in *Input, old *State) (tr gtnTrial, err error) {
 	if !finite(tr.sm) || !finite(tr.q) {
 		return tr, fmt.Errorf("gtn: trial stress not finite (strain %v)", in.E)
 	}
-	aN, _ := m.par.Hardening.Flow(old.P)
-	if !m.local {
-		aN, _ = m.flowFloor(aN + in.Lambda + m.r*(old.P-in.Abar))
-	}
+	aN := m.FlowStress(old.P, in.Abar, in.Lambda)
 	if !(aN > 0) {
 		return tr, fmt.Errorf("gtn: flow stress A = R(p) + λ + r(p − ā) = %g must stay > 0 (p = %g, ā = %g, λ = %g)", aN, old.P, in.Abar, in.Lambda)
 	}

@@ -68,10 +68,7 @@ func (lp *gtnLocal) normality(de, f, a float64) (g, seq float64) {
 func (lp *gtnLocal) bracketAt(u3 float64) bracketPoint {
 	m := lp.m
 	p := lp.pN + u3
-	a, _ := m.par.Hardening.Flow(p)
-	if !m.local {
-		a, _ = m.flowFloor(a + lp.lamb + m.r*(p-lp.abar))
-	}
+	a := m.FlowStress(p, lp.abar, lp.lamb)
 	aN, _ := m.nucleation(p)
 	base := 1 - lp.fN - aN*u3
 	if !(base > 0) || !(a > 0) {

@@ -495,8 +495,10 @@ func tangentCases() []tangentCase {
 		{"regularised coalescence", reg, coal, Sym{0.075, 0.05, 0.035, 0.012}, 0.14, -20, true},
 		{"regularised nucleation", nucReg, State{Ep: ep, P: 0.28, F: 0.012}, Sym{0.012, -0.002, 0.003, 0.006}, 0.3, 15, true},
 		{"regularised j2 perfect", perfReg, State{}, Sym{0.006, -0.002, -0.001, 0.003}, 0.002, 10, true},
-		// λ = −490 brings A = R + λ + r(p − ā) below the floor 0.05σ₀.
-		{"regularised flow-stress floor", reg, worn, Sym{0.006, 0.002, 0.001, 0.003}, 0.03, -490, true},
+		// λ = −285 brings A = R + λ + r(p − ā) into the smooth transition
+		// to its bound 0.5R(p) (∂A/∂x ≈ 0.3); λ = −350 close to the bound.
+		{"regularised flow-stress floor", reg, worn, Sym{0.006, 0.002, 0.001, 0.003}, 0.03, -285, true},
+		{"regularised flow-stress bound", reg, worn, Sym{0.006, 0.002, 0.001, 0.003}, 0.03, -350, true},
 	}
 }
 
