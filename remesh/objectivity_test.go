@@ -96,19 +96,10 @@ func notchedBar(bc barCase) (*barRun, error) {
 		Size:     SizeOptions{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
 		FE:       fem.Options{Kinematics: fem.Axisymmetric},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: bc.Ell,
-		BCs: func(m *fem.Mesh) (fem.BCs, error) {
-			return fem.BCs{
-				Symmetries: []fem.Symmetry{{Label: "symmetry", Comp: 1}, {Label: "axis", Comp: 0}},
-				Displacements: []fem.Displacement{{Label: "end", Fix: [2]bool{false, true},
-					Value: [2]float64{0, v10Elong}}},
-			}, nil
-		},
-		Measure: func(p *fem.Problem) (float64, float64, error) {
-			r, err := p.Reaction("end")
-			return v10Elong * p.TCommitted, r[1], err
-		},
 		Solver: so,
 	}
+	cfg.BCs, cfg.Measure = pulledEdge("end", [2]bool{false, true}, v10Elong,
+		fem.Symmetry{Label: "symmetry", Comp: 1}, fem.Symmetry{Label: "axis", Comp: 0})
 	c, err := NewCycle(cfg)
 	if err != nil {
 		return nil, err
@@ -452,19 +443,10 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 		Domain:   d,
 		Size:     SizeOptions{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
-		BCs: func(m *fem.Mesh) (fem.BCs, error) {
-			return fem.BCs{
-				Symmetries: []fem.Symmetry{{Label: "symmetry", Comp: 1}, {Label: "left", Comp: 0}, {Label: "right", Comp: 0}},
-				Displacements: []fem.Displacement{{Label: "top", Fix: [2]bool{true, true},
-					Value: [2]float64{0, v10ColUy}}},
-			}, nil
-		},
-		Measure: func(p *fem.Problem) (float64, float64, error) {
-			r, err := p.Reaction("top")
-			return v10ColUy * p.TCommitted, r[1], err
-		},
 		Solver: so,
 	}
+	cfg.BCs, cfg.Measure = pulledEdge("top", [2]bool{true, true}, v10ColUy,
+		fem.Symmetry{Label: "symmetry", Comp: 1}, fem.Symmetry{Label: "left", Comp: 0}, fem.Symmetry{Label: "right", Comp: 0})
 	c, err := NewCycle(cfg)
 	if err != nil {
 		return 0, 0, 0, err
@@ -507,3 +489,21 @@ func (o *columnObserver) Step(r *StepRecord, c *Cycle) error {
 }
 
 func (o *columnObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+
+// pulledEdge returns the boundary conditions and the measure of a specimen
+// whose edge label is displaced by uy·t in y (fix says which components
+// are prescribed), with the given symmetry planes: the measure is the
+// edge displacement and its y reaction.
+func pulledEdge(label string, fix [2]bool, uy float64, syms ...fem.Symmetry) (func(*fem.Mesh) (fem.BCs, error), func(*fem.Problem) (float64, float64, error)) {
+	bcs := func(*fem.Mesh) (fem.BCs, error) {
+		return fem.BCs{
+			Symmetries:    syms,
+			Displacements: []fem.Displacement{{Label: label, Fix: fix, Value: [2]float64{0, uy}}},
+		}, nil
+	}
+	measure := func(p *fem.Problem) (float64, float64, error) {
+		r, err := p.Reaction(label)
+		return uy * p.TCommitted, r[1], err
+	}
+	return bcs, measure
+}
