@@ -14,7 +14,7 @@ import (
 
 // checkpointVersion changes whenever the layout below does; an older
 // checkpoint is refused with a clear error rather than misread.
-const checkpointVersion = 2
+const checkpointVersion = 3
 
 // checkpoint is everything a run needs to continue exactly where it was:
 // the mesh, the committed fields and Gauss-point state, the pseudo-time and
@@ -37,6 +37,9 @@ type checkpoint struct {
 	// Prev is the solver's last converged increment (its predictor for
 	// the next one).
 	Prev solver.Previous
+	// Releases are the elements still releasing their force
+	// (fem.Options.ReleaseSteps).
+	Releases []fem.Release
 	// Extra is the caller's own state (the command line keeps its history
 	// bookkeeping there).
 	Extra []byte
@@ -52,7 +55,7 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 	cp := checkpoint{
 		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Tau: c.Tau, Dt: c.Dt,
 		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
-		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra,
+		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra, Releases: c.Prob.Releases(),
 	}
 	if c.solver != nil && c.solver.P == c.Prob {
 		cp.Prev = c.solver.PreviousIncrement()
@@ -94,6 +97,9 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 	}
 	c.PeakDofs = max(c.PeakDofs, cp.PeakDofs)
 	if err := c.install(cp.Fields, cp.T, true); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
+	}
+	if err := c.Prob.SetReleases(cp.Releases); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
 	// Re-evaluate the committed state so that reactions and Gauss-point data

@@ -432,6 +432,12 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	if err != nil {
 		return nil, err
 	}
+	// Elements releasing their force (or done with it) leave with the
+	// broken ones; what force they still held is part of the out-of-balance
+	// force re-equilibration relaxes.
+	for e := range broken {
+		broken[e] = broken[e] || c.Prob.Broken(e)
+	}
 	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
 	if err != nil {
 		return nil, err

@@ -74,6 +74,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	}
 	cfg.FE.DisplacementOnly = !*c.Solver.Mixed
 	cfg.FE.Workers = c.Solver.Workers
+	cfg.FE.ReleaseSteps = *c.Solver.ReleaseSteps
 
 	so := solver.DefaultOptions()
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement
@@ -215,7 +216,7 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 	var base fem.BCs
 	if labels["symmetry"] {
 		axis := 1 // the ligament y = 0 (or the minimum section z = 0)
-		base.Symmetries = append(base.Symmetries, fem.Symmetry{Label: "symmetry", Comp: axis})
+		base.Symmetries = append(base.Symmetries, fem.Symmetry{Label: "symmetry", Comp: axis, CrackPlane: true})
 	}
 	if labels["axis"] {
 		base.Symmetries = append(base.Symmetries, fem.Symmetry{Label: "axis", Comp: 0})

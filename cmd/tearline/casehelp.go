@@ -49,6 +49,8 @@ control      "load" (t scales the load) or "opening" (k_field only: t drives the
 [solver]
 increment, min_increment, max_increment   of the pseudo-time t (defaults 0.02, 1e-6, 0.1)
 max_iterations (15), tolerance (1e-6, relative to each field's force scale), mixed (true: u–θ–P element), workers (0 = all cores)
+release_steps (5): converged steps over which an element with a broken point gives up its force
+             (element vanish); 0 = an element leaves only once all its points are broken
 
 [stop]
 t (1), da (0 = no limit), max_steps, hours (0 = no limit)

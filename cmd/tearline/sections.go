@@ -66,7 +66,14 @@ type solverSection struct {
 	Tolerance    float64 `toml:"tolerance"` // relative residual
 	Mixed        *bool   `toml:"mixed"`     // u–θ–P mixed element (default true)
 	Workers      int     `toml:"workers"`   // goroutines for assembly; 0 = all cores
+	// ReleaseSteps: converged steps over which an element with a broken
+	// point gives up its force (element vanish); 0 = an element leaves
+	// only when all its points are broken.
+	ReleaseSteps *int `toml:"release_steps"`
 }
+
+// defaultReleaseSteps is solver.release_steps when the case does not set it.
+const defaultReleaseSteps = 5
 
 // stopSection is [stop]: when the run ends.
 type stopSection struct {
@@ -282,6 +289,10 @@ func (s *solverSection) complete(src *caseSource) error {
 		t := true
 		s.Mixed = &t
 	}
+	if s.ReleaseSteps == nil {
+		n := defaultReleaseSteps
+		s.ReleaseSteps = &n
+	}
 	if err := checkEach(src, "solver", positive, []keyValue{
 		{"increment", s.Increment},
 		{"min_increment", s.MinIncrement},
@@ -299,6 +310,9 @@ func (s *solverSection) complete(src *caseSource) error {
 	}
 	if s.Workers < 0 {
 		return badInput("%s: %d must be ≥ 0 (0 = all cores)", src.where("solver.workers"), s.Workers)
+	}
+	if n := *s.ReleaseSteps; n < 0 || n > 100 {
+		return badInput("%s: %d must be between 0 and 100 (0 = an element leaves when all its points are broken)", src.where("solver.release_steps"), n)
 	}
 	return nil
 }

@@ -213,6 +213,7 @@ func (p *Problem) Assemble(tangent bool) error {
 		p.Full[d] -= p.T * p.fext[d]
 	}
 	p.assembleFollower(tangent)
+	p.addReleaseForces()
 	if p.imbalance != nil && p.imbScale != 0 {
 		for d, v := range p.imbalance {
 			p.Full[d] -= p.imbScale * v

@@ -47,6 +47,11 @@ type Displacement struct {
 type Symmetry struct {
 	Label string
 	Comp  int
+	// CrackPlane marks a plane the crack grows along (the ligament of a
+	// half model, not an axis of revolution): a node stays held only while
+	// an element in the assembly has an edge on the plane there, and is a
+	// free crack-face node once those elements have left.
+	CrackPlane bool
 }
 
 // Traction is a dead load on a label: the reference traction Value·t plus a
@@ -229,8 +234,22 @@ func (p *Problem) setBCs(b BCs) error {
 			if math.Abs(m.X[n][s.Comp]-x0) > 1e-9*p.size {
 				return fmt.Errorf("%s: label %q is not a straight line with coordinate %d constant (node %d at %v, first at %g)", what, s.Label, s.Comp, n, m.X[n], x0)
 			}
-			if err := add(what, prescribed{dof: p.Dofs.Of(n, Field(s.Comp)), comp: s.Comp, x: m.X[n]}); err != nil {
+			d := p.Dofs.Of(n, Field(s.Comp))
+			_, taken := byDof[d]
+			if err := add(what, prescribed{dof: d, comp: s.Comp, x: m.X[n]}); err != nil {
 				return err
+			}
+			if !taken && s.CrackPlane {
+				p.symDofs = append(p.symDofs, d)
+			}
+		}
+		if !s.CrackPlane {
+			continue
+		}
+		l := m.Label(s.Label)
+		for _, ed := range m.Boundary {
+			if ed.Label == l {
+				p.symEdges = append(p.symEdges, ed)
 			}
 		}
 	}

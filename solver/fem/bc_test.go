@@ -4,6 +4,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"tearline/solver/material"
 )
 
 // TestBadInput: every malformed problem definition is an error value that
@@ -171,5 +173,65 @@ func TestBreakingDuringStep(t *testing.T) {
 	p.refreshConstraints(false)
 	if p.Constrained(d) {
 		t.Errorf("node constrained although the committed state is intact")
+	}
+}
+
+// TestCrackPlaneSymmetry: on a crack-plane symmetry line, a node stays held
+// only while an element in the assembly has an edge on the line there;
+// behind the broken elements it is a free crack-face node (or frozen, when
+// no element in the assembly touches it). Reference: the kinematics of a
+// symmetric half model — the mirror condition u_y = 0 holds on the
+// ligament, the crack faces behind the tip are traction-free (common
+// practice). Without CrackPlane the whole line stays held.
+func TestCrackPlaneSymmetry(t *testing.T) {
+	for _, crack := range []bool{true, false} {
+		m, err := Structured(4, 2, Rectangle(0, 0, 4, 2))
+		if err != nil {
+			t.Fatal(err)
+		}
+		bcs := BCs{Symmetries: []Symmetry{{Label: "bottom", Comp: 1, CrackPlane: crack}}}
+		p, err := NewProblem(m, newHenckyT(200e3, 0.3), Options{}, bcs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bottom := m.Label("bottom")
+		st := make([][]material.State, len(m.Tri))
+		for e := range st {
+			st[e] = make([]material.State, perElem)
+		}
+		for _, ed := range m.Boundary {
+			if ed.Label == bottom && m.X[ed.A][0]+m.X[ed.B][0] < 4 { // edges with x < 2
+				for g := range st[ed.Tri] {
+					st[ed.Tri][g].Broken = true
+				}
+			}
+		}
+		if err := p.SetState(st); err != nil {
+			t.Fatal(err)
+		}
+		touched := make([]bool, len(m.X))
+		for e, tri := range m.Tri {
+			if !p.Broken(e) {
+				for _, n := range tri {
+					touched[n] = true
+				}
+			}
+		}
+		free := 0
+		for _, n := range p.label["bottom"] {
+			x := m.X[n][0]
+			d := p.Dofs.Of(n, Uy)
+			want := true // held, or frozen
+			if crack && x < 2-1e-9 && touched[n] {
+				want = false
+				free++
+			}
+			if got := p.Constrained(d); got != want {
+				t.Errorf("crack plane %v: node at x = %g constrained %v, want %v", crack, x, got, want)
+			}
+		}
+		if crack && free == 0 {
+			t.Errorf("no crack-face node behind the broken elements is free: the test does not probe the release")
+		}
 	}
 }

@@ -39,6 +39,11 @@ type Options struct {
 	DisplacementOnly bool
 	// Workers bounds the goroutines of the assembly; 0 means GOMAXPROCS.
 	Workers int
+	// ReleaseSteps, when positive, is the number of converged steps over
+	// which an element gives up its force once one of its points has
+	// broken (element vanish, see Release). 0 keeps an element in the
+	// assembly until all its points are broken.
+	ReleaseSteps int
 }
 
 // Validate reports an invalid option.
@@ -48,6 +53,9 @@ func (o Options) Validate() error {
 	}
 	if o.Workers < 0 {
 		return fmt.Errorf("fem options: workers %d must be ≥ 0 (0 = all cores)", o.Workers)
+	}
+	if o.ReleaseSteps < 0 {
+		return fmt.Errorf("fem options: release steps %d must be ≥ 0 (0 = an element leaves when all its points are broken)", o.ReleaseSteps)
 	}
 	return nil
 }
@@ -105,6 +113,7 @@ type Problem struct {
 	workers  []worker
 	pool     *pool
 	active   []bool // element takes part in assembly (not broken)
+	release  []Release
 	oldState [][]material.State
 	newState [][]material.State
 	stBack   []material.State
@@ -115,6 +124,9 @@ type Problem struct {
 	pendP         [][5]float64
 	presc         []prescribed
 	fixed         []bool
+	symDofs       []int  // unknowns held only by a crack-plane symmetry condition
+	symEdges      []Edge // boundary edges on symmetry labels
+	symHeld       []bool // per node: on a symmetry edge of an active element
 	frozen        []bool
 	constr        []int // fixed or frozen unknowns
 	touched       []bool
@@ -289,19 +301,27 @@ func (p *Problem) SetTime(t float64) {
 	p.T = t
 	for i := range p.presc {
 		q := &p.presc[i]
-		p.U[q.dof] = q.at(t)
+		if p.fixed[q.dof] { // not a symmetry unknown on the crack faces
+			p.U[q.dof] = q.at(t)
+		}
 	}
 }
 
 // Commit accepts the current iterate as converged: the new material state
 // becomes the old one, the stress work W is accumulated (trapezoidal rule
-// on P:dF), elements whose points are all broken leave the assembly, and
-// unknowns no longer attached to any active element are frozen. The last
-// assembly must have been at p.U.
+// on P:dF), elements whose points are all broken leave the assembly (or,
+// with Options.ReleaseSteps, those with a broken point start releasing
+// their force), and unknowns no longer attached to any active element are
+// frozen. The last assembly must have been at p.U.
 func (p *Problem) Commit() {
+	p.advanceReleases()
 	for e := range p.Mesh.Tri {
 		if !p.active[e] {
 			continue
+		}
+		if p.Opt.ReleaseSteps > 0 && anyBroken(p.newState[e]) && !ElementBroken(p.newState[e]) {
+			p.startRelease(e)
+			p.active[e] = false
 		}
 		for g := 0; g < perElem; g++ {
 			i := e*perElem + g
@@ -366,6 +386,7 @@ func (p *Problem) refreshConstraints(duringStep bool) {
 			touched[n] = true
 		}
 	}
+	p.releaseSymmetry()
 	p.constr = p.constr[:0]
 	for d := range p.frozen {
 		p.frozen[d] = !touched[p.Dofs.NodeOf[d]]
@@ -375,7 +396,37 @@ func (p *Problem) refreshConstraints(duringStep bool) {
 	}
 }
 
-// Broken reports whether element e has left the assembly.
+// releaseSymmetry frees the unknowns of a crack-plane symmetry
+// (Symmetry.CrackPlane) at nodes that no longer lie on a symmetry edge of
+// an active element: once the elements with an edge on
+// the symmetry line there have left the assembly, the crack has passed and
+// the node is on a crack face, even when an intact element still holds it
+// at a vertex. (Held at zero, such a vertex pins its element to the plane
+// while the flank opens, and the element is stretched without bound: the
+// fixed-mesh counterpart of the remesh dropping material held only at a
+// vertex.)
+func (p *Problem) releaseSymmetry() {
+	if len(p.symDofs) == 0 {
+		return
+	}
+	if len(p.symHeld) != len(p.Mesh.X) {
+		p.symHeld = make([]bool, len(p.Mesh.X))
+	}
+	held := p.symHeld
+	clear(held)
+	for _, ed := range p.symEdges {
+		if p.active[ed.Tri] {
+			held[ed.A], held[ed.Mid], held[ed.B] = true, true, true
+		}
+	}
+	for _, d := range p.symDofs {
+		p.fixed[d] = held[p.Dofs.NodeOf[d]]
+	}
+}
+
+// Broken reports whether element e has left the assembly: all its points
+// are broken, or it is releasing its force (Options.ReleaseSteps) or has
+// released it.
 func (p *Problem) Broken(e int) bool { return !p.active[e] }
 
 // State returns the committed material state, [element][point of
@@ -383,7 +434,8 @@ func (p *Problem) Broken(e int) bool { return !p.active[e] }
 func (p *Problem) State() [][]material.State { return p.oldState }
 
 // SetState replaces the committed material state (after a transfer). Elements
-// whose points are all broken leave the assembly.
+// whose points are all broken leave the assembly; no element is releasing
+// its force (SetReleases restores those of a checkpoint).
 func (p *Problem) SetState(s [][]material.State) error {
 	if len(s) != len(p.oldState) {
 		return fmt.Errorf("fem: SetState with %d elements, the mesh has %d", len(s), len(p.oldState))
@@ -396,6 +448,7 @@ func (p *Problem) SetState(s [][]material.State) error {
 		copy(p.newState[e], s[e])
 		p.active[e] = !ElementBroken(s[e])
 	}
+	p.release = p.release[:0]
 	p.updateConstraints()
 	return nil
 }

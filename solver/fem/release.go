@@ -1,0 +1,118 @@
+package fem
+
+import (
+	"fmt"
+
+	"tearline/solver/material"
+)
+
+// Element vanish. An element whose Gauss points break one by one keeps,
+// until the last one breaks, a stiffness of low rank: the midside nodes of
+// a crack face that only it holds are then nearly free, Newton moves them
+// far, and the neighbours see trial stresses of tens of GPa. Removing the
+// element at once when its first point breaks drops its whole stress on
+// the neighbours in one step, which their return mapping does not survive
+// either. The element-vanish technique (Tvergaard 1982, J. Mech. Phys.
+// Solids 30, 399 — from memory) does both halves right: at the commit in
+// which an element's first point breaks, the element leaves the assembly
+// (no stiffness), and the internal nodal forces it had at that moment are
+// held as forces on its nodes and scaled down linearly to zero over
+// Options.ReleaseSteps converged steps.
+
+// Release is an element giving up its force (Options.ReleaseSteps).
+type Release struct {
+	// Elem is the element; it has left the assembly.
+	Elem int
+	// Force is the internal force of its displacement unknowns (node k:
+	// 2k, 2k+1, the node order of Mesh.Tri) at the commit in which it
+	// failed.
+	Force [12]float64
+	// Done counts the converged steps since then, up to ReleaseSteps; the
+	// assemblies of the next step apply (1 − (Done+1)/ReleaseSteps)·Force.
+	// The element stays on the list when its force is gone, so that a
+	// checkpoint restores it as out of the assembly.
+	Done int
+}
+
+// Releases returns the elements that left the assembly by a release, those
+// still releasing their force and those done. The slice belongs to the
+// problem; SetReleases copies.
+func (p *Problem) Releases() []Release { return p.release }
+
+// SetReleases replaces the list of Releases (when a checkpoint is
+// restored, after SetState). Each element leaves the assembly.
+func (p *Problem) SetReleases(r []Release) error {
+	n := p.Opt.ReleaseSteps
+	seen := make(map[int]bool, len(r))
+	for i, q := range r {
+		switch {
+		case q.Elem < 0 || q.Elem >= len(p.Mesh.Tri):
+			return fmt.Errorf("fem: release %d: element %d is not in the mesh of %d elements", i, q.Elem, len(p.Mesh.Tri))
+		case seen[q.Elem]:
+			return fmt.Errorf("fem: release %d: element %d is listed twice", i, q.Elem)
+		case q.Done < 0 || q.Done > n:
+			return fmt.Errorf("fem: release %d (element %d): %d steps done, must be in [0, %d] (release steps)", i, q.Elem, q.Done, n)
+		}
+		seen[q.Elem] = true
+	}
+	p.release = append(p.release[:0], r...)
+	for _, q := range r {
+		p.active[q.Elem] = false
+	}
+	p.updateConstraints()
+	return nil
+}
+
+// addReleaseForces adds the held forces of the releasing elements to the
+// residual.
+func (p *Problem) addReleaseForces() {
+	n := float64(p.Opt.ReleaseSteps)
+	for i := range p.release {
+		q := &p.release[i]
+		s := 1 - float64(q.Done+1)/n
+		if s <= 0 {
+			continue
+		}
+		tri := &p.Mesh.Tri[q.Elem]
+		for k := 0; k < 6; k++ {
+			d := p.Dofs.Start[tri[k]]
+			p.Full[d] += s * q.Force[2*k]
+			p.Full[d+1] += s * q.Force[2*k+1]
+		}
+	}
+}
+
+// advanceReleases counts a converged step for every element still
+// releasing its force.
+func (p *Problem) advanceReleases() {
+	for i := range p.release {
+		if q := &p.release[i]; q.Done < p.Opt.ReleaseSteps {
+			q.Done++
+		}
+	}
+}
+
+// startRelease takes element e, which has a broken point in the state
+// being committed, out of the assembly and holds its internal force at
+// p.U. It must run before the element's new state is committed: the
+// force is re-evaluated from the old state, as in the last assembly, which
+// succeeded at p.U (should it fail all the same, the element is released
+// at once, as with ReleaseSteps = 1).
+func (p *Problem) startRelease(e int) {
+	q := Release{Elem: e}
+	w := &p.workers[0]
+	if err := p.element(e, p.U, w, false); err == nil {
+		copy(q.Force[:], w.re[:12])
+	}
+	p.release = append(p.release, q)
+}
+
+// anyBroken reports whether a point of the element is broken.
+func anyBroken(s []material.State) bool {
+	for i := range s {
+		if s[i].Broken {
+			return true
+		}
+	}
+	return false
+}
