@@ -75,6 +75,10 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	cfg.FE.DisplacementOnly = !*c.Solver.Mixed
 	cfg.FE.Workers = c.Solver.Workers
 	cfg.FE.ReleaseSteps = *c.Solver.ReleaseSteps
+	if c.Material.Model != "elastic" {
+		// a flap past the onset of coalescence carries next to nothing
+		cfg.FE.FlapPorosity = c.Material.Fc
+	}
 
 	so := solver.DefaultOptions()
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement

@@ -44,6 +44,10 @@ type Options struct {
 	// broken (element vanish, see Release). 0 keeps an element in the
 	// assembly until all its points are broken.
 	ReleaseSteps int
+	// FlapPorosity, when positive (and ReleaseSteps too), releases a flap
+	// as well: an element left attached by a single edge, next to released
+	// material, with a point at this porosity or above.
+	FlapPorosity float64
 }
 
 // Validate reports an invalid option.
@@ -53,6 +57,9 @@ func (o Options) Validate() error {
 	}
 	if o.Workers < 0 {
 		return fmt.Errorf("fem options: workers %d must be ≥ 0 (0 = all cores)", o.Workers)
+	}
+	if !(o.FlapPorosity >= 0 && o.FlapPorosity < 1) {
+		return fmt.Errorf("fem options: flap porosity %g must be in [0, 1) (0 = flaps are not released)", o.FlapPorosity)
 	}
 	if o.ReleaseSteps < 0 {
 		return fmt.Errorf("fem options: release steps %d must be ≥ 0 (0 = an element leaves when all its points are broken)", o.ReleaseSteps)
@@ -114,6 +121,8 @@ type Problem struct {
 	pool     *pool
 	active   []bool // element takes part in assembly (not broken)
 	release  []Release
+	relNow   []bool   // scratch: released at the commit under way
+	edgeNbr  [][3]int // neighbour across edge k (vertices k, k+1) or −1
 	oldState [][]material.State
 	newState [][]material.State
 	stBack   []material.State
@@ -315,13 +324,10 @@ func (p *Problem) SetTime(t float64) {
 // frozen. The last assembly must have been at p.U.
 func (p *Problem) Commit() {
 	p.advanceReleases()
+	commit := p.startReleases()
 	for e := range p.Mesh.Tri {
-		if !p.active[e] {
+		if !p.active[e] && !commit[e] {
 			continue
-		}
-		if p.Opt.ReleaseSteps > 0 && anyBroken(p.newState[e]) && !ElementBroken(p.newState[e]) {
-			p.startRelease(e)
-			p.active[e] = false
 		}
 		for g := 0; g < perElem; g++ {
 			i := e*perElem + g

@@ -107,6 +107,96 @@ func (p *Problem) startRelease(e int) {
 	p.release = append(p.release, q)
 }
 
+// startReleases takes out of the assembly the elements that start
+// releasing their force at the commit under way (a broken point in the new
+// state, or a damaged flap) and returns them marked: their new state is
+// still committed.
+func (p *Problem) startReleases() []bool {
+	if len(p.relNow) != len(p.Mesh.Tri) {
+		p.relNow = make([]bool, len(p.Mesh.Tri))
+	}
+	now := p.relNow
+	clear(now)
+	if p.Opt.ReleaseSteps == 0 {
+		return now
+	}
+	for e := range p.Mesh.Tri {
+		if p.active[e] && anyBroken(p.newState[e]) && !ElementBroken(p.newState[e]) {
+			p.startRelease(e)
+			p.active[e], now[e] = false, true
+		}
+	}
+	if p.Opt.FlapPorosity > 0 {
+		// one pass: a flap made by this pass waits for the next commit
+		var flaps []int
+		for e := range p.Mesh.Tri {
+			if p.active[e] && p.isFlap(e) && maxPorosity(p.newState[e]) >= p.Opt.FlapPorosity {
+				flaps = append(flaps, e)
+			}
+		}
+		for _, e := range flaps {
+			p.startRelease(e)
+			p.active[e], now[e] = false, true
+		}
+	}
+	return now
+}
+
+// isFlap reports whether active element e is held by a single edge: at
+// most one of its edges is shared with an active element, and at least one
+// neighbour has left the assembly. Such a triangle in the wake of a crack
+// (a wedge left at a blunted tip, a tooth of a zig-zag crack face) has
+// nodes only it holds and a plastic tangent near zero: Newton moves them
+// far, and the ill-conditioned system spoils the correction everywhere.
+func (p *Problem) isFlap(e int) bool {
+	if p.edgeNbr == nil {
+		p.edgeNbr = edgeNeighbours(p.Mesh)
+	}
+	held, gone := 0, false
+	for _, n := range p.edgeNbr[e] {
+		switch {
+		case n >= 0 && p.active[n]:
+			held++
+		case n >= 0:
+			gone = true
+		}
+	}
+	return held <= 1 && gone
+}
+
+// edgeNeighbours returns, per triangle, the triangle across each edge
+// (vertices k and k+1), or −1 on the boundary.
+func edgeNeighbours(m *Mesh) [][3]int {
+	type key [2]int
+	first := make(map[key]int, 3*len(m.Tri)/2)
+	nbr := make([][3]int, len(m.Tri))
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			if a > b {
+				a, b = b, a
+			}
+			nbr[e][k] = -1
+			if o, ok := first[key{a, b}]; ok {
+				nbr[e][k] = o / 3
+				nbr[o/3][o%3] = e
+				continue
+			}
+			first[key{a, b}] = 3*e + k
+		}
+	}
+	return nbr
+}
+
+// maxPorosity returns the largest porosity of the points.
+func maxPorosity(s []material.State) float64 {
+	m := 0.0
+	for i := range s {
+		m = max(m, s[i].F)
+	}
+	return m
+}
+
 // anyBroken reports whether a point of the element is broken.
 func anyBroken(s []material.State) bool {
 	for i := range s {
