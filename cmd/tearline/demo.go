@@ -48,15 +48,18 @@ penalty = 1.0
 [loading]
 kind = "k_field"
 k = 8000.0
+control = "opening"   # t drives the crack opening 5ℓ behind the initial tip; K is solved for
+opening = 1.0
 
 [solver]
 increment = 0.02
 max_increment = 0.05
 min_increment = 1e-5
+max_iterations = 25
 
 [stop]
 t = 1.0
-da = 0.15
+da = 0.3              # 3ℓ of crack growth
 
 [output]
 fields_every = 10
