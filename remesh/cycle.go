@@ -126,6 +126,18 @@ type Observer interface {
 	Remesh(r *RemeshRecord, c *Cycle) error
 }
 
+// RemeshFailureObserver is an Observer that also hears of a remesh that
+// failed and was put off: the run goes on with the old mesh and tries
+// again after the next step.
+type RemeshFailureObserver interface {
+	RemeshFailed(index, step int, err error) error
+}
+
+// remeshAttempts is how many times in a row a remesh may fail before the
+// run stops (our choice: the 30ℓ boundary-layer run passed, one step
+// later, a remesh whose re-equilibration had failed).
+const remeshAttempts = 3
+
 // Outcome is how a run ended.
 type Outcome struct {
 	Status  solver.Status
@@ -169,6 +181,8 @@ type Cycle struct {
 	started   time.Time
 	stop      *stopRequest
 	seedDir   [][2]float64
+	// remeshFails counts the remeshes that failed in a row.
+	remeshFails int
 }
 
 type stopRequest struct {
@@ -328,9 +342,23 @@ func (c *Cycle) Run(obs Observer) (Outcome, error) {
 		}
 		rr, err := c.remesh(c.stop.decision)
 		if err != nil {
-			out.Status, out.Reason = solver.Stopped, fmt.Sprintf("remesh %d failed: %v", c.Remeshes+1, err)
-			return out, nil
+			// The old mesh and state are intact: go on with them and try
+			// again after the next step, when the state has moved on (a
+			// transient failure, typically in re-equilibration), unless the
+			// remesh has failed remeshAttempts times in a row.
+			c.remeshFails++
+			if c.remeshFails >= remeshAttempts {
+				out.Status, out.Reason = solver.Stopped, fmt.Sprintf("remesh %d failed %d times in a row, last: %v", c.Remeshes+1, c.remeshFails, err)
+				return out, nil
+			}
+			if fo, ok := obs.(RemeshFailureObserver); ok {
+				if err := fo.RemeshFailed(c.Remeshes+1, c.Steps, err); err != nil {
+					return out, err
+				}
+			}
+			continue
 		}
+		c.remeshFails = 0
 		if err := obs.Remesh(rr, c); err != nil {
 			return out, err
 		}

@@ -2,7 +2,9 @@ package remesh
 
 import (
 	"bytes"
+	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"tearline/criteria"
@@ -161,12 +163,11 @@ func TestCheckpointRoundTrip(t *testing.T) {
 	}
 }
 
-// TestRemeshReaction: on a converged elastic-plastic state the reaction
-// force changes by less than 1% through a remesh and transfer and comes
-// back within 0.1% after re-equilibration at the same load (V13; the
-// limits are those of the adaptive-cycle issue, common practice).
-func TestRemeshReaction(t *testing.T) {
-	cfg := elasticSSY(t, 2500)
+// plasticSSY is elasticSSY with the regularised GTN material (ℓ = 0.2 mm),
+// adaptive, with the default trigger, follow, carve and transfer options.
+func plasticSSY(t *testing.T, k, fineRadius float64) (CycleConfig, *material.GTN, material.GTNParams) {
+	t.Helper()
+	cfg := elasticSSY(t, k)
 	par := material.DefaultGTN()
 	par.Hardening = material.PowerLaw{Sigma0: 450, Eps0: 450 / 200e3, N: 0.1}
 	par.F0, par.FC, par.FF = 0.005, 0.02, 0.2
@@ -176,18 +177,27 @@ func TestRemeshReaction(t *testing.T) {
 		t.Fatal(err)
 	}
 	cfg.Material, cfg.F0, cfg.Fc, cfg.FBreak, cfg.Length = mat, par.F0, par.FC, par.BreakPorosity(), 0.2
-	cfg.Size = SizeOptions{HFine: 0.1, HFar: 2, FineRadius: 0.6}
-	cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
-		r, err := p.Reaction("remote")
-		return p.TCommitted, r[1], err
-	}
-	cfg.Solver.Dt, cfg.Solver.DtMax, cfg.Solver.TEnd = 0.25, 0.25, 0.5
+	cfg.Size = SizeOptions{HFine: 0.1, HFar: 2, FineRadius: fineRadius}
 	cfg.Adapt = true
 	cfg.Trigger = DefaultTriggerOptions(0.2)
 	cfg.Follow = DefaultFollowOptions(0.2, 2)
 	cfg.Carve = DefaultCarveOptions()
 	cfg.Transfer = transfer.DefaultOptions()
 	cfg.Transfer.F0, cfg.Transfer.FBreak = par.F0, par.BreakPorosity()
+	return cfg, mat, par
+}
+
+// TestRemeshReaction: on a converged elastic-plastic state the reaction
+// force changes by less than 1% through a remesh and transfer and comes
+// back within 0.1% after re-equilibration at the same load (V13; the
+// limits are those of the adaptive-cycle issue, common practice).
+func TestRemeshReaction(t *testing.T) {
+	cfg, mat, par := plasticSSY(t, 2500, 0.6)
+	cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
+		r, err := p.Reaction("remote")
+		return p.TCommitted, r[1], err
+	}
+	cfg.Solver.Dt, cfg.Solver.DtMax, cfg.Solver.TEnd = 0.25, 0.25, 0.5
 	c, err := NewCycle(cfg)
 	if err != nil {
 		t.Fatal(err)
@@ -232,5 +242,73 @@ func TestRemeshReaction(t *testing.T) {
 	}
 	if after > 0.001 {
 		t.Errorf("reaction after re-equilibration %.4f%% from the fresh solution on the new mesh, allowed 0.1%%", 100*after)
+	}
+}
+
+// failingRecorder also records the remeshes that failed and were put off.
+type failingRecorder struct {
+	recorder
+	failed []int // steps at which a remesh failed
+}
+
+func (r *failingRecorder) RemeshFailed(index, step int, err error) error {
+	r.failed = append(r.failed, step)
+	return nil
+}
+
+// TestRemeshRetry: a remesh that fails leaves the run on its old mesh and
+// state, the run takes the next step and remeshes then; a remesh that keeps
+// failing stops the run cleanly after remeshAttempts tries. (The failure is
+// forced through the boundary conditions of the new mesh.)
+func TestRemeshRetry(t *testing.T) {
+	for _, c := range []struct {
+		name     string
+		failures int // new meshes whose set-up fails
+		want     solver.Status
+	}{
+		{"one failure", 1, solver.Completed},
+		{"keeps failing", 100, solver.Stopped},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			cfg, _, _ := plasticSSY(t, 2500, 0.2)
+			cfg.Solver.Dt, cfg.Solver.DtMax, cfg.Solver.TEnd = 0.125, 0.125, 0.5
+			cfg.Trigger.PAlert = 1e-6 // any plastic point in a coarse element
+			bcs, calls := cfg.BCs, 0
+			cfg.BCs = func(m *fem.Mesh) (fem.BCs, error) {
+				calls++
+				if calls > 1 && calls <= 1+c.failures {
+					return fem.BCs{}, errors.New("forced failure")
+				}
+				return bcs(m)
+			}
+			cy, err := NewCycle(cfg)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var rec failingRecorder
+			out, err := cy.Run(&rec)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if out.Status != c.want {
+				t.Fatalf("outcome %v (%s), want %v", out.Status, out.Reason, c.want)
+			}
+			switch c.want {
+			case solver.Completed:
+				if len(rec.failed) != 1 || len(rec.remesh) == 0 {
+					t.Fatalf("%d failed and %d remeshes, want 1 failed, then at least one remesh", len(rec.failed), len(rec.remesh))
+				}
+				if rec.remesh[0].Step <= rec.failed[0] {
+					t.Errorf("remesh at step %d, the failed one at step %d: the retry must come after a further step", rec.remesh[0].Step, rec.failed[0])
+				}
+			default:
+				if len(rec.failed) != remeshAttempts-1 || len(rec.remesh) != 0 {
+					t.Errorf("%d failures reported and %d remeshes, want %d and 0", len(rec.failed), len(rec.remesh), remeshAttempts-1)
+				}
+				if !strings.Contains(out.Reason, "failed 3 times in a row") {
+					t.Errorf("reason %q does not say the remesh kept failing", out.Reason)
+				}
+			}
+		})
 	}
 }

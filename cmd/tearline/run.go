@@ -351,6 +351,13 @@ func (ob *observer) Remesh(r *remesh.RemeshRecord, cyc *remesh.Cycle) error {
 	return ob.checkpoint(cyc)
 }
 
+// RemeshFailed logs a remesh that failed and was put off; the run goes on
+// with the old mesh (remesh.csv holds the remeshes that took place).
+func (ob *observer) RemeshFailed(index, step int, err error) error {
+	ob.logf("remesh %d at step %d failed, going on with the old mesh and trying again after the next step: %v", index, step, err)
+	return nil
+}
+
 // checkpoint writes the committed state atomically.
 func (ob *observer) checkpoint(cyc *remesh.Cycle) error {
 	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters})
