@@ -153,7 +153,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	}
 	c := &carver{m: m, opt: opt, orig: orig, size: size}
 	c.removed = append([]bool(nil), broken...)
-	c.neighbours()
+	c.nbr = c.m.EdgeNeighbours()
 	c.dropPinches()
 	c.keepLargestPart()
 	out := &Carved{Removed: c.removed}
@@ -234,27 +234,6 @@ func ukey(a, b int) [2]int {
 		a, b = b, a
 	}
 	return [2]int{a, b}
-}
-
-// neighbours fills nbr: the triangle across edge k (t[k]–t[k+1]) of every
-// triangle, −1 on the mesh boundary.
-func (c *carver) neighbours() {
-	m := c.m
-	c.nbr = make([][3]int, len(m.Tri))
-	open := make(map[[2]int]int, 2*len(m.Tri))
-	for e, t := range m.Tri {
-		for k := 0; k < 3; k++ {
-			c.nbr[e][k] = -1
-			key := ukey(t[k], t[(k+1)%3])
-			if o, ok := open[key]; ok {
-				c.nbr[e][k] = o / 3
-				c.nbr[o/3][o%3] = e
-				delete(open, key)
-			} else {
-				open[key] = 3*e + k
-			}
-		}
-	}
 }
 
 // dropPinches removes every fan but the largest around nodes where kept

@@ -37,8 +37,8 @@ type checkpoint struct {
 	// Prev is the solver's last converged increment (its predictor for
 	// the next one).
 	Prev solver.Previous
-	// Releases are the elements still releasing their force
-	// (fem.Options.ReleaseSteps).
+	// Releases are the elements that left the assembly by a release
+	// (fem.Options.ReleaseSteps), still releasing their force or done.
 	Releases []fem.Release
 	// Extra is the caller's own state (the command line keeps its history
 	// bookkeeping there).

@@ -428,15 +428,12 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	}
 	t0 := time.Now()
 	gp := c.GaussPoints()
-	broken, err := BrokenElements(gp)
-	if err != nil {
-		return nil, err
-	}
-	// Elements releasing their force (or done with it) leave with the
-	// broken ones; what force they still held is part of the out-of-balance
-	// force re-equilibration relaxes.
+	// Elements out of the assembly leave the geometry: the broken ones and
+	// those releasing their force or done with it (what force they still
+	// held is part of the out-of-balance force re-equilibration relaxes).
+	broken := make([]bool, len(c.Mesh.Tri))
 	for e := range broken {
-		broken[e] = broken[e] || c.Prob.Broken(e)
+		broken[e] = c.Prob.Broken(e)
 	}
 	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
 	if err != nil {

@@ -35,6 +35,31 @@ type Edge struct {
 	Tri       int
 }
 
+// EdgeNeighbours returns, per triangle, the triangle across each edge
+// (vertices k and k+1), or −1 on the mesh boundary.
+func (m *Mesh) EdgeNeighbours() [][3]int {
+	nbr := make([][3]int, len(m.Tri))
+	open := make(map[[2]int]int, 2*len(m.Tri))
+	for e, t := range m.Tri {
+		for k := 0; k < 3; k++ {
+			nbr[e][k] = -1
+			a, b := t[k], t[(k+1)%3]
+			if a > b {
+				a, b = b, a
+			}
+			key := [2]int{a, b}
+			if o, ok := open[key]; ok {
+				nbr[e][k] = o / 3
+				nbr[o/3][o%3] = e
+				delete(open, key)
+			} else {
+				open[key] = 3*e + k
+			}
+		}
+	}
+	return nbr
+}
+
 // Label returns the index of the named boundary label, or -1.
 func (m *Mesh) Label(name string) int {
 	for i, l := range m.Labels {

@@ -123,6 +123,7 @@ type Problem struct {
 	release  []Release
 	relNow   []bool   // scratch: released at the commit under way
 	edgeNbr  [][3]int // neighbour across edge k (vertices k, k+1) or −1
+	flaps    []int    // scratch: flaps found at the commit under way
 	oldState [][]material.State
 	newState [][]material.State
 	stBack   []material.State
@@ -372,7 +373,10 @@ func (p *Problem) Rollback() {
 // With duringStep, elements whose points have all broken in the current
 // iterate (not yet committed) count as gone too: their stiffness is zero,
 // and the unknowns only they touch would make the tangent singular.
-func (p *Problem) updateConstraints() { p.refreshConstraints(false) }
+func (p *Problem) updateConstraints() {
+	p.releaseSymmetry()
+	p.refreshConstraints(false)
+}
 
 func (p *Problem) refreshConstraints(duringStep bool) {
 	if len(p.touched) != len(p.Mesh.X) {
@@ -392,7 +396,6 @@ func (p *Problem) refreshConstraints(duringStep bool) {
 			touched[n] = true
 		}
 	}
-	p.releaseSymmetry()
 	p.constr = p.constr[:0]
 	for d := range p.frozen {
 		p.frozen[d] = !touched[p.Dofs.NodeOf[d]]
@@ -600,11 +603,4 @@ func (p *Problem) LoadScale() float64 {
 // is broken: when all of its points are. (Removal once most points are
 // broken was tried: the abrupt release of the remaining stress made the
 // neighbours' return mapping fail on the boundary-layer case.)
-func ElementBroken(s []material.State) bool {
-	for i := range s {
-		if !s[i].Broken {
-			return false
-		}
-	}
-	return true
-}
+func ElementBroken(s []material.State) bool { return brokenPoints(s) == len(s) }

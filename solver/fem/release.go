@@ -128,13 +128,13 @@ func (p *Problem) startReleases() []bool {
 	}
 	if p.Opt.FlapPorosity > 0 {
 		// one pass: a flap made by this pass waits for the next commit
-		var flaps []int
+		p.flaps = p.flaps[:0]
 		for e := range p.Mesh.Tri {
 			if p.active[e] && p.isFlap(e) && maxPorosity(p.newState[e]) >= p.Opt.FlapPorosity {
-				flaps = append(flaps, e)
+				p.flaps = append(p.flaps, e)
 			}
 		}
-		for _, e := range flaps {
+		for _, e := range p.flaps {
 			p.startRelease(e)
 			p.active[e], now[e] = false, true
 		}
@@ -150,7 +150,7 @@ func (p *Problem) startReleases() []bool {
 // far, and the ill-conditioned system spoils the correction everywhere.
 func (p *Problem) isFlap(e int) bool {
 	if p.edgeNbr == nil {
-		p.edgeNbr = edgeNeighbours(p.Mesh)
+		p.edgeNbr = p.Mesh.EdgeNeighbours()
 	}
 	held, gone := 0, false
 	for _, n := range p.edgeNbr[e] {
@@ -164,30 +164,6 @@ func (p *Problem) isFlap(e int) bool {
 	return held <= 1 && gone
 }
 
-// edgeNeighbours returns, per triangle, the triangle across each edge
-// (vertices k and k+1), or −1 on the boundary.
-func edgeNeighbours(m *Mesh) [][3]int {
-	type key [2]int
-	first := make(map[key]int, 3*len(m.Tri)/2)
-	nbr := make([][3]int, len(m.Tri))
-	for e, t := range m.Tri {
-		for k := 0; k < 3; k++ {
-			a, b := t[k], t[(k+1)%3]
-			if a > b {
-				a, b = b, a
-			}
-			nbr[e][k] = -1
-			if o, ok := first[key{a, b}]; ok {
-				nbr[e][k] = o / 3
-				nbr[o/3][o%3] = e
-				continue
-			}
-			first[key{a, b}] = 3*e + k
-		}
-	}
-	return nbr
-}
-
 // maxPorosity returns the largest porosity of the points.
 func maxPorosity(s []material.State) float64 {
 	m := 0.0
@@ -198,11 +174,15 @@ func maxPorosity(s []material.State) float64 {
 }
 
 // anyBroken reports whether a point of the element is broken.
-func anyBroken(s []material.State) bool {
+func anyBroken(s []material.State) bool { return brokenPoints(s) > 0 }
+
+// brokenPoints counts the broken points of an element.
+func brokenPoints(s []material.State) int {
+	n := 0
 	for i := range s {
 		if s[i].Broken {
-			return true
+			n++
 		}
 	}
-	return false
+	return n
 }
