@@ -259,7 +259,8 @@ func (r *failingRecorder) RemeshFailed(index, step int, err error) error {
 // TestRemeshRetry: a remesh that fails leaves the run on its old mesh and
 // state, the run takes the next step and remeshes then; a remesh that keeps
 // failing stops the run cleanly after remeshAttempts tries. (The failure is
-// forced through the boundary conditions of the new mesh.)
+// forced through the boundary conditions of the new mesh. The rule is our
+// own, recorded in DEVELOPERS.md; no outside source.)
 func TestRemeshRetry(t *testing.T) {
 	for _, c := range []struct {
 		name     string

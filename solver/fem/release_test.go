@@ -10,7 +10,8 @@ import (
 // TestFlaps: a flap is an element in the assembly held by at most one edge
 // next to an element that has left. Checked against a brute-force count of
 // triangles sharing two vertices, on a structured mesh with random
-// elements taken out; and only a damaged flap is released.
+// elements taken out; and only a damaged flap is released. (The flap rule
+// is our own, recorded in DEVELOPERS.md; no outside source.)
 func TestFlaps(t *testing.T) {
 	m, err := Structured(6, 5, nil)
 	if err != nil {
