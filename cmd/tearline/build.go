@@ -257,8 +257,16 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 				return [2]float64{s * u[0], s * u[1]}
 			},
 		})
+		// The force: the resultant of the reactions on the remote boundary
+		// along the crack's opening direction (the model's own, per unit
+		// thickness), so that remesh.csv records how a transfer and the
+		// re-equilibration change it (V13).
+		dl := math.Hypot(tip.Dir[0], tip.Dir[1])
+		normal := [2]float64{-tip.Dir[1] / dl, tip.Dir[0] / dl}
+		thick := rs.thickness
 		cfg.Measure = func(p *fem.Problem) (float64, float64, error) {
-			return l.K * p.TCommitted, nan, nil
+			r, err := p.Reaction("remote")
+			return l.K * p.TCommitted, (r[0]*normal[0] + r[1]*normal[1]) * thick, err
 		}
 		if l.Control == "opening" {
 			cfg.Control = openingControl(tip.Dir, l.Opening)
