@@ -154,7 +154,6 @@ func (p *Problem) Assemble(tangent bool) error {
 	nw := len(p.workers)
 	for i := range p.workers {
 		p.workers[i].err = nil
-		p.workers[i].scale = [NumFields]float64{}
 	}
 	for c, els := range p.colours {
 		if nw == 1 || len(els) < 2*assemblyChunk {
@@ -183,9 +182,12 @@ func (p *Problem) Assemble(tangent bool) error {
 	}
 	// scales and external loads
 	var sum [NumFields]float64
-	for i := range p.workers {
+	for e, a := range p.active {
+		if !a {
+			continue
+		}
 		for f := range sum {
-			sum[f] += p.workers[i].scale[f]
+			sum[f] += p.elemScale[e][f]
 		}
 	}
 	na := 0
@@ -277,10 +279,12 @@ func (p *Problem) work(wi int, els []int, tangent bool) {
 		if !p.active[e] {
 			continue
 		}
+		w.scale = [NumFields]float64{}
 		if err := p.element(e, p.U, w, tangent); err != nil {
 			w.err = err
 			return
 		}
+		p.elemScale[e] = w.scale
 		p.scatter(e, w, tangent)
 	}
 }

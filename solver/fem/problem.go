@@ -116,18 +116,23 @@ type Problem struct {
 	// offset within the rows of the node.
 	adjPtr, adj, adjOff []int
 
-	colours  [][]int
-	workers  []worker
-	pool     *pool
-	active   []bool // element takes part in assembly (not broken)
-	release  []Release
-	relNow   []bool   // scratch: released at the commit under way
-	edgeNbr  [][3]int // neighbour across edge k (vertices k, k+1) or −1
-	flaps    []int    // scratch: flaps found at the commit under way
-	oldState [][]material.State
-	newState [][]material.State
-	stBack   []material.State
-	stBack2  []material.State
+	colours [][]int
+	workers []worker
+	pool    *pool
+	// elemScale holds each element's contribution to the force scales,
+	// summed in element order after the parallel assembly: a per-worker
+	// sum would depend on which worker took which chunk, and the
+	// convergence tests would differ in the last bits from run to run.
+	elemScale [][NumFields]float64
+	active    []bool // element takes part in assembly (not broken)
+	release   []Release
+	relNow    []bool   // scratch: released at the commit under way
+	edgeNbr   [][3]int // neighbour across edge k (vertices k, k+1) or −1
+	flaps     []int    // scratch: flaps found at the commit under way
+	oldState  [][]material.State
+	newState  [][]material.State
+	stBack    []material.State
+	stBack2   []material.State
 
 	gp            []GaussPoint // committed Gauss-point data (F, P, W, State copy)
 	pendF         [][5]float64 // F and P at the last assembly
@@ -248,6 +253,7 @@ func NewProblem(m *Mesh, mat material.Model, opt Options, bcs BCs) (*Problem, er
 	}
 
 	ne := len(m.Tri)
+	p.elemScale = make([][NumFields]float64, ne)
 	p.active = make([]bool, ne)
 	for e := range p.active {
 		p.active[e] = true

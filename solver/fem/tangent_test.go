@@ -376,3 +376,39 @@ func fdTangentError(t *testing.T, p *Problem, k func(a, b int) float64) float64 
 	}
 	return emax
 }
+
+// TestAssemblyDeterministic: with several workers taking chunks of elements
+// in whatever order the scheduler gives them, repeated assemblies of the
+// same state give bit-identical residuals, tangents and force scales, so
+// that a run repeated or resumed takes the same decisions (common practice
+// for reproducible results; the convergence tests divide by the scales).
+func TestAssemblyDeterministic(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	p := randomProblem(t, tangentCases()[1], 40, 40, rng)
+	p.workers = make([]worker, 4)
+	p.pool = newPool(3)
+	if err := p.Assemble(true); err != nil {
+		t.Fatal(err)
+	}
+	res := append([]float64(nil), p.Res...)
+	val := append([]float64(nil), p.K.Val...)
+	scale := p.Scale
+	for run := 0; run < 30; run++ {
+		if err := p.Assemble(true); err != nil {
+			t.Fatal(err)
+		}
+		if p.Scale != scale {
+			t.Fatalf("assembly %d: force scales %v, first assembly %v", run+2, p.Scale, scale)
+		}
+		for i := range res {
+			if p.Res[i] != res[i] {
+				t.Fatalf("assembly %d: residual %d is %v, first assembly %v", run+2, i, p.Res[i], res[i])
+			}
+		}
+		for i := range val {
+			if p.K.Val[i] != val[i] {
+				t.Fatalf("assembly %d: tangent entry %d is %v, first assembly %v", run+2, i, p.K.Val[i], val[i])
+			}
+		}
+	}
+}
