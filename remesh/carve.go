@@ -21,7 +21,9 @@ type CarveOptions struct {
 	// Simplify: crack-face polylines are simplified (Douglas & Peucker
 	// 1973, Cartographica 10) so that every dropped vertex x lies within
 	// Simplify·h(x) of the simplified line, h the new size field (≥ 0;
-	// 0 keeps every vertex that is not collinear).
+	// 0 keeps every vertex that is not collinear), and on its outer side:
+	// the simplified line may cut off intact material but never brings
+	// removed material back.
 	Simplify float64
 	// MinCorner is the smallest corner angle (degrees, inside the
 	// material) simplification may create where the unsimplified boundary
@@ -727,7 +729,7 @@ func (c *carver) simplify() error {
 			if l.lab[k] == CrackLabel && c.opt.Simplify > 0 {
 				tolf = func(x [2]float64) float64 { return math.Max(collinear, c.opt.Simplify*c.size(x[0], x[1])) }
 			}
-			c.douglasPeucker(li, k, j, tolf, &work)
+			c.douglasPeucker(li, k, j, tolf, collinear, &work)
 		}
 	}
 	// every loop keeps at least three vertices
@@ -766,8 +768,15 @@ func (l *cLoop) interior(i, j int) []int {
 // douglasPeucker keeps, between kept vertices i and j of loop li, the
 // vertices needed for every dropped vertex x to lie within tol(x) of the
 // chord (Douglas & Peucker 1973, Cartographica 10), splitting at the vertex
-// of largest distance/tolerance ratio.
-func (c *carver) douglasPeucker(li, i, j int, tol func([2]float64) float64, work *[]span) {
+// of largest distance/tolerance ratio. The test is one-sided: a vertex on
+// the material side of the chord (its left, as the loops run) must lie
+// within strict of it, because a chord past it would bring removed material
+// back into the domain — broken elements whose displacement is no longer
+// resisted and may be inverted, and whose state would be copied into the
+// new elements there. A chord may cut off intact material within tol(x);
+// its state is lost like that of removed elements, and re-equilibration
+// relaxes the force it held.
+func (c *carver) douglasPeucker(li, i, j int, tol func([2]float64) float64, strict float64, work *[]span) {
 	l := &c.loops[li]
 	*work = append((*work)[:0], span{li, i, j})
 	for len(*work) > 0 {
@@ -777,7 +786,11 @@ func (c *carver) douglasPeucker(li, i, j int, tol func([2]float64) float64, work
 		worst, wk := 1.0, -1
 		for _, k := range l.interior(s.i, s.j) {
 			x := c.m.X[l.v[k]]
-			if r := segDistance(x, a, b) / tol(x); r > worst {
+			t := tol(x)
+			if (b[0]-a[0])*(x[1]-a[1])-(b[1]-a[1])*(x[0]-a[0]) > 0 {
+				t = math.Min(t, strict)
+			}
+			if r := segDistance(x, a, b) / t; r > worst {
 				worst, wk = r, k
 			}
 		}

@@ -322,6 +322,20 @@ func TestCarveSimplify(t *testing.T) {
 					}
 				}
 			}
+			// One-sided: the simplified boundary never brings removed
+			// material back (our rule, see CarveOptions.Simplify), so no
+			// removed triangle's centroid is inside and the area does not
+			// exceed that of the kept triangles.
+			for e, r := range c.Removed {
+				tr := m.Tri[e]
+				x := [2]float64{(m.X[tr[0]][0] + m.X[tr[1]][0] + m.X[tr[2]][0]) / 3, (m.X[tr[0]][1] + m.X[tr[1]][1] + m.X[tr[2]][1]) / 3}
+				if r && c.Domain.Contains(x) {
+					t.Errorf("removed triangle %d (centroid %v) is inside the simplified domain", e, x)
+				}
+			}
+			if a := c.Domain.Area(); a > c.Area*(1+1e-12) {
+				t.Errorf("simplified area %.15g exceeds the kept triangles' %.15g", a, c.Area)
+			}
 			if sc.simplify > 0 && dropped <= base {
 				t.Errorf("%d of %d boundary vertices dropped, no more than the %d collinear ones", dropped, total, base)
 			}
