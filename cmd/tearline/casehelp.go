@@ -60,5 +60,5 @@ fields_every (10 steps), checkpoint_minutes (15)
 
 [adapt]
 enabled (true when the geometry has a crack tip), margin (ℓ), ahead (ℓ), wake (× h_fine),
-alert_plastic_strain, max_remeshes (0 = no limit), coarsen_wake, simplify (× local size)
+alert_plastic_strain (0.1), max_remeshes (0 = no limit), coarsen_wake, simplify (× local size)
 `

@@ -67,6 +67,7 @@ checkpoint_minutes = 5
 
 [adapt]
 enabled = true
+ahead = 2             # the first fine zone reaches 2ℓ ahead: the mesh follows the tip after about 2.5ℓ
 `
 
 const demoUsage = `usage: tearline demo [-o DIR]

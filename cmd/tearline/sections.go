@@ -91,11 +91,11 @@ type outputSection struct {
 
 // adaptSection is [adapt]: the adaptive remeshing cycle.
 type adaptSection struct {
-	Enabled  *bool   `toml:"enabled"` // default: true when the geometry has a crack tip
-	Margin   float64 `toml:"margin"`  // remesh when the front is within this many ℓ of the fine zone's edge
-	Ahead    float64 `toml:"ahead"`   // fine zone reaches this many ℓ ahead of the tip
-	Wake     float64 `toml:"wake"`    // element size in the wake, as a multiple of h_fine
-	AlertP   float64 `toml:"alert_plastic_strain"`
+	Enabled  *bool   `toml:"enabled"`              // default: true when the geometry has a crack tip
+	Margin   float64 `toml:"margin"`               // remesh when the front is within this many ℓ of the fine zone's edge
+	Ahead    float64 `toml:"ahead"`                // fine zone reaches this many ℓ ahead of the tip
+	Wake     float64 `toml:"wake"`                 // element size in the wake, as a multiple of h_fine
+	AlertP   float64 `toml:"alert_plastic_strain"` // p above which a point must sit in an element of the wake size or finer
 	MaxRuns  int     `toml:"max_remeshes"`
 	Coarsen  *bool   `toml:"coarsen_wake"`
 	Simplify float64 `toml:"simplify"` // crack-face simplification tolerance, × local size
@@ -360,7 +360,7 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 	defs := []struct {
 		v   *float64
 		def float64
-	}{{&a.Margin, 1}, {&a.Ahead, 4}, {&a.Wake, 4}, {&a.AlertP, 0.02}, {&a.Simplify, 0.25}}
+	}{{&a.Margin, 1}, {&a.Ahead, 4}, {&a.Wake, 4}, {&a.AlertP, 0.1}, {&a.Simplify, 0.25}}
 	for _, d := range defs {
 		if *d.v == 0 {
 			*d.v = d.def
