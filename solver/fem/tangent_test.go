@@ -180,10 +180,7 @@ func globalTangentCase(t *testing.T, tc tangentCase, plastic bool, rng *rand.Ran
 // TestAssemblyDoesNotAllocate checks the rule of DEVELOPERS.md: once warm,
 // a full assembly (residual and tangent, two workers) allocates nothing.
 func TestAssemblyDoesNotAllocate(t *testing.T) {
-	rng := rand.New(rand.NewPCG(5, 6))
-	p := randomProblem(t, tangentCases()[1], 12, 12, rng)
-	p.workers = make([]worker, 2)
-	p.pool = newPool(1)
+	p := parallelProblem(t, 5, 12, 2)
 	if err := p.Assemble(true); err != nil {
 		t.Fatal(err)
 	}
@@ -383,10 +380,7 @@ func fdTangentError(t *testing.T, p *Problem, k func(a, b int) float64) float64 
 // that a run repeated or resumed takes the same decisions (common practice
 // for reproducible results; the convergence tests divide by the scales).
 func TestAssemblyDeterministic(t *testing.T) {
-	rng := rand.New(rand.NewPCG(7, 8))
-	p := randomProblem(t, tangentCases()[1], 40, 40, rng)
-	p.workers = make([]worker, 4)
-	p.pool = newPool(3)
+	p := parallelProblem(t, 7, 40, 4)
 	if err := p.Assemble(true); err != nil {
 		t.Fatal(err)
 	}
@@ -411,4 +405,14 @@ func TestAssemblyDeterministic(t *testing.T) {
 			}
 		}
 	}
+}
+
+// parallelProblem returns a random plastic problem on an n × n mesh
+// assembled by the given number of workers (≥ 2).
+func parallelProblem(t *testing.T, seed uint64, n, workers int) *Problem {
+	t.Helper()
+	p := randomProblem(t, tangentCases()[1], n, n, rand.New(rand.NewPCG(seed, seed+1)))
+	p.workers = make([]worker, workers)
+	p.pool = newPool(workers - 1)
+	return p
 }
