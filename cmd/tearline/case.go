@@ -12,7 +12,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"tearline/remesh/geom"
+	"tearline/remesh/geom/specimen"
 	"tearline/remesh/size"
 )
 
@@ -29,9 +29,9 @@ type caseFile struct {
 	Output   outputSection   `toml:"output"`
 	Adapt    adaptSection    `toml:"adapt"`
 
-	// domain and size are built once by complete and reused by buildRun.
-	domain *geom.Domain
-	size   *size.Field
+	// specimen and size are built once by complete and reused by buildRun.
+	specimen *specimen.Specimen
+	size     *size.Field
 }
 
 // caseSource remembers where every key of a case came from, so that an

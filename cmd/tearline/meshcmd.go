@@ -113,10 +113,11 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		}
 		return fail(code, "%v", err)
 	}
-	d, err := c.Geometry.domain(src)
+	sp, err := c.Geometry.specimen(src)
 	if err != nil {
 		return fail(2, "%v", err)
 	}
+	d := sp.Domain
 	for _, n := range c.Geometry.notes {
 		fmt.Fprintf(stderr, "tearline mesh: note: %s: %s\n", src.where("geometry.polygon.loop"), n)
 	}
