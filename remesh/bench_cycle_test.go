@@ -71,8 +71,8 @@ func maxPorosity(c *Cycle) float64 {
 
 type nopObserver struct{}
 
-func (nopObserver) Step(*StepRecord, *Cycle) error     { return nil }
-func (nopObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (nopObserver) Step(*StepRecord, View) error     { return nil }
+func (nopObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // remeshOnce runs the remesh pipeline of Cycle.remesh (cycle_remesh.go) on
 // c for tips moved to tips, up to and including the installation of the
@@ -128,7 +128,7 @@ func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Durat
 	}
 	// install and reconcile act on the cycle's current mesh and problem:
 	// a shallow copy holding the new ones leaves c as it was.
-	nc := &Cycle{Cfg: c.Cfg, Mesh: m, Prob: p}
+	nc := &stage{Cfg: c.Cfg, Mesh: m, Prob: p}
 	if err := nc.install(to, c.Prob.TCommitted, false); err != nil {
 		p.Close()
 		return nil, ph, err

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"tearline/remesh/carve"
+	"tearline/remesh/geom"
 	"tearline/remesh/meshing"
 	"tearline/remesh/size"
 	"tearline/remesh/trigger"
@@ -23,7 +24,7 @@ func linearFields() [4]fem.Field {
 }
 
 // fields collects the committed state of the current problem for a transfer.
-func (c *Cycle) fields() (*transfer.Fields, error) {
+func (c *stage) fields() (*transfer.Fields, error) {
 	f := &transfer.Fields{U: c.Prob.Displacement()}
 	nn := len(c.Mesh.X)
 	for _, fd := range linearFields() {
@@ -75,7 +76,7 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 // Transferring the elastic strain and letting Eᵖ absorb the difference keeps
 // the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
 // on transfer operators for evolving meshes).
-func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
+func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
 	if len(f.History) < 15 {
 		return nil
 	}
@@ -118,7 +119,7 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 // yieldStress is the current flow stress of the point at barycentric
 // coordinates l of element e with cumulative plastic strain p, with the
 // interpolated nodal ā and λ of the regularised model.
-func (c *Cycle) yieldStress(m material.Plastic, e int, l [3]float64, p float64) float64 {
+func (c *stage) yieldStress(m material.Plastic, e int, l [3]float64, p float64) float64 {
 	if !c.Prob.Regularised() {
 		return m.FlowStress(p, 0, 0)
 	}
@@ -143,7 +144,7 @@ const maxRepairs = 200
 // are repaired: elsewhere the projected state is the better estimate, and
 // scaling every point outside the surface disturbs a converged state more
 // than re-equilibration repairs. It returns the number of points repaired.
-func (c *Cycle) settleTransferred() (int, error) {
+func (c *stage) settleTransferred() (int, error) {
 	pm, _ := c.Cfg.Material.(material.Plastic)
 	rule := fem.ElementRule()
 	for n := 0; ; n++ {
@@ -219,7 +220,7 @@ func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
 
 // install puts transferred (or checkpointed, exact) fields into the
 // current problem as its committed state at pseudo-time t.
-func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
+func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
 	p := c.Prob
 	nn := len(c.Mesh.X)
 	ux, uy := make([]float64, nn), make([]float64, nn)
@@ -272,11 +273,12 @@ func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
 }
 
 // remesh builds the new geometry and mesh for decision d, transfers the
-// state onto it and re-establishes equilibrium at the same load.
+// state onto it and re-establishes equilibrium at the same load. The new
+// mesh replaces the current one only once it is in equilibrium: a failed
+// remesh leaves the run at its last converged state.
 func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
-	t := c.Prob.TCommitted
 	rr := &RemeshRecord{
-		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau, Da: c.Da, Reason: d.Reason,
+		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau(), Da: c.Da, Reason: d.Reason,
 		DofsBefore: c.Prob.Dofs.N, ElemsBefore: len(c.Mesh.Tri),
 	}
 	var err error
@@ -284,23 +286,60 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 		return nil, err
 	}
 	t0 := time.Now()
-	gp := c.GaussPoints()
-	// Elements out of the assembly leave the geometry: the broken ones and
-	// those releasing their force or done with it (what force they still
-	// held is part of the out-of-balance force re-equilibration relaxes).
-	broken := make([]bool, len(c.Mesh.Tri))
-	for e := range broken {
-		broken[e] = c.Prob.Broken(e)
-	}
-	damaged, err := size.DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	field, released, err := c.sizeField()
 	if err != nil {
 		return nil, err
 	}
+	dom, err := c.newGeometry(field, released, rr)
+	if err != nil {
+		return nil, err
+	}
+	rr.GeomWall = time.Since(t0)
+	t0 = time.Now()
+	m, err := c.newMesh(dom, field, rr)
+	if err != nil {
+		return nil, err
+	}
+	rr.MeshWall = time.Since(t0)
+	t0 = time.Now()
+	next, err := c.transferTo(m, rr)
+	if err != nil {
+		return nil, err
+	}
+	rr.MapWall = time.Since(t0)
+	if err := c.settleOn(next, rr); err != nil {
+		next.Prob.Close()
+		return nil, err
+	}
+	c.adopt(next, field, rr)
+	return rr, nil
+}
+
+// sizeField is the tip-following size field of the next mesh, with the
+// elements that leave the geometry: those out of the assembly (broken,
+// or releasing their force; what force they still held is part of the
+// out-of-balance force re-equilibration relaxes).
+func (c *Cycle) sizeField() (*size.TipField, []bool, error) {
+	gp := c.GaussPoints()
+	released := make([]bool, len(c.Mesh.Tri))
+	for e := range released {
+		released[e] = c.Prob.Broken(e)
+	}
+	damaged, err := size.DamagedPoints(gp, released, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	if err != nil {
+		return nil, nil, err
+	}
 	tf, err := size.NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
 	if err != nil {
-		return nil, fmt.Errorf("size field: %w", err)
+		return nil, nil, fmt.Errorf("size field: %w", err)
 	}
-	carved, err := carve.Domain(c.Mesh, broken, c.Cfg.Domain, c.Tips, tf.At, c.Cfg.Carve)
+	return tf, released, nil
+}
+
+// newGeometry is the domain of the material left when the released
+// elements are carved away.
+func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRecord) (*geom.Domain, error) {
+	carved, err := carve.Domain(c.Mesh, released, c.Cfg.Domain, c.Tips, field.At, c.Cfg.Carve)
 	if err != nil {
 		return nil, fmt.Errorf("new geometry: %w", err)
 	}
@@ -309,10 +348,12 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 			rr.Removed++
 		}
 	}
-	rr.GeomWall = time.Since(t0)
+	return carved.Domain, nil
+}
 
-	t0 = time.Now()
-	m, rep, err := meshing.Mesh(carved.Domain, tf.At, c.Cfg.Mesh)
+// newMesh meshes the new domain to the size field.
+func (c *Cycle) newMesh(dom *geom.Domain, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
+	m, rep, err := meshing.Mesh(dom, field.At, c.Cfg.Mesh)
 	if err != nil {
 		return nil, fmt.Errorf("new mesh: %w", err)
 	}
@@ -321,15 +362,18 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 	for e := range m.Tri {
 		rr.MinSize = math.Min(rr.MinSize, trigger.LongestEdge(m, e))
 	}
-	rr.MeshWall = time.Since(t0)
+	return m, nil
+}
 
-	t0 = time.Now()
+// transferTo maps the committed state onto mesh m: the new problem, its
+// committed state the transferred one, made compatible with the
+// transferred displacement (volume projection, plastic strain).
+func (c *Cycle) transferTo(m *fem.Mesh, rr *RemeshRecord) (*stage, error) {
 	from, err := c.fields()
 	if err != nil {
 		return nil, err
 	}
-	opt := c.Cfg.Transfer
-	to, trec, err := transfer.Map(c.Mesh, from, m, opt)
+	to, trec, err := transfer.Map(c.Mesh, from, m, c.Cfg.Transfer)
 	if err != nil {
 		return nil, fmt.Errorf("transfer: %w", err)
 	}
@@ -339,78 +383,79 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 		rr.WorkBefore, rr.WorkAfter = trec.Before.IntHistory[0], trec.After.IntHistory[0]
 	}
 	rr.Verbatim = trec.Verbatim
-	// The new problem replaces the old one only once it is in
-	// equilibrium: a failed remesh leaves the run at its last converged
-	// state (the final checkpoint and fields are of that state).
-	p, err := c.newProblem(m)
+	next, err := c.newStage(m)
 	if err != nil {
 		return nil, err
 	}
-	oldMesh, oldProb, oldPeak := c.Mesh, c.Prob, c.PeakDofs
-	c.Mesh, c.Prob = m, p
-	c.PeakDofs = max(c.PeakDofs, p.Dofs.N)
-	done := false
-	defer func() {
-		if done {
-			oldProb.Close()
-			return
-		}
-		p.Close()
-		c.Mesh, c.Prob, c.PeakDofs = oldMesh, oldProb, oldPeak
-		c.GaussPoints() // the Gauss-point view of the restored problem
-	}()
-	if err := c.install(to, t, false); err != nil {
-		return nil, fmt.Errorf("install transferred state: %w", err)
-	}
-	if err := c.Prob.ProjectVolume(); err != nil {
-		return nil, fmt.Errorf("transferred state: %w", err)
-	}
-	if err := c.reconcilePlasticStrain(to); err != nil {
-		return nil, fmt.Errorf("transferred state: %w", err)
-	}
-	rr.MapWall = time.Since(t0)
-
-	// The reaction right after the transfer, before any iteration.
-	if _, err := c.settleTransferred(); err != nil {
-		return nil, fmt.Errorf("assembly after transfer: %w", err)
-	}
-	c.Prob.AdoptAssembled()
-	if _, rr.ForceTransfer, err = c.Cfg.Measure(c.Prob); err != nil {
+	if err := next.installTransferred(to, c.Prob.TCommitted); err != nil {
+		next.Prob.Close()
 		return nil, err
 	}
-
-	t0 = time.Now()
-	sopt := c.Cfg.Solver
-	sopt.Dt = math.Min(math.Max(c.Dt, sopt.DtMin), sopt.DtMax)
-	s, err := solver.New(c.Prob, sopt)
-	if err != nil {
-		return nil, err
-	}
-	its, err := c.reequilibrate(s, t)
-	rr.Iterations = its
-	if err != nil {
-		return nil, fmt.Errorf("re-equilibration at load factor %g: %w", t, err)
-	}
-	rr.EquilWall = time.Since(t0)
-	if _, rr.ForceAfter, err = c.Cfg.Measure(c.Prob); err != nil {
-		return nil, err
-	}
-	rr.DofsAfter, rr.ElemsAfter = c.Prob.Dofs.N, len(m.Tri)
-	c.Zone = tf.Zone()
-	c.Remeshes++
-	done = true
-	return rr, nil
+	return next, nil
 }
 
-// reequilibrate brings the transferred state into equilibrium at load
-// factor load: one increment to the same load, or — when that fails (a
+// installTransferred puts the transferred fields into the new problem at
+// load factor t and makes them compatible with the transferred
+// displacement.
+func (c *stage) installTransferred(to *transfer.Fields, t float64) error {
+	if err := c.install(to, t, false); err != nil {
+		return fmt.Errorf("install transferred state: %w", err)
+	}
+	if err := c.Prob.ProjectVolume(); err != nil {
+		return fmt.Errorf("transferred state: %w", err)
+	}
+	if err := c.reconcilePlasticStrain(to); err != nil {
+		return fmt.Errorf("transferred state: %w", err)
+	}
+	return nil
+}
+
+// settleOn evaluates the transferred state on the new stage (repairing
+// the points whose update fails on it), records the force right after the
+// transfer, moves the solver onto the new problem and re-establishes
+// equilibrium at the same load.
+func (c *Cycle) settleOn(next *stage, rr *RemeshRecord) error {
+	if _, err := next.settleTransferred(); err != nil {
+		return fmt.Errorf("assembly after transfer: %w", err)
+	}
+	next.Prob.AdoptAssembled()
+	var err error
+	if _, rr.ForceTransfer, err = c.Cfg.Measure(next.Prob); err != nil {
+		return err
+	}
+	t0 := time.Now()
+	if err := c.rebindSolver(next.Prob); err != nil {
+		return err
+	}
+	its, err := next.reequilibrate(c.solver)
+	rr.Iterations = its
+	if err != nil {
+		return fmt.Errorf("re-equilibration at load factor %g: %w", next.Prob.TCommitted, err)
+	}
+	rr.EquilWall = time.Since(t0)
+	_, rr.ForceAfter, err = c.Cfg.Measure(next.Prob)
+	return err
+}
+
+// adopt makes the re-equilibrated new stage the current one.
+func (c *Cycle) adopt(next *stage, field *size.TipField, rr *RemeshRecord) {
+	rr.DofsAfter, rr.ElemsAfter = next.Prob.Dofs.N, len(next.Mesh.Tri)
+	c.Prob.Close()
+	c.stage = *next
+	c.PeakDofs = max(c.PeakDofs, next.Prob.Dofs.N)
+	c.Zone = field.Zone()
+	c.Remeshes++
+}
+
+// reequilibrate brings the transferred state into equilibrium at the
+// committed load factor: one increment to the same load, or — when that fails (a
 // full Newton solve against the whole out-of-balance force inverts
 // elements at a blunted, softening tip) — by relaxing the out-of-balance
 // force r₀ of the transferred state in steps, R(u) = (1 − s)·r₀ for s
 // rising to 1 (common practice: incremental release of the residual
 // forces after a mesh change). It returns the Newton iterations spent.
-func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
-	st, err := s.Increment(load)
+func (c *stage) reequilibrate(s *solver.Solver) (int, error) {
+	st, err := s.Settle()
 	its := st.Iterations
 	if err == nil {
 		return its, nil
@@ -437,7 +482,7 @@ func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
 	for done < 1 {
 		next := math.Min(1, done+ds)
 		p.SetImbalanceScale(1 - next)
-		st, err := s.Increment(load)
+		st, err := s.Settle()
 		its += st.Iterations
 		if err != nil {
 			if ds /= 2; ds < 1.0/256 {

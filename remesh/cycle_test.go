@@ -26,7 +26,7 @@ type recorder struct {
 	stopErr error
 }
 
-func (r *recorder) Step(s *StepRecord, c *Cycle) error {
+func (r *recorder) Step(s *StepRecord, v View) error {
 	r.steps = append(r.steps, *s)
 	if r.stopAt > 0 && s.Step == r.stopAt {
 		return r.stopErr
@@ -34,7 +34,7 @@ func (r *recorder) Step(s *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (r *recorder) Remesh(s *RemeshRecord, c *Cycle) error {
+func (r *recorder) Remesh(s *RemeshRecord, v View) error {
 	r.remesh = append(r.remesh, *s)
 	return nil
 }

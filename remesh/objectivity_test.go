@@ -125,7 +125,7 @@ type barObserver struct {
 	peak float64
 }
 
-func (o *barObserver) Step(r *StepRecord, c *Cycle) error {
+func (o *barObserver) Step(r *StepRecord, v View) error {
 	o.run.Elong = append(o.run.Elong, r.Control)
 	o.run.Force = append(o.run.Force, r.Force)
 	o.peak = math.Max(o.peak, r.Force)
@@ -135,7 +135,7 @@ func (o *barObserver) Step(r *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (o *barObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (o *barObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // bandWidth measures the band f ≥ level about the mirror plane y = 0: twice
 // the area of the region within x ≤ col, y ≤ ylim divided by col (its mean
@@ -480,7 +480,8 @@ type columnObserver struct {
 	w, at                float64
 }
 
-func (o *columnObserver) Step(r *StepRecord, c *Cycle) error {
+func (o *columnObserver) Step(r *StepRecord, v View) error {
+	c := v.c
 	if r.MaxPorosity < o.fBreak {
 		return nil
 	}
@@ -489,7 +490,7 @@ func (o *columnObserver) Step(r *StepRecord, c *Cycle) error {
 	return solver.ErrStop
 }
 
-func (o *columnObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (o *columnObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // pulledEdge returns the boundary conditions and the measure of a specimen
 // whose edge label is displaced by uy·t in y (fix says which components

@@ -128,7 +128,8 @@ type turnWatch struct {
 	start           time.Time
 }
 
-func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
+func (w *turnWatch) Step(r *StepRecord, v View) error {
+	c := v.c
 	w.steps = append(w.steps, *r)
 	for _, tp := range c.Tips {
 		dep := c.Zone.Depth(tp.X)
@@ -160,7 +161,8 @@ func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (w *turnWatch) Remesh(r *RemeshRecord, c *Cycle) error {
+func (w *turnWatch) Remesh(r *RemeshRecord, v View) error {
+	c := v.c
 	w.remeshes = append(w.remeshes, *r)
 	w.remeshTipY = append(w.remeshTipY, c.Tips[0].X[1])
 	w.t.Logf("remesh %d at step %d (Δa %.4f): %s; dofs %d → %d, removed %d, %d iterations; geometry %v mesh %v map %v equilibrium %v",
