@@ -79,6 +79,39 @@ func (o Options) Validate() error {
 	return nil
 }
 
+// GaussData is what a Gauss point carries besides its material state. W,
+// F and P are those of fem.GaussPoint: a checkpoint restores the committed
+// points exactly from them, and a transfer keeps W for the work integral of
+// the Record. Ee is the elastic logarithmic strain the material saw: it is
+// the stress-carrying part of the strain, smooth where the plastic strain
+// is not, so that the caller can rebuild Eᵖ from it and the new
+// displacement.
+type GaussData struct {
+	W  float64      // stress-work density per reference volume
+	F  [5]float64   // deformation gradient (components 11, 12, 21, 22, 33)
+	P  [5]float64   // first Piola–Kirchhoff stress (same layout)
+	Ee material.Sym // elastic logarithmic strain Ẽ − Eᵖ
+}
+
+// gaussComponents is the number of values of a GaussData.
+const gaussComponents = 15
+
+// put stores the values of d in v, in the order W, F, P, Ee.
+func (d *GaussData) put(v []float64) {
+	v[0] = d.W
+	copy(v[1:6], d.F[:])
+	copy(v[6:11], d.P[:])
+	copy(v[11:15], d.Ee[:])
+}
+
+// get sets d from the values of v, in the order of put.
+func (d *GaussData) get(v []float64) {
+	d.W = v[0]
+	copy(d.F[:], v[1:6])
+	copy(d.P[:], v[6:11])
+	copy(d.Ee[:], v[11:15])
+}
+
 // Fields is the mechanical state on a mesh.
 type Fields struct {
 	// U is the displacement of every node.
@@ -90,9 +123,9 @@ type Fields struct {
 	// the number of points of fem.ElementRule (the layout of
 	// fem.GaussPoints).
 	State []material.State
-	// History holds extra per-Gauss-point arrays (stress-work density W,
-	// …), each in the layout of State.
-	History [][]float64
+	// Gauss is the Gauss-point data in the layout of State, or nil
+	// (none carried).
+	Gauss []GaussData
 }
 
 // Check verifies that the field sizes fit mesh m.
@@ -112,10 +145,8 @@ func (f *Fields) Check(m *fem.Mesh) error {
 	if len(f.State) != np {
 		return fmt.Errorf("fields: state has %d points for %d triangles × %d", len(f.State), len(m.Tri), fem.ElementRule().Len())
 	}
-	for k, h := range f.History {
-		if len(h) != np {
-			return fmt.Errorf("fields: history %d has %d points, want %d", k, len(h), np)
-		}
+	if f.Gauss != nil && len(f.Gauss) != np {
+		return fmt.Errorf("fields: Gauss-point data has %d points, want %d", len(f.Gauss), np)
 	}
 	return nil
 }
@@ -126,8 +157,9 @@ type Measures struct {
 	MaxF float64
 	// IntP is ∫ p dV (dV = dA, or 2πr dA in axisymmetry).
 	IntP float64
-	// IntHistory is ∫ h dV of every history array.
-	IntHistory []float64
+	// Work is ∫ W dV of the stress-work density of the Gauss-point data
+	// (0 without it).
+	Work float64
 	// Volume is ∫ dV.
 	Volume float64
 	// Broken counts the broken points.
@@ -242,17 +274,21 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 	}
 	tick(&rec.Wall.Locate)
 
-	// Recovery on the old mesh: Ep (4), p, f, history.
-	nh := len(from.History)
-	nc := 6 + nh
+	// Recovery on the old mesh: Ep (4), p, f, then the Gauss-point data
+	// component by component.
+	gauss := from.Gauss != nil
+	nc := 6
+	if gauss {
+		nc += gaussComponents
+	}
 	vals := make([]float64, len(from.State)*nc)
 	use := make([]bool, len(from.State))
 	for i, s := range from.State {
 		v := vals[i*nc : i*nc+nc]
 		copy(v, s.Ep[:])
 		v[4], v[5] = s.P, s.F
-		for k, h := range from.History {
-			v[6+k] = h[i]
+		if gauss {
+			from.Gauss[i].put(v[6:])
 		}
 		use[i] = !s.Broken
 	}
@@ -270,9 +306,8 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 
 	// Evaluation at the new points, bounds, broken points.
 	to.State = make([]material.State, len(newX))
-	to.History = make([][]float64, nh)
-	for k := range to.History {
-		to.History[k] = make([]float64, len(newX))
+	if gauss {
+		to.Gauss = make([]GaussData, len(newX))
 	}
 	fMax := math.Nextafter(opt.FBreak, math.Inf(-1))
 	kind := make([]uint8, len(newX))
@@ -292,8 +327,8 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 				for q := 0; q < nq; q++ {
 					j := oe*nq + pm[q]
 					to.State[e*nq+q] = from.State[j]
-					for k := range to.History {
-						to.History[k][e*nq+q] = from.History[k][j]
+					if gauss {
+						to.Gauss[e*nq+q] = from.Gauss[j]
 					}
 					kind[e*nq+q] = kVerbatim
 				}
@@ -312,8 +347,8 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 				}
 				if from.State[near].Broken {
 					to.State[i] = from.State[near]
-					for k := range to.History {
-						to.History[k][i] = from.History[k][near]
+					if gauss {
+						to.Gauss[i] = from.Gauss[near]
 					}
 					kind[i] = kBroken
 					continue
@@ -335,8 +370,8 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 					s.Ep[2] += d
 				}
 				to.State[i] = s
-				for k := range to.History {
-					to.History[k][i] = v[6+k]
+				if gauss {
+					to.Gauss[i].get(v[6:])
 				}
 				if h.Inside {
 					kind[i] = kProjected
@@ -391,7 +426,7 @@ func Measure(m *fem.Mesh, f *Fields, axisymmetric bool) (Measures, error) {
 }
 
 func measure(f *Fields, x [][2]float64, da []float64, axisymmetric bool) Measures {
-	ms := Measures{IntHistory: make([]float64, len(f.History))}
+	var ms Measures
 	for i, s := range f.State {
 		dv := da[i]
 		if axisymmetric {
@@ -399,8 +434,8 @@ func measure(f *Fields, x [][2]float64, da []float64, axisymmetric bool) Measure
 		}
 		ms.Volume += dv
 		ms.IntP += s.P * dv
-		for k, h := range f.History {
-			ms.IntHistory[k] += h[i] * dv
+		if f.Gauss != nil {
+			ms.Work += f.Gauss[i].W * dv
 		}
 		if s.Broken {
 			ms.Broken++
