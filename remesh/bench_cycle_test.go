@@ -5,7 +5,6 @@ import (
 	"testing"
 	"time"
 
-	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/sparse"
 	"tearline/transfer"
@@ -193,7 +192,7 @@ func BenchmarkCycleRemesh(b *testing.B) {
 		if err := p.Assemble(true); err != nil {
 			b.Fatal(err)
 		}
-		lu := &solver.Equilibrated{Inner: &sparse.LU{}}
+		lu := &sparse.LU{}
 		if err := lu.Analyze(p.K); err != nil {
 			b.Fatal(err)
 		}

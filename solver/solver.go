@@ -72,8 +72,8 @@ type Options struct {
 	// increments) instead of the last converged state; retries after a
 	// failure start from the converged state.
 	Extrapolate bool
-	// Linear is the linear solver; nil means an equilibrated sparse.LU
-	// with its default options.
+	// Linear is the linear solver; nil means a sparse.LU with its default
+	// options (which equilibrates the tangent's rows and columns).
 	Linear LinearSolver
 	// StrainCap, if > 0, limits a Newton correction to at most this
 	// change of strain: where the relative displacement correction of the
@@ -217,7 +217,7 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 	}
 	s := &Solver{P: p, Opt: opt, lin: opt.Linear, dt: opt.Dt}
 	if s.lin == nil {
-		s.lin = &Equilibrated{Inner: &sparse.LU{}}
+		s.lin = &sparse.LU{}
 	}
 	n := p.Dofs.N
 	s.du = make([]float64, n)
