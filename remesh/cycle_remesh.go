@@ -6,6 +6,10 @@ import (
 	"math"
 	"time"
 
+	"tearline/remesh/carve"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -260,7 +264,7 @@ func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
 
 // remesh builds the new geometry and mesh for decision d, transfers the
 // state onto it and re-establishes equilibrium at the same load.
-func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
+func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 	t := c.Prob.TCommitted
 	rr := &RemeshRecord{
 		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau, Da: c.Da, Reason: d.Reason,
@@ -279,15 +283,15 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	for e := range broken {
 		broken[e] = c.Prob.Broken(e)
 	}
-	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	damaged, err := size.DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
 	if err != nil {
 		return nil, err
 	}
-	tf, err := NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
+	tf, err := size.NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
 	if err != nil {
 		return nil, fmt.Errorf("size field: %w", err)
 	}
-	carved, err := Carve(c.Mesh, broken, c.Cfg.Domain, c.Tips, tf.At, c.Cfg.Carve)
+	carved, err := carve.Domain(c.Mesh, broken, c.Cfg.Domain, c.Tips, tf.At, c.Cfg.Carve)
 	if err != nil {
 		return nil, fmt.Errorf("new geometry: %w", err)
 	}
@@ -299,14 +303,14 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 	rr.GeomWall = time.Since(t0)
 
 	t0 = time.Now()
-	m, rep, err := MeshDomain(carved.Domain, tf.At, c.Cfg.Mesh)
+	m, rep, err := meshing.Mesh(carved.Domain, tf.At, c.Cfg.Mesh)
 	if err != nil {
 		return nil, fmt.Errorf("new mesh: %w", err)
 	}
 	rr.MinAngle = rep.MinAngleDeg
 	rr.MinSize = math.Inf(1)
 	for e := range m.Tri {
-		rr.MinSize = math.Min(rr.MinSize, LongestEdge(m, e))
+		rr.MinSize = math.Min(rr.MinSize, trigger.LongestEdge(m, e))
 	}
 	rr.MeshWall = time.Since(t0)
 
