@@ -10,7 +10,6 @@ import (
 	"tearline/remesh/meshing"
 	"tearline/remesh/size"
 	"tearline/remesh/trigger"
-	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/sparse"
 	"tearline/transfer"
@@ -198,7 +197,7 @@ func BenchmarkCycleRemesh(b *testing.B) {
 		if err := p.Assemble(true); err != nil {
 			b.Fatal(err)
 		}
-		lu := &solver.Equilibrated{Inner: &sparse.LU{}}
+		lu := &sparse.LU{}
 		if err := lu.Analyze(p.K); err != nil {
 			b.Fatal(err)
 		}

@@ -16,7 +16,7 @@ import (
 
 // checkpointVersion changes whenever the layout below does; an older
 // checkpoint is refused with a clear error rather than misread.
-const checkpointVersion = 3
+const checkpointVersion = 4
 
 // checkpoint is everything a run needs to continue exactly where it was:
 // the mesh, the committed fields and Gauss-point state, the pseudo-time and

@@ -40,27 +40,17 @@ func (c *stage) fields() (*transfer.Fields, error) {
 	gp := c.GaussPoints()
 	n := len(gp.Points)
 	f.State = make([]material.State, n)
-	// History: the stress work W, the 5 components of F and of P (kept so
-	// that a checkpoint restores the committed points exactly), and the 4
-	// components of the elastic log strain Eᵉ = E(F) − Eᵖ (see
-	// reconcilePlasticStrain).
-	f.History = make([][]float64, 15)
-	for k := range f.History {
-		f.History[k] = make([]float64, n)
-	}
+	f.Gauss = make([]transfer.GaussData, n)
 	for i := range gp.Points {
 		g := &gp.Points[i]
 		f.State[i] = g.State
-		f.History[0][i] = g.W
-		for k := 0; k < 5; k++ {
-			f.History[1+k][i] = g.F[k]
-			f.History[6+k][i] = g.P[k]
-		}
-		// The elastic strain the material saw: in the three-field element
-		// the trace of E is θ, not tr E(F), and σ_m = K(θ − tr Eᵖ).
+		d := &f.Gauss[i]
+		d.W, d.F, d.P = g.W, g.F, g.P
+		// The elastic strain the material saw (see reconcilePlasticStrain);
+		// zero where the element is inverted.
 		if E, err := c.Prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement); err == nil {
 			for k := 0; k < 4; k++ {
-				f.History[11+k][i] = E[k] - g.State.Ep[k]
+				d.Ee[k] = E[k] - g.State.Ep[k]
 			}
 		}
 	}
@@ -69,15 +59,17 @@ func (c *stage) fields() (*transfer.Fields, error) {
 
 // reconcilePlasticStrain makes the transferred state compatible with the
 // transferred displacement: at a new Gauss point where the two disagree by
-// more than twice the elastic strain, the plastic strain is set to Eᵖ = E(F(u)) − Eᵉ, with Eᵉ the projected elastic strain. The
-// recovered Eᵖ is smoothed where the plastic strain peaks, while u is
-// interpolated exactly; their mismatch would appear as an elastic strain of
-// the size of the plastic one (stresses of tens of GPa at a crack tip).
-// Transferring the elastic strain and letting Eᵖ absorb the difference keeps
-// the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
+// more than twice the elastic strain, the plastic strain is set to
+// Eᵖ = Ẽ(u) − Eᵉ, with Ẽ the strain the material sees
+// (fem.Problem.MaterialStrain) and Eᵉ the projected elastic strain
+// (transfer.GaussData.Ee). The recovered Eᵖ is smoothed where the plastic
+// strain peaks, while u is interpolated exactly; their mismatch would
+// appear as an elastic strain of the size of the plastic one (stresses of
+// tens of GPa at a crack tip). Transferring the elastic strain and letting
+// Eᵖ absorb the difference keeps the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
 // on transfer operators for evolving meshes).
 func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
-	if len(f.History) < 15 {
+	if f.Gauss == nil {
 		return nil
 	}
 	nq := fem.ElementRule().Len()
@@ -101,9 +93,9 @@ func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
 			// Only where the mismatch is large against the elastic strain
 			// itself: elsewhere the projected Eᵖ is the better estimate
 			// and is kept.
-			var ee, mis material.Sym
+			ee := f.Gauss[i].Ee
+			var mis material.Sym
 			for k := 0; k < 4; k++ {
-				ee[k] = f.History[11+k][i]
 				mis[k] = E[k] - s.Ep[k] - ee[k]
 			}
 			if math.Sqrt(mis.Ddot(mis)) > 2*math.Max(math.Sqrt(ee.Ddot(ee)), 1e-4) {
@@ -203,19 +195,18 @@ func (c *stage) settleTransferred() (int, error) {
 	}
 }
 
-// gaussData unpacks the History arrays of fields into W, F and P.
+// gaussData unpacks the Gauss-point data of f into W, F and P in the
+// layout of fem.Problem.SetGaussData.
 func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
-	if len(f.History) < 11 {
-		return nil, nil, nil, fmt.Errorf("state holds %d history arrays, want at least 11 (W, F, P)", len(f.History))
+	if f.Gauss == nil {
+		return nil, nil, nil, errors.New("the state holds no Gauss-point data (W, F, P)")
 	}
-	n := len(f.History[0])
-	F, P = make([][5]float64, n), make([][5]float64, n)
-	for i := 0; i < n; i++ {
-		for k := 0; k < 5; k++ {
-			F[i][k], P[i][k] = f.History[1+k][i], f.History[6+k][i]
-		}
+	n := len(f.Gauss)
+	F, P, W = make([][5]float64, n), make([][5]float64, n), make([]float64, n)
+	for i, d := range f.Gauss {
+		F[i], P[i], W[i] = d.F, d.P, d.W
 	}
-	return F, P, f.History[0], nil
+	return F, P, W, nil
 }
 
 // install puts transferred (or checkpointed, exact) fields into the
@@ -379,9 +370,7 @@ func (c *Cycle) transferTo(m *fem.Mesh, rr *RemeshRecord) (*stage, error) {
 	}
 	rr.MaxFBefore, rr.MaxFAfter = trec.Before.MaxF, trec.After.MaxF
 	rr.IntPBefore, rr.IntPAfter = trec.Before.IntP, trec.After.IntP
-	if len(trec.Before.IntHistory) > 0 && len(trec.After.IntHistory) > 0 {
-		rr.WorkBefore, rr.WorkAfter = trec.Before.IntHistory[0], trec.After.IntHistory[0]
-	}
+	rr.WorkBefore, rr.WorkAfter = trec.Before.Work, trec.After.Work
 	rr.Verbatim = trec.Verbatim
 	next, err := c.newStage(m)
 	if err != nil {

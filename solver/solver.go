@@ -72,8 +72,8 @@ type Options struct {
 	// increments) instead of the last converged state; retries after a
 	// failure start from the converged state.
 	Extrapolate bool
-	// Linear is the linear solver; nil means an equilibrated sparse.LU
-	// with its default options.
+	// Linear is the linear solver; nil means a sparse.LU with its default
+	// options (which equilibrates the tangent's rows and columns).
 	Linear LinearSolver
 	// StrainCap, if > 0, limits a Newton correction to at most this
 	// change of strain: where the relative displacement correction of the
@@ -228,7 +228,7 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 }
 
 // defaultLinear is the linear solver used when Options.Linear is nil.
-func defaultLinear() LinearSolver { return &Equilibrated{Inner: &sparse.LU{}} }
+func defaultLinear() LinearSolver { return &sparse.LU{} }
 
 // allocate sizes the work vectors for n unknowns.
 func (s *Solver) allocate(n int) {

@@ -38,9 +38,11 @@
 //
 // # Gauss-point state
 //
-// The plastic strain Ep (4 components), p, f and any extra history arrays are
-// recovered as continuous linear fields on the old corner nodes and evaluated
-// at the new Gauss points. Two recoveries are offered:
+// The plastic strain Ep (4 components), p, f and, when the Fields carry
+// them, the components of the Gauss-point data (GaussData: stress work W,
+// deformation gradient F, first Piola–Kirchhoff stress P, elastic strain
+// Eᵉ) are recovered one by one as continuous linear fields on the old corner
+// nodes and evaluated at the new Gauss points. Two recoveries are offered:
 //
 //   - PatchRecovery (default): for every old corner node a linear polynomial
 //     is fitted by least squares to the Gauss-point values of the old
@@ -69,20 +71,20 @@
 // ḟ = (1−f) tr Ėᵖ implies (Gurson 1977; Tvergaard 1981) — not valid with
 // nucleation, hence off by default. A new point whose nearest old Gauss point
 // (within the old triangle that contains it) is broken stays broken and takes
-// that point's state and history verbatim.
+// that point's state and Gauss-point data verbatim.
 //
 // # Unchanged elements
 //
 // A new triangle whose three corner coordinates equal those of an old
 // triangle exactly, in any rotation of the vertex order, takes that
-// triangle's Gauss-point states and history verbatim: a rotation of the
+// triangle's Gauss-point states and data verbatim: a rotation of the
 // vertices permutes the area coordinates, and the symmetric rule of
 // fem.ElementRule maps onto itself under it, so every new point has an old
 // point with identical area coordinates.
 //
 // # Record
 //
-// Map returns a Record: maximum porosity, ∫p dV and ∫ of every history array
+// Map returns a Record: maximum porosity, ∫p dV and the stress work ∫W dV
 // (area weight, or 2πr dA in axisymmetry) before and after, the counts of
 // verbatim, projected, extrapolated and broken points, the clamps applied,
 // and the wall time of every phase. Reaction forces before and after
@@ -92,7 +94,7 @@
 //
 //	to, rec, err := transfer.Map(oldMesh, &transfer.Fields{
 //		U: u, Linear: [][]float64{theta, pres, abar, lambda},
-//		State: states, History: [][]float64{w},
+//		State: states, Gauss: data,
 //	}, newMesh, opt)
 //
 // Location alone:
