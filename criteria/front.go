@@ -10,12 +10,6 @@ import (
 	"tearline/solver/plane"
 )
 
-// Seed is an initial crack tip: its reference position and the initial
-// crack direction (need not be unit length).
-type Seed struct {
-	X, Dir [2]float64
-}
-
 // FrontOptions selects the porosity levels and the initial tips of
 // LocateFront.
 type FrontOptions struct {
@@ -28,8 +22,8 @@ type FrontOptions struct {
 	// FTip is the level that marks cracked material for the crack tip;
 	// 0 means FFront.
 	FTip float64
-	// Tips are the initial crack tips; one Tip is returned for each.
-	Tips []Seed
+	// Tips are the initial crack tips; one Growth is returned for each.
+	Tips []Tip
 	// CrackLabel names the boundary label of crack faces made by removing
 	// broken material; their nodes ahead of an initial tip count as cracked.
 	// "" means "crack". A mesh without the label is fine.
@@ -80,12 +74,13 @@ func (o *FrontOptions) Validate() error {
 	return nil
 }
 
-// Tip is a located crack tip.
-type Tip struct {
-	Seed   int        // index of the initial tip in FrontOptions.Tips
-	X      [2]float64 // tip position (reference configuration)
-	DA     float64    // crack extension Δa along the path from the initial tip
-	DAProj float64    // Δa projected on the initial crack direction
+// Growth is how far one crack tip has grown: the located tip (its Dir
+// along the last part of the path, see pathDirection) and the path to it.
+type Growth struct {
+	Tip            // current tip (reference configuration)
+	Seed   int     // index of the initial tip in FrontOptions.Tips
+	DA     float64 // crack extension Δa along the path from the initial tip
+	DAProj float64 // Δa projected on the initial crack direction
 	// Path is the crack path from the initial tip to X (a polyline with
 	// the mesh zigzag removed), whose length is DA.
 	Path [][2]float64
@@ -99,7 +94,7 @@ type Front struct {
 	Level float64        // the contour level f_front
 	Lines [][][2]float64 // the contour f = f_front as polylines, the longest first; a closed line repeats its first point at the end
 	Nodal []float64      // recovered porosity at every node
-	Tips  []Tip          // one per initial tip
+	Tips  []Growth       // one per initial tip
 }
 
 // subTri are the four linear sub-triangles of a 6-node triangle (local
@@ -318,7 +313,7 @@ func (p *pq) Pop() interface{} {
 }
 
 // locateTips runs the multi-source shortest-path search and picks the tips.
-func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip {
+func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Growth {
 	nn := len(m.X)
 	// Sub-triangle edge adjacency in compressed rows (an edge shared by two
 	// elements appears twice, which is harmless).
@@ -458,9 +453,9 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			}
 		}
 	}
-	tips := make([]Tip, len(opt.Tips))
+	tips := make([]Growth, len(opt.Tips))
 	for s, sd := range opt.Tips {
-		tips[s] = Tip{Seed: s, X: sd.X, Path: [][2]float64{sd.X}}
+		tips[s] = Growth{Tip: sd, Seed: s, Path: [][2]float64{sd.X}}
 	}
 	// Candidates: cracked nodes, and the points beyond them where f falls
 	// through f_tip along an edge. The graph length glen over-estimates the
@@ -518,20 +513,21 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		sort.Slice(rs, func(i, j int) bool { return rs[i].len > rs[j].len })
 		// The few longest are pulled taut inside the cracked material; the
 		// longest taut path wins.
-		var best Tip
+		var best Growth
 		for i, r := range rs {
 			if i >= 48 {
 				break
 			}
 			path := pullTaut(r.path, vis)
 			if l := polyLength(path); l > best.DA || i == 0 {
-				best = Tip{Seed: s, X: r.c.x, DA: l, Path: path, Grown: true}
+				best = Growth{Tip: Tip{Name: opt.Tips[s].Name, X: r.c.x}, Seed: s, DA: l, Path: path, Grown: true}
 			}
 		}
 		d0, _ := frame(opt.Tips[s].Dir)
 		sx := opt.Tips[s].X
 		best.DAProj = (best.X[0]-sx[0])*d0[0] + (best.X[1]-sx[1])*d0[1]
 		if best.DA > tol {
+			best.Dir = pathDirection(best.Path, best.DA, opt.Tips[s].Dir)
 			tips[s] = best
 		}
 	}

@@ -7,6 +7,8 @@ import (
 	"io"
 	"time"
 
+	"tearline/criteria"
+	"tearline/remesh/size"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/transfer"
@@ -31,8 +33,8 @@ type checkpoint struct {
 	Steps, Remeshes int
 	PeakDofs        int
 	Da, DaProj      float64
-	Tips            []Tip
-	Zone            FineZone
+	Tips            []criteria.Tip
+	Zone            size.FineZone
 	Wall            time.Duration
 	// Prev is the solver's last converged increment (its predictor for
 	// the next one).
@@ -89,8 +91,7 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall, Tau: cp.Tau, prev: cp.Prev, offset: cp.Offset, hasOffset: cfg.Control != nil}
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
-		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))
-		c.seedDir = append(c.seedDir, pt.Dir)
+		c.Seeds = append(c.Seeds, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
 	}
 	if err := c.setMesh(cp.Mesh); err != nil {
 		return nil, nil, err

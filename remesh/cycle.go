@@ -8,7 +8,11 @@ import (
 	"time"
 
 	"tearline/criteria"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -21,8 +25,8 @@ type CycleConfig struct {
 	Domain *geom.Domain
 	// Size sets up the initial mesh's size field (fine zone around every
 	// crack tip of Domain); Mesh the triangulator.
-	Size SizeOptions
-	Mesh MeshOptions
+	Size size.Options
+	Mesh meshing.Options
 
 	FE       fem.Options
 	Material material.Model
@@ -52,9 +56,9 @@ type CycleConfig struct {
 	// Adapt switches the adaptive cycle on; the options below are used
 	// only then.
 	Adapt    bool
-	Trigger  TriggerOptions
-	Follow   FollowOptions
-	Carve    CarveOptions
+	Trigger  trigger.Options
+	Follow   size.FollowOptions
+	Carve    carve.Options
 	Transfer transfer.Options
 
 	// J configures the domain integral (rings in units of ℓ, or of h_fine
@@ -154,10 +158,10 @@ type Cycle struct {
 	Cfg   CycleConfig
 	Mesh  *fem.Mesh
 	Prob  *fem.Problem
-	Zone  FineZone
-	Seeds []criteria.Seed
+	Zone  size.FineZone
+	Seeds []criteria.Tip
 	// Tips are the current crack tips (initially the domain's).
-	Tips []Tip
+	Tips []criteria.Tip
 	// Steps, Remeshes count converged steps and remeshes; Dt is the next
 	// increment; PeakDofs the largest problem so far.
 	Steps, Remeshes int
@@ -180,7 +184,6 @@ type Cycle struct {
 	hasOffset bool
 	started   time.Time
 	stop      *stopRequest
-	seedDir   [][2]float64
 	// remeshFails counts the remeshes that failed in a row.
 	remeshFails int
 }
@@ -189,7 +192,7 @@ type stopRequest struct {
 	remesh    bool
 	completed bool
 	reason    string
-	decision  Decision
+	decision  trigger.Decision
 }
 
 // NewCycle meshes the domain and sets up the first problem.
@@ -197,21 +200,21 @@ func NewCycle(cfg CycleConfig) (*Cycle, error) {
 	if cfg.Domain == nil || cfg.Material == nil || cfg.BCs == nil || cfg.Measure == nil {
 		return nil, errors.New("cycle: Domain, Material, BCs and Measure are required")
 	}
-	sf, err := NewSizeField(cfg.Domain, cfg.Size)
+	sf, err := size.NewField(cfg.Domain, cfg.Size)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: initial size field: %w", err)
 	}
-	m, _, err := MeshDomain(cfg.Domain, sf.At, cfg.Mesh)
+	m, _, err := meshing.Mesh(cfg.Domain, sf.At, cfg.Mesh)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: initial mesh: %w", err)
 	}
 	c := &Cycle{Cfg: cfg, Dt: cfg.Solver.Dt}
-	c.Zone = InitialZone(sf, c.hWake())
+	c.Zone = size.InitialZone(sf, c.hWake())
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
-		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))
-		c.Tips = append(c.Tips, Tip{Name: name, X: pt.X, Dir: pt.Dir})
-		c.seedDir = append(c.seedDir, pt.Dir)
+		tip := criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir}
+		c.Seeds = append(c.Seeds, tip)
+		c.Tips = append(c.Tips, tip)
 	}
 	if err := c.setMesh(m); err != nil {
 		return nil, err
@@ -379,7 +382,7 @@ func (c *Cycle) decide(rec *StepRecord) error {
 	if !c.Cfg.Adapt {
 		return nil
 	}
-	d, err := NeedRemesh(c.Mesh, &c.gp, c.Tips, &c.Zone, c.Remeshes, c.Cfg.Trigger)
+	d, err := trigger.Check(c.Mesh, &c.gp, c.Tips, &c.Zone, c.Remeshes, c.Cfg.Trigger)
 	if err != nil {
 		return err
 	}
@@ -451,30 +454,10 @@ func (c *Cycle) locateTips(gp *fem.GaussPoints) error {
 			c.Da, c.DaProj = t.DA, t.DAProj
 		}
 		if i < len(c.Tips) && t.Grown {
-			c.Tips[i].X = t.X
-			c.Tips[i].Dir = tipDirection(t, c.seedDir[i])
+			c.Tips[i] = t.Tip
 		}
 	}
 	return nil
-}
-
-// tipDirection is the growth direction of a tip: the chord of the last part
-// of its path, or the initial direction while the path is short.
-func tipDirection(t criteria.Tip, initial [2]float64) [2]float64 {
-	n := len(t.Path)
-	if n < 2 {
-		return initial
-	}
-	end := t.Path[n-1]
-	for i := n - 2; i >= 0; i-- {
-		d := [2]float64{end[0] - t.Path[i][0], end[1] - t.Path[i][1]}
-		if math.Hypot(d[0], d[1]) > 0 {
-			if i == 0 || math.Hypot(d[0], d[1]) > 0.25*t.DA {
-				return d
-			}
-		}
-	}
-	return initial
 }
 
 // domainJ evaluates J on the configured rings around the first tip.
@@ -525,5 +508,3 @@ func (c *Cycle) brokenCount() int {
 	}
 	return n
 }
-
-func seedOf(x, dir [2]float64) criteria.Seed { return criteria.Seed{X: x, Dir: dir} }

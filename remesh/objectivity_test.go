@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"tearline/remesh/geom"
+	"tearline/remesh/size"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -93,7 +94,7 @@ func notchedBar(bc barCase) (*barRun, error) {
 	so.EasyIter = 5
 	cfg := CycleConfig{
 		Domain:   d,
-		Size:     SizeOptions{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
+		Size:     size.Options{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
 		FE:       fem.Options{Kinematics: fem.Axisymmetric},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: bc.Ell,
 		Solver: so,
@@ -441,7 +442,7 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 	so.EasyIter = 5
 	cfg := CycleConfig{
 		Domain:   d,
-		Size:     SizeOptions{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
+		Size:     size.Options{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
 		Solver: so,
 	}

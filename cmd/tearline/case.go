@@ -12,8 +12,8 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"tearline/remesh"
-	"tearline/remesh/geom"
+	"tearline/remesh/geom/specimen"
+	"tearline/remesh/size"
 )
 
 // caseFile is the whole case file. Only the command line knows this format:
@@ -29,9 +29,9 @@ type caseFile struct {
 	Output   outputSection   `toml:"output"`
 	Adapt    adaptSection    `toml:"adapt"`
 
-	// domain and size are built once by complete and reused by buildRun.
-	domain *geom.Domain
-	size   *remesh.SizeField
+	// specimen and size are built once by complete and reused by buildRun.
+	specimen *specimen.Specimen
+	size     *size.Field
 }
 
 // caseSource remembers where every key of a case came from, so that an

@@ -1,5 +1,7 @@
 package main
 
+import "tearline/remesh/geom"
+
 // complete fills defaults and validates every section of the case. The
 // geometry is built once here so that the loading and adaptivity defaults
 // can follow the specimen (a crack tip switches adaptivity on; the
@@ -8,25 +10,18 @@ func (c *caseFile) complete(src *caseSource) error {
 	if err := c.Material.complete(src); err != nil {
 		return err
 	}
-	d, err := c.Geometry.domain(src)
+	sp, err := c.Geometry.specimen(src)
 	if err != nil {
 		return err
 	}
+	d := sp.Domain
 	sf, err := c.Mesh.sizeField(d, src, c.Material.Length)
 	if err != nil {
 		return err
 	}
-	c.domain, c.size = d, sf
-	_, hasTip := d.Points["tip"]
-	natural := "displacement"
-	for _, l := range d.Labels() {
-		switch l {
-		case "remote":
-			natural = "k_field"
-		case "pin":
-			natural = "pin"
-		}
-	}
+	c.specimen, c.size = sp, sf
+	_, hasTip := d.Points[geom.PointTip]
+	natural := loadKindName(sp.Natural)
 	unit := c.Material.Length // zones of a local model are measured in 2·h_fine
 	if !(unit > 0) {
 		unit = 2 * c.Mesh.HFine
@@ -35,7 +30,7 @@ func (c *caseFile) complete(src *caseSource) error {
 		return err
 	}
 	if c.Loading.Control == "opening" {
-		if err := addOpeningPoints(d, c.Loading.OpeningAt); err != nil {
+		if err := sp.AddOpeningPoints(c.Loading.OpeningAt); err != nil {
 			return badInput("%s: %v", src.where("loading.opening_at"), err)
 		}
 	}

@@ -4,8 +4,10 @@ import (
 	"fmt"
 	"math"
 
-	"tearline/remesh"
 	"tearline/remesh/geom"
+	"tearline/remesh/geom/specimen"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/remesh/tri"
 )
 
@@ -103,9 +105,9 @@ func fillBool(p **bool, def bool) bool {
 	return **p
 }
 
-// domain builds the geometry, filling the defaults of the chosen kind into
+// specimen builds the specimen, filling the defaults of the chosen kind into
 // the section. Errors name the file, line and key.
-func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
+func (g *geometrySection) specimen(src *caseSource) (*specimen.Specimen, error) {
 	if g.Kind == "" {
 		return nil, badInput("%s: missing; set geometry.kind to one of ssy, ct, notched_bar, dent, polygon", src.where("geometry.kind"))
 	}
@@ -118,7 +120,7 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 			return nil, badInput("%s: a [geometry.%s] table is given but geometry.kind is %q; give only the table of the chosen kind", src.where("geometry."+k), k, g.Kind)
 		}
 	}
-	var d *geom.Domain
+	var s *specimen.Specimen
 	var err error
 	var key string // the sub-table for error messages
 	switch g.Kind {
@@ -135,7 +137,7 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 		if e := p.Validate(); e != nil {
 			return nil, badInput("%s: %v", src.where(key), e)
 		}
-		d, err = p.Domain()
+		s, err = specimen.NewSSY(p)
 	case "ct":
 		if g.CT == nil {
 			g.CT = &ctKeys{}
@@ -154,7 +156,7 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 		if e := p.Validate(); e != nil {
 			return nil, badInput("%s: %v", src.where(key), e)
 		}
-		d, err = p.Domain()
+		s, err = specimen.NewCT(p)
 	case "notched_bar":
 		if g.Bar == nil {
 			g.Bar = &barKeys{}
@@ -170,7 +172,7 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 		if e := p.Validate(); e != nil {
 			return nil, badInput("%s: %v", src.where(key), e)
 		}
-		d, err = p.Domain()
+		s, err = specimen.NewNotchedBar(p)
 	case "dent":
 		if g.DENT == nil {
 			g.DENT = &dentKeys{}
@@ -186,7 +188,7 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 		if e := p.Validate(); e != nil {
 			return nil, badInput("%s: %v", src.where(key), e)
 		}
-		d, err = p.Domain()
+		s, err = specimen.NewDENT(p)
 	case "polygon":
 		key = "geometry.polygon"
 		if g.Polygon == nil {
@@ -197,12 +199,12 @@ func (g *geometrySection) domain(src *caseSource) (*geom.Domain, error) {
 		if err != nil {
 			return nil, err
 		}
-		d, g.notes, err = p.Domain()
+		s, g.notes, err = specimen.NewPolygon(p)
 	}
 	if err != nil {
 		return nil, badInput("%s: %v", src.where(key), err)
 	}
-	return d, nil
+	return s, nil
 }
 
 // keyVal is a numeric key of a specimen table and its allowed range:
@@ -323,7 +325,7 @@ type meshSection struct {
 
 // sizeField fills the defaults of the section and returns the size field.
 // length is material.length (ℓ), which sets the default h_fine = ℓ/2.
-func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64) (*remesh.SizeField, error) {
+func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64) (*size.Field, error) {
 	if m.HFine == 0 {
 		if !(length > 0) {
 			return nil, badInput("%s: missing; it defaults to material.length/2, but material.length is %g (a local model): give mesh.h_fine", src.where("mesh.h_fine"), length)
@@ -334,7 +336,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, err
 	}
 	if m.HFar == 0 {
-		m.HFar = remesh.DefaultFarFactor * m.HFine
+		m.HFar = size.DefaultFarFactor * m.HFine
 		if d != nil {
 			m.HFar = math.Max(m.HFine, math.Min(m.HFar, d.Scale()/20))
 		}
@@ -346,7 +348,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, badInput("%s: %g must be ≥ mesh.h_fine = %g", src.where("mesh.h_far"), m.HFar, m.HFine)
 	}
 	if m.FineRadius == 0 {
-		m.FineRadius = remesh.DefaultFineRadiusFactor * m.HFine
+		m.FineRadius = size.DefaultFineRadiusFactor * m.HFine
 	}
 	if err := positive(m.FineRadius, src, "mesh.fine_radius"); err != nil {
 		return nil, err
@@ -355,7 +357,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, err
 	}
 	if m.Grading == 0 {
-		m.Grading = remesh.DefaultGrading
+		m.Grading = size.DefaultGrading
 	}
 	if !(m.Grading > 0 && m.Grading <= 1) {
 		return nil, badInput("%s: %g must lie in (0, 1] (growth of the element size per unit distance)", src.where("mesh.grading"), m.Grading)
@@ -372,7 +374,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 	if m.MaxPoints < 0 {
 		return nil, badInput("%s: %d must be positive", src.where("mesh.max_points"), m.MaxPoints)
 	}
-	s, err := remesh.NewSizeField(d, remesh.SizeOptions{HFine: m.HFine, HFar: m.HFar, FineRadius: m.FineRadius, Ahead: m.Ahead, Grading: m.Grading})
+	s, err := size.NewField(d, size.Options{HFine: m.HFine, HFar: m.HFar, FineRadius: m.FineRadius, Ahead: m.Ahead, Grading: m.Grading})
 	if err != nil {
 		return nil, badInput("%s: %v", src.where("mesh"), err)
 	}
@@ -380,53 +382,6 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 }
 
 // options returns the mesher's options (after sizeField filled defaults).
-func (m *meshSection) options() remesh.MeshOptions {
-	return remesh.MeshOptions{MinAngle: m.MinAngle, MaxPoints: m.MaxPoints}
-}
-
-// addOpeningPoints adds the named points of an opening control to d: where
-// the line normal to the crack at distance behind the initial tip "tip"
-// crosses the crack faces (pieces labelled "crack"), "opening" on the side
-// the normal (−dir_y, dir_x) points to and "opening_lower" on the other
-// (full models). The mesher keeps named points as vertices, so the
-// controlled node survives every remesh.
-func addOpeningPoints(d *geom.Domain, behind float64) error {
-	tip, ok := d.Points["tip"]
-	if !ok {
-		return fmt.Errorf("the opening control needs a crack tip point \"tip\" in the geometry")
-	}
-	o := [2]float64{tip.X[0] - behind*tip.Dir[0], tip.X[1] - behind*tip.Dir[1]}
-	n := [2]float64{-tip.Dir[1], tip.Dir[0]}
-	found := 0
-	for _, loop := range d.Loops() {
-		for _, pc := range loop {
-			if pc.Label != geom.LabelCrack || pc.Kind != geom.Line {
-				continue
-			}
-			// the piece A + s(B − A) meets the line (X − o)·dir = 0 at s
-			ab := [2]float64{pc.B[0] - pc.A[0], pc.B[1] - pc.A[1]}
-			den := ab[0]*tip.Dir[0] + ab[1]*tip.Dir[1]
-			if den == 0 {
-				continue
-			}
-			s := ((o[0]-pc.A[0])*tip.Dir[0] + (o[1]-pc.A[1])*tip.Dir[1]) / den
-			if !(s > 1e-6 && s < 1-1e-6) {
-				continue
-			}
-			x := [2]float64{pc.A[0] + s*ab[0], pc.A[1] + s*ab[1]}
-			name := "opening"
-			if (x[0]-o[0])*n[0]+(x[1]-o[1])*n[1] < 0 {
-				name = "opening_lower"
-			}
-			if _, dup := d.Points[name]; dup {
-				return fmt.Errorf("the line %g behind the tip crosses the crack faces more than once on one side", behind)
-			}
-			d.Points[name] = geom.Point{X: x}
-			found++
-		}
-	}
-	if _, ok := d.Points["opening"]; !ok || found == 0 {
-		return fmt.Errorf("no straight crack face at %g behind the tip (the opening point must lie on a straight crack face, between the tip's rounding and the outer boundary)", behind)
-	}
-	return nil
+func (m *meshSection) options() meshing.Options {
+	return meshing.Options{MinAngle: m.MinAngle, MaxPoints: m.MaxPoints}
 }

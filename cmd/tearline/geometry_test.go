@@ -5,11 +5,10 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"tearline/remesh/meshing"
 	"testing"
 
 	"github.com/BurntSushi/toml"
-
-	"tearline/remesh"
 )
 
 // geoMesh is the part of a case file this file owns.
@@ -40,18 +39,23 @@ func TestCaseGeometries(t *testing.T) {
 	// rectangle with a semicircular top of radius 30, less a pin hole of
 	// radius 8 and a crack slot 8 long, 0.4 wide, with a semicircular tip.
 	polyArea := 60*40 + math.Pi*30*30/2 - math.Pi*64 - (8*0.4 + math.Pi*0.2*0.2/2)
+	// The natural load and the half-model flag are the project's decisions
+	// per specimen (DEVELOPERS.md, "Natural loads per specimen"; DESIGN.md:
+	// each specimen has a natural default).
 	cases := []struct {
-		file   string
-		kind   string
-		labels []string
-		points []string
-		area   float64 // 0: not checked here (checked in remesh/geom)
+		file      string
+		kind      string
+		labels    []string
+		points    []string
+		area      float64 // 0: not checked here (checked in remesh/geom)
+		natural   string  // loading.kind when the case names none
+		symmetric bool
 	}{
-		{"ssy.toml", "ssy", []string{"symmetry", "remote", "crack"}, []string{"tip"}, 0},
-		{"ct.toml", "ct", []string{"symmetry", "free", "notch", "crack", "pin"}, []string{"tip", "mouth", "loadline"}, 0},
-		{"notched-bar.toml", "notched_bar", []string{"symmetry", "notch", "surface", "end", "axis"}, []string{"tip", "root"}, 0},
-		{"dent.toml", "dent", []string{"bottom", "free", "notch", "top"}, []string{"tip", "tip_right"}, 0},
-		{"polygon.toml", "polygon", []string{"base", "free", "crack", "pin"}, []string{"tip"}, polyArea},
+		{"ssy.toml", "ssy", []string{"symmetry", "remote", "crack"}, []string{"tip"}, 0, "k_field", true},
+		{"ct.toml", "ct", []string{"symmetry", "free", "notch", "crack", "pin"}, []string{"tip", "mouth", "loadline"}, 0, "pin", true},
+		{"notched-bar.toml", "notched_bar", []string{"symmetry", "notch", "surface", "end", "axis"}, []string{"tip", "root"}, 0, "displacement", false},
+		{"dent.toml", "dent", []string{"bottom", "free", "notch", "top"}, []string{"tip", "tip_right"}, 0, "displacement", false},
+		{"polygon.toml", "polygon", []string{"base", "free", "crack", "pin"}, []string{"tip"}, polyArea, "pin", false},
 	}
 	for _, c := range cases {
 		path := filepath.Join("..", "..", "testdata", c.file)
@@ -66,9 +70,13 @@ func TestCaseGeometries(t *testing.T) {
 		if cf.Geometry.Kind != c.kind {
 			t.Errorf("%s: kind %q", c.file, cf.Geometry.Kind)
 		}
-		d, err := cf.Geometry.domain(src)
+		sp, err := cf.Geometry.specimen(src)
 		if err != nil {
 			t.Fatalf("%s: %v", c.file, err)
+		}
+		d := sp.Domain
+		if got := loadKindName(sp.Natural); got != c.natural || sp.Symmetric != c.symmetric {
+			t.Errorf("%s: natural load %q, symmetric %v; want %q, %v", c.file, got, sp.Symmetric, c.natural, c.symmetric)
 		}
 		if c.area > 0 && math.Abs(d.Area()-c.area) > 1e-12*c.area {
 			t.Errorf("%s: area %.15g, closed form %.15g", c.file, d.Area(), c.area)
@@ -77,7 +85,7 @@ func TestCaseGeometries(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", c.file, err)
 		}
-		m, rep, err := remesh.MeshDomain(d, size.At, cf.Mesh.options())
+		m, rep, err := meshing.Mesh(d, size.At, cf.Mesh.options())
 		if err != nil {
 			t.Fatalf("%s: %v", c.file, err)
 		}
@@ -139,9 +147,9 @@ pieces = [ { to = [1.0, 0.0], label = "a" }, { to = [1.0, 1.0], label = "a" }, {
 		if err != nil {
 			t.Fatalf("%s: %v", c.name, err)
 		}
-		d, err := cf.Geometry.domain(src)
+		sp, err := cf.Geometry.specimen(src)
 		if err == nil {
-			_, err = cf.Mesh.sizeField(d, src, c.length)
+			_, err = cf.Mesh.sizeField(sp.Domain, src, c.length)
 		}
 		if err == nil || !strings.Contains(err.Error(), c.want) || !isInputError(err) {
 			t.Errorf("%s: error %v, want an input error containing %q", c.name, err, c.want)
@@ -149,11 +157,11 @@ pieces = [ { to = [1.0, 0.0], label = "a" }, { to = [1.0, 1.0], label = "a" }, {
 	}
 	// The default h_fine is ℓ/2 (DESIGN.md §7).
 	cf, src, _ := decodeGeoMesh(t, "case.toml", "[geometry]\nkind = \"ssy\"\n")
-	d, err := cf.Geometry.domain(src)
+	sp, err := cf.Geometry.specimen(src)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := cf.Mesh.sizeField(d, src, 0.2); err != nil || cf.Mesh.HFine != 0.1 {
+	if _, err := cf.Mesh.sizeField(sp.Domain, src, 0.2); err != nil || cf.Mesh.HFine != 0.1 {
 		t.Errorf("default h_fine %g (error %v), want ℓ/2 = 0.1", cf.Mesh.HFine, err)
 	}
 }

@@ -10,7 +10,7 @@ import (
 	"strings"
 	"time"
 
-	"tearline/remesh"
+	"tearline/remesh/meshing"
 	"tearline/solver/fem"
 	"tearline/solver/fem/vtu"
 )
@@ -113,10 +113,11 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		}
 		return fail(code, "%v", err)
 	}
-	d, err := c.Geometry.domain(src)
+	sp, err := c.Geometry.specimen(src)
 	if err != nil {
 		return fail(2, "%v", err)
 	}
+	d := sp.Domain
 	for _, n := range c.Geometry.notes {
 		fmt.Fprintf(stderr, "tearline mesh: note: %s: %s\n", src.where("geometry.polygon.loop"), n)
 	}
@@ -125,7 +126,7 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		return fail(2, "%v", err)
 	}
 	t0 := time.Now()
-	m, q, err := remesh.MeshDomain(d, size.At, c.Mesh.options())
+	m, q, err := meshing.Mesh(d, size.At, c.Mesh.options())
 	secs := time.Since(t0).Seconds()
 	if err != nil {
 		if strings.HasPrefix(err.Error(), "geometry:") {

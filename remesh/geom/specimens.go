@@ -22,6 +22,22 @@ const (
 	LabelBottom   = "bottom"    // lower edge of a plate
 )
 
+// Names of the points the built-in specimens and the opening control attach
+// to a domain. A "_lower" twin is the mirror image of a point in a full model.
+const (
+	PointTip           = "tip"            // crack tip (growth direction in Point.Dir)
+	PointTipRight      = "tip_right"      // second crack tip (right notch of the DENT)
+	PointLoad          = "load"           // pin centre (reference point inside the hole)
+	PointLoadLower     = "load_lower"     // lower pin centre (full C(T))
+	PointMouth         = "mouth"          // notch mouth on the front face
+	PointMouthLower    = "mouth_lower"    // lower notch mouth (full C(T))
+	PointLoadLine      = "loadline"       // load line on the notch face (clip gauge)
+	PointLoadLineLower = "loadline_lower" // load line on the lower notch face (full C(T))
+	PointRoot          = "root"           // notch root of the round bar
+	PointOpening       = "opening"        // opening-control point on the upper crack face
+	PointOpeningLower  = "opening_lower"  // opening-control point on the lower crack face
+)
+
 func line(a, b [2]float64, label string) Piece {
 	return Piece{Kind: Line, A: a, B: b, Label: label}
 }
@@ -78,7 +94,7 @@ func (p SSY) Domain() (*Domain, error) {
 	}
 	R, r := p.Radius, p.TipRadius
 	o := [2]float64{0, 0}
-	d := &Domain{Points: map[string]Point{"tip": {X: o, Tip: true, Dir: [2]float64{1, 0}}}}
+	d := &Domain{Points: map[string]Point{PointTip: {X: o, Tip: true, Dir: [2]float64{1, 0}}}}
 	switch {
 	case !p.Full && r == 0:
 		d.Outer = Loop{
@@ -184,10 +200,10 @@ func (p CT) Domain() (*Domain, error) {
 		return Loop{arc(c, top, bot, true, label), arc(c, bot, top, true, label)}
 	}
 	d := &Domain{Thickness: p.BOverW * W, Points: map[string]Point{
-		"tip":      {X: [2]float64{a, 0}, Tip: true, Dir: [2]float64{1, 0}},
-		"load":     {X: [2]float64{0, pc}, Ref: true},
-		"mouth":    {X: [2]float64{xf, n}},
-		"loadline": {X: [2]float64{0, n}},
+		PointTip:      {X: [2]float64{a, 0}, Tip: true, Dir: [2]float64{1, 0}},
+		PointLoad:     {X: [2]float64{0, pc}, Ref: true},
+		PointMouth:    {X: [2]float64{xf, n}},
+		PointLoadLine: {X: [2]float64{0, n}},
 	}}
 	if !p.Full {
 		upper := Loop{
@@ -228,9 +244,9 @@ func (p CT) Domain() (*Domain, error) {
 		line([2]float64{xf, -yt}, [2]float64{W, -yt}, LabelFree),
 	}
 	d.Holes = []Loop{hole(pc, LabelPin), hole(-pc, LabelPinLower)}
-	d.Points["load_lower"] = Point{X: [2]float64{0, -pc}, Ref: true}
-	d.Points["mouth_lower"] = Point{X: [2]float64{xf, -n}}
-	d.Points["loadline_lower"] = Point{X: [2]float64{0, -n}}
+	d.Points[PointLoadLower] = Point{X: [2]float64{0, -pc}, Ref: true}
+	d.Points[PointMouthLower] = Point{X: [2]float64{xf, -n}}
+	d.Points[PointLoadLineLower] = Point{X: [2]float64{0, -n}}
 	return d, d.Validate()
 }
 
@@ -295,8 +311,8 @@ func (p NotchedBar) Domain() (*Domain, error) {
 	z1 := p.notchHeight()
 	c := [2]float64{r0 + p.NotchRadius, 0}
 	d := &Domain{Axisymmetric: true, Points: map[string]Point{
-		"tip":  {X: [2]float64{0, 0}, Tip: true, Dir: [2]float64{1, 0}},
-		"root": {X: [2]float64{r0, 0}},
+		PointTip:  {X: [2]float64{0, 0}, Tip: true, Dir: [2]float64{1, 0}},
+		PointRoot: {X: [2]float64{r0, 0}},
 	}}
 	if !p.Full {
 		d.Outer = Loop{
@@ -369,8 +385,8 @@ func (p DENT) Domain() (*Domain, error) {
 	cr := [2]float64{w - a + r, 0}
 	cl := [2]float64{-w + a - r, 0}
 	d := &Domain{Points: map[string]Point{
-		"tip":       {X: [2]float64{-w + a, 0}, Tip: true, Dir: [2]float64{1, 0}},
-		"tip_right": {X: [2]float64{w - a, 0}, Tip: true, Dir: [2]float64{-1, 0}},
+		PointTip:      {X: [2]float64{-w + a, 0}, Tip: true, Dir: [2]float64{1, 0}},
+		PointTipRight: {X: [2]float64{w - a, 0}, Tip: true, Dir: [2]float64{-1, 0}},
 	}}
 	d.Outer = Loop{
 		line([2]float64{-w, -h}, [2]float64{w, -h}, LabelBottom),

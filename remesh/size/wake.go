@@ -1,4 +1,4 @@
-package remesh
+package size
 
 import (
 	"fmt"
@@ -15,13 +15,10 @@ import (
 // These are the points the size field keeps at the wake size or finer, and
 // the trigger watches with the same levels.
 func DamagedPoints(gp *fem.GaussPoints, broken []bool, fLevel, pLevel float64) ([][2]float64, error) {
-	if gp == nil || gp.PerElement <= 0 {
-		return nil, fmt.Errorf("remesh: damaged points: Gauss-point data missing or with %d points per element (must be > 0)", perElement(gp))
+	ne, err := gp.Elements()
+	if err != nil {
+		return nil, fmt.Errorf("damaged points: %w", err)
 	}
-	if len(gp.Points)%gp.PerElement != 0 {
-		return nil, fmt.Errorf("remesh: damaged points: %d Gauss points is not a multiple of %d per element", len(gp.Points), gp.PerElement)
-	}
-	ne := len(gp.Points) / gp.PerElement
 	if broken != nil && len(broken) != ne {
 		return nil, fmt.Errorf("remesh: damaged points: broken flags for %d elements, Gauss points for %d", len(broken), ne)
 	}
@@ -30,24 +27,17 @@ func DamagedPoints(gp *fem.GaussPoints, broken []bool, fLevel, pLevel float64) (
 		if broken != nil && broken[i/gp.PerElement] {
 			continue
 		}
-		if aboveAlert(&gp.Points[i], fLevel, pLevel) {
+		if AboveAlert(&gp.Points[i], fLevel, pLevel) {
 			out = append(out, gp.Points[i].X)
 		}
 	}
 	return out, nil
 }
 
-func perElement(gp *fem.GaussPoints) int {
-	if gp == nil {
-		return 0
-	}
-	return gp.PerElement
-}
-
-// aboveAlert reports whether a Gauss point is damaged or plastically active
+// AboveAlert reports whether a Gauss point is damaged or plastically active
 // above the levels (level ≤ 0 or +Inf: that test is off); broken points
 // always count.
-func aboveAlert(g *fem.GaussPoint, fLevel, pLevel float64) bool {
+func AboveAlert(g *fem.GaussPoint, fLevel, pLevel float64) bool {
 	if g.State.Broken {
 		return true
 	}

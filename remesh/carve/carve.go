@@ -1,4 +1,4 @@
-package remesh
+package carve
 
 import (
 	"fmt"
@@ -7,6 +7,7 @@ import (
 
 	"github.com/tidwall/rtree"
 
+	"tearline/criteria"
 	"tearline/remesh/geom"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -16,8 +17,8 @@ import (
 // broken material (DEVELOPERS.md, shared contracts).
 const CrackLabel = geom.LabelCrack
 
-// CarveOptions sets how Carve builds the new geometry.
-type CarveOptions struct {
+// Options sets how Domain builds the new geometry.
+type Options struct {
 	// Simplify: crack-face polylines are simplified (Douglas & Peucker
 	// 1973, Cartographica 10) so that every dropped vertex x lies within
 	// Simplify·h(x) of the simplified line, h the new size field (≥ 0;
@@ -36,16 +37,16 @@ type CarveOptions struct {
 	MatchTol float64
 }
 
-// DefaultCarveOptions returns Simplify = 0.5 (half the local size: the
+// DefaultOptions returns Simplify = 0.5 (half the local size: the
 // zigzag of a crack face cut from a triangulation is below one element),
 // MinCorner = 40° (above the mesher's default angle bound of 28° with a
 // margin) and MatchTol = 1e-8.
-func DefaultCarveOptions() CarveOptions {
-	return CarveOptions{Simplify: 0.5, MinCorner: 40, MatchTol: 1e-8}
+func DefaultOptions() Options {
+	return Options{Simplify: 0.5, MinCorner: 40, MatchTol: 1e-8}
 }
 
 // Validate checks the options.
-func (o *CarveOptions) Validate() error {
+func (o *Options) Validate() error {
 	if !(o.Simplify >= 0) || math.IsInf(o.Simplify, 0) {
 		return fmt.Errorf("remesh: carve option Simplify = %g must be finite and ≥ 0", o.Simplify)
 	}
@@ -58,12 +59,12 @@ func (o *CarveOptions) Validate() error {
 	return nil
 }
 
-// Carved is the new geometry Carve builds.
-type Carved struct {
+// Result is the new geometry Domain builds.
+type Result struct {
 	// Domain is the material that is left, ready for MeshDomain.
 	Domain *geom.Domain
 	// Removed marks the old elements outside the new geometry: the broken
-	// ones and the unbroken ones dropped with slivers (see Carve).
+	// ones and the unbroken ones dropped with slivers (see Domain).
 	Removed []bool
 	// Slivers counts the unbroken elements dropped.
 	Slivers int
@@ -82,10 +83,10 @@ type Carved struct {
 // Gauss points broken); they leave the geometry at the next remesh
 // (DESIGN.md §3).
 func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
-	if gp == nil || gp.PerElement <= 0 || len(gp.Points)%gp.PerElement != 0 {
-		return nil, fmt.Errorf("remesh: broken elements: %d Gauss points do not fill elements of %d points", lenPoints(gp), perElement(gp))
+	ne, err := gp.Elements()
+	if err != nil {
+		return nil, fmt.Errorf("broken elements: %w", err)
 	}
-	ne := len(gp.Points) / gp.PerElement
 	out := make([]bool, ne)
 	st := make([]material.State, gp.PerElement)
 	for e := range out {
@@ -97,7 +98,7 @@ func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 	return out, nil
 }
 
-// Carve builds the geometry of the material that is left when the elements
+// Domain builds the geometry of the material that is left when the elements
 // marked in broken are removed from m:
 //
 //   - The kept triangles are cleaned first. Material held only at a vertex
@@ -128,11 +129,11 @@ func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 //     of a current tip moves to the tip (snapped to the nearest boundary
 //     vertex when the tip lies outside the material or within the
 //     simplification tolerance of its boundary); others are dropped and
-//     listed in Carved.Dropped.
+//     listed in Result.Dropped.
 //
 // orig may be nil (every run is then a polyline); size is the new size
 // field (it may be nil when Simplify is 0).
-func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(x, y float64) float64, opt CarveOptions) (*Carved, error) {
+func Domain(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []criteria.Tip, size func(x, y float64) float64, opt Options) (*Result, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, err
 	}
@@ -149,7 +150,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 		return nil, fmt.Errorf("remesh: carve: a size function is needed to simplify crack faces (Simplify = %g)", opt.Simplify)
 	}
 	for i, t := range tips {
-		if _, ok := t.unitDir(); !ok {
+		if _, ok := t.UnitDir(); !ok {
 			return nil, fmt.Errorf("remesh: carve: tip %d %q direction (%g, %g) must be finite and non-zero", i, t.Name, t.Dir[0], t.Dir[1])
 		}
 	}
@@ -158,7 +159,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	c.nbr = c.m.EdgeNeighbours()
 	c.dropPinches()
 	c.keepLargestPart()
-	out := &Carved{Removed: c.removed}
+	out := &Result{Removed: c.removed}
 	for e := range c.removed {
 		if c.removed[e] && !broken[e] {
 			out.Slivers++
@@ -198,10 +199,10 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	return out, nil
 }
 
-// carver holds the working state of Carve.
+// carver holds the working state of Domain.
 type carver struct {
 	m       *fem.Mesh
-	opt     CarveOptions
+	opt     Options
 	orig    *geom.Domain
 	size    func(x, y float64) float64
 	removed []bool
@@ -515,7 +516,7 @@ func (c *carver) matchPieces() {
 
 // namedPoints carries the named points over and fixes the boundary nodes
 // they sit on.
-func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error) {
+func (c *carver) namedPoints(tips []criteria.Tip) (map[string]geom.Point, []string, error) {
 	m := c.m
 	c.fixed = map[int]bool{}
 	onBoundary := map[int]bool{}
@@ -532,7 +533,7 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 			}
 		}
 	}
-	tipOf := map[string]Tip{}
+	tipOf := map[string]criteria.Tip{}
 	for _, t := range tips {
 		if t.Name != "" {
 			tipOf[t.Name] = t
@@ -575,7 +576,7 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 		s := all[n]
 		p := s.p
 		if t, ok := tipOf[n]; ok {
-			d, _ := t.unitDir()
+			d, _ := t.UnitDir()
 			p.Tip, p.Ref, p.Dir = true, false, d
 			node, at, err := c.placeTip(t.X, inMaterial)
 			if err != nil {
