@@ -151,29 +151,51 @@ func TestLocator(t *testing.T) {
 }
 
 // TestPointsDist checks the nearest-point distance against brute force
-// (the least math.Sqrt of the squared distances) and the cut-off rule.
+// (the least math.Sqrt of the squared distances, bit for bit) and the
+// cut-off rule, on point sets of different shapes with queries inside and
+// far outside them.
 func TestPointsDist(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
-	pts := make([][2]float64, 500)
-	for i := range pts {
-		pts[i] = [2]float64{rng.Float64(), rng.Float64()}
+	square := make([][2]float64, 500)
+	for i := range square {
+		square[i] = [2]float64{rng.Float64(), rng.Float64()}
 	}
-	s := NewPoints(pts)
-	if s.Len() != len(pts) {
-		t.Fatalf("Len = %d, want %d", s.Len(), len(pts))
+	curve := make([][2]float64, 2000)
+	for i := range curve {
+		s := float64(i) / 2000
+		curve[i] = [2]float64{-10 * s, 0.3 * math.Sin(20*s)}
 	}
-	for k := 0; k < 2000; k++ {
-		x := [2]float64{rng.Float64()*3 - 1, rng.Float64()*3 - 1}
-		best := math.Inf(1)
-		for _, p := range pts {
-			best = math.Min(best, (p[0]-x[0])*(p[0]-x[0])+(p[1]-x[1])*(p[1]-x[1]))
+	for _, c := range []struct {
+		name string
+		pts  [][2]float64
+		lo   [2]float64 // queries in [lo, lo + size]²
+		size float64
+	}{
+		{"random in the unit square", square, [2]float64{-1, -1}, 3},
+		{"a wavy line (a wake)", curve, [2]float64{-20, -10}, 30},
+		{"one point", [][2]float64{{0.5, 0.5}}, [2]float64{-1, -1}, 3},
+		{"repeated points", [][2]float64{{0, 0}, {0, 0}, {1, 0}, {1, 0}}, [2]float64{-1, -1}, 3},
+	} {
+		s := NewPoints(c.pts)
+		if s.Len() != len(c.pts) {
+			t.Fatalf("%s: Len = %d, want %d", c.name, s.Len(), len(c.pts))
 		}
-		want := math.Sqrt(best)
-		if got := s.Dist(x, math.Inf(1)); got != want {
-			t.Fatalf("Dist(%v) = %g, brute force %g", x, got, want)
-		}
-		if got := s.Dist(x, 0.5*want); got < 0.5*want {
-			t.Fatalf("cut-off query returned %g below the cut-off %g", got, 0.5*want)
+		for k := 0; k < 1000; k++ {
+			x := [2]float64{c.lo[0] + c.size*rng.Float64(), c.lo[1] + c.size*rng.Float64()}
+			best := math.Inf(1)
+			for _, p := range c.pts {
+				best = math.Min(best, (p[0]-x[0])*(p[0]-x[0])+(p[1]-x[1])*(p[1]-x[1]))
+			}
+			want := math.Sqrt(best)
+			if got := s.Dist(x, math.Inf(1)); got != want {
+				t.Fatalf("%s: Dist(%v) = %g, brute force %g", c.name, x, got, want)
+			}
+			if got := s.Dist(x, 2*want); got != want {
+				t.Fatalf("%s: Dist(%v) with the cut-off beyond it = %g, brute force %g", c.name, x, got, want)
+			}
+			if got := s.Dist(x, 0.5*want); got < 0.5*want {
+				t.Fatalf("%s: cut-off query returned %g below the cut-off %g", c.name, got, 0.5*want)
+			}
 		}
 	}
 	if d := NewPoints(nil).Dist([2]float64{0, 0}, 1); !math.IsInf(d, 1) {
