@@ -27,7 +27,7 @@ func bruteDistance(m *fem.Mesh, p [2]float64) float64 {
 		}
 		for k := 0; k < 3; k++ {
 			a, b := m.X[t[k]], m.X[t[(k+1)%3]]
-			s := ((p[0]-a[0])*(b[0]-a[0]) + (p[1]-a[1])*(b[1]-a[1])) / dist2(a, b)
+			s := ((p[0]-a[0])*(b[0]-a[0]) + (p[1]-a[1])*(b[1]-a[1])) / plane.DistSq(a, b)
 			s = math.Max(0, math.Min(1, s))
 			d = math.Min(d, math.Hypot(p[0]-a[0]-s*(b[0]-a[0]), p[1]-a[1]-s*(b[1]-a[1])))
 		}
@@ -71,7 +71,7 @@ func checkHit(t *testing.T, m *fem.Mesh, p [2]float64, e int, l [3]float64, insi
 	size := 0.0
 	tr := m.Tri[e]
 	for k := 0; k < 3; k++ {
-		size = math.Max(size, math.Sqrt(dist2(m.X[tr[k]], m.X[tr[(k+1)%3]])))
+		size = math.Max(size, math.Sqrt(plane.DistSq(m.X[tr[k]], m.X[tr[(k+1)%3]])))
 	}
 	if want := d <= tol*size; inside != want {
 		t.Fatalf("Locate(%v): inside %v at distance %g (tolerance %g × %g)", p, inside, d, tol, size)

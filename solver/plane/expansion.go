@@ -29,14 +29,7 @@ func twoProd(a, b float64) (x, y float64) {
 // twoDiffExp returns a−b as an expansion (at most two components).
 func twoDiffExp(a, b float64, h []float64) []float64 {
 	x, y := twoSum(a, -b)
-	h = h[:0]
-	if y != 0 {
-		h = append(h, y)
-	}
-	if x != 0 || len(h) == 0 {
-		h = append(h, x)
-	}
-	return h
+	return closeExp(pushNonzero(h[:0], y), x)
 }
 
 // expSum returns the expansion e+f in h[:0] (h must not alias e or f): the
@@ -66,14 +59,9 @@ func expSum(e, f, h []float64) []float64 {
 		}
 		var hh float64
 		q, hh = twoSum(q, g)
-		if hh != 0 {
-			h = append(h, hh)
-		}
+		h = pushNonzero(h, hh)
 	}
-	if q != 0 || len(h) == 0 {
-		h = append(h, q)
-	}
-	return h
+	return closeExp(h, q)
 }
 
 // expScale returns e·b in h[:0] (Shewchuk 1997, Theorem 19, scale
@@ -81,23 +69,32 @@ func expSum(e, f, h []float64) []float64 {
 func expScale(e []float64, b float64, h []float64) []float64 {
 	h = h[:0]
 	q, hh := twoProd(e[0], b)
-	if hh != 0 {
-		h = append(h, hh)
-	}
+	h = pushNonzero(h, hh)
 	for k := 1; k < len(e); k++ {
 		p1, p0 := twoProd(e[k], b)
 		var sum float64
 		sum, hh = twoSum(q, p0)
-		if hh != 0 {
-			h = append(h, hh)
-		}
+		h = pushNonzero(h, hh)
 		q, hh = twoSum(p1, sum)
-		if hh != 0 {
-			h = append(h, hh)
-		}
+		h = pushNonzero(h, hh)
 	}
+	return closeExp(h, q)
+}
+
+// pushNonzero appends the component x to h unless it is zero (zero
+// elimination, Shewchuk 1997, §2.5).
+func pushNonzero(h []float64, x float64) []float64 {
+	if x != 0 {
+		return append(h, x)
+	}
+	return h
+}
+
+// closeExp appends the largest component q; an expansion of value zero
+// keeps a single zero component.
+func closeExp(h []float64, q float64) []float64 {
 	if q != 0 || len(h) == 0 {
-		h = append(h, q)
+		return append(h, q)
 	}
 	return h
 }
