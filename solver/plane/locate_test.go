@@ -226,3 +226,42 @@ func BenchmarkPointsDist(b *testing.B) {
 		b.Fatal(sum)
 	}
 }
+
+// BenchmarkLocator indexes the ≈ 10⁵ triangles of a perturbed 224×224 grid
+// and locates 10⁴ points with each rule.
+func BenchmarkLocator(b *testing.B) {
+	tri := gridTriangles(224, 224, 0.4, 1)
+	corners := func(i int) [3][2]float64 { return tri[i] }
+	rng := rand.New(rand.NewPCG(3, 4))
+	pts := make([][2]float64, 10000)
+	for i := range pts {
+		pts[i] = [2]float64{rng.Float64(), rng.Float64()}
+	}
+	b.Run("NewLocator", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			NewLocator(corners, len(tri))
+		}
+	})
+	lc := NewLocator(corners, len(tri))
+	for _, c := range []struct {
+		name string
+		find func(x [2]float64) bool
+	}{
+		{"Find", func(x [2]float64) bool { _, _, ok := lc.Find(x); return ok }},
+		{"FindFirst", func(x [2]float64) bool { _, _, ok := lc.FindFirst(x, 1e-12); return ok }},
+		{"Nearest", func(x [2]float64) bool { _, _, _, ok := lc.Nearest(x); return ok }},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				for _, x := range pts {
+					if !c.find(x) {
+						b.Fatalf("%v not found", x)
+					}
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(pts)), "ns/point")
+		})
+	}
+}
