@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
 // FrontOptions selects the porosity levels and the initial tips of
@@ -123,8 +124,8 @@ func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 			}
 		}
 	}
-	inv, ok := inverse3(A)
-	if !ok {
+	inv, det, ok := plane.Inverse3(A)
+	if !ok || math.Abs(det) < 1e-14 {
 		return nil, fmt.Errorf("porosity recovery: the element rule's points are collinear")
 	}
 	nodeL := [6][2]float64{{1, 0}, {0, 1}, {0, 0}, {0.5, 0.5}, {0, 0.5}, {0.5, 0}}
@@ -156,24 +157,6 @@ func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 		}
 	}
 	return sum, nil
-}
-
-func inverse3(a [3][3]float64) ([3][3]float64, bool) {
-	det := a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) -
-		a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) +
-		a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
-	if math.Abs(det) < 1e-14 {
-		return [3][3]float64{}, false
-	}
-	var r [3][3]float64
-	for i := 0; i < 3; i++ {
-		for j := 0; j < 3; j++ {
-			i1, i2 := (j+1)%3, (j+2)%3
-			j1, j2 := (i+1)%3, (i+2)%3
-			r[i][j] = (a[i1][j1]*a[i2][j2] - a[i1][j2]*a[i2][j1]) / det
-		}
-	}
-	return r, true
 }
 
 // LocateFront finds the damage front and the crack tip(s).
@@ -329,8 +312,6 @@ func (p *pq) Pop() interface{} {
 	return it
 }
 
-func dist2(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
-
 // locateTips runs the multi-source shortest-path search and picks the tips.
 func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Growth {
 	nn := len(m.X)
@@ -378,7 +359,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 			hi = [2]float64{math.Max(hi[0], x[0]), math.Max(hi[1], x[1])}
 		}
 	}
-	tol := 1e-9 * dist2(lo, hi)
+	tol := 1e-9 * plane.Dist(lo, hi)
 	// Cracked nodes: f ≥ f_tip, or on a crack face ahead of some initial tip.
 	cracked := make([]bool, nn)
 	for n := range f {
@@ -423,7 +404,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 		best, bd := -1, math.Inf(1)
 		for n := 0; n < nn; n++ {
 			if used[n] {
-				if d := dist2(m.X[n], sd.X); d < bd {
+				if d := plane.Dist(m.X[n], sd.X); d < bd {
 					best, bd = n, d
 				}
 			}
@@ -433,7 +414,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 		if maxGap[s] == 0 {
 			for _, b := range adj(best) {
 				// a sub-edge is half an element edge: 2 element edges = 4 sub-edges.
-				maxGap[s] = math.Max(maxGap[s], 4*dist2(m.X[best], m.X[b]))
+				maxGap[s] = math.Max(maxGap[s], 4*plane.Dist(m.X[best], m.X[b]))
 			}
 		}
 		if bd < cost[best] {
@@ -453,7 +434,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 			continue
 		}
 		for _, b := range adj(a) {
-			l := dist2(m.X[a], m.X[b])
+			l := plane.Dist(m.X[a], m.X[b])
 			c, g := l, gap[a]
 			if !(isCracked(a) && cracked[b]) {
 				c *= bridgeCost
@@ -507,7 +488,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 			sf := (f[a] - ftip) / (f[a] - f[b])
 			xa, xb := m.X[a], m.X[b]
 			x := [2]float64{xa[0] + sf*(xb[0]-xa[0]), xa[1] + sf*(xb[1]-xa[1])}
-			cands[s] = append(cands[s], cand{a, x, glen[a] + dist2(x, xa)})
+			cands[s] = append(cands[s], cand{a, x, glen[a] + plane.Dist(x, xa)})
 		}
 	}
 	vis := visibility(m, f, ftip, cracked)
@@ -574,13 +555,13 @@ func tipPath(m *fem.Mesh, parent []int, node int, x, sx [2]float64) [][2]float64
 	if len(chain) > 1 {
 		tol = 0.5 * polyLength(chain) / float64(len(chain)-1)
 	}
-	return simplify(chain, tol)
+	return plane.Simplify(chain, tol)
 }
 
 func polyLength(p [][2]float64) float64 {
 	l := 0.0
 	for i := 1; i < len(p); i++ {
-		l += dist2(p[i-1], p[i])
+		l += plane.Dist(p[i-1], p[i])
 	}
 	return l
 }
@@ -591,12 +572,15 @@ func polyLength(p [][2]float64) float64 {
 // element with a cracked node on a crack face, or lie outside the mesh
 // (the void of removed broken material).
 func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, q [2]float64) bool {
-	loc := newLocator(m)
+	loc := plane.NewLocator(func(e int) [3][2]float64 {
+		t := m.Tri[e]
+		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
+	}, len(m.Tri))
 	hmin := math.Inf(1)
 	for _, t := range m.Tri {
 		for _, st := range subTri {
 			for j := 0; j < 3; j++ {
-				if d := dist2(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
+				if d := plane.Dist(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
 					hmin = math.Min(hmin, d)
 				}
 			}
@@ -604,12 +588,14 @@ func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, 
 	}
 	step := hmin / 4
 	return func(p, q [2]float64) bool {
-		n := int(math.Ceil(dist2(p, q) / step))
+		n := int(math.Ceil(plane.Dist(p, q) / step))
 		for k := 1; k < n; k++ {
 			s := float64(k) / float64(n)
 			x := [2]float64{p[0] + s*(q[0]-p[0]), p[1] + s*(q[1]-p[1])}
-			e, l := loc.find(x)
-			if e < 0 {
+			// the lowest-numbered triangle within round-off (1e-12 in area
+			// coordinates), so a point on a shared edge takes one side
+			e, l, ok := loc.FindFirst(x, 1e-12)
+			if !ok {
 				continue
 			}
 			t := m.Tri[e]
@@ -626,6 +612,20 @@ func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, 
 		}
 		return true
 	}
+}
+
+// subLinear interpolates nodal values v of a 6-node triangle linearly on
+// the sub-triangle that contains the area coordinates l.
+func subLinear(v [6]float64, l [3]float64) float64 {
+	switch {
+	case l[0] >= 0.5:
+		return v[0]*(2*l[0]-1) + v[3]*2*l[1] + v[5]*2*l[2]
+	case l[1] >= 0.5:
+		return v[1]*(2*l[1]-1) + v[3]*2*l[0] + v[4]*2*l[2]
+	case l[2] >= 0.5:
+		return v[2]*(2*l[2]-1) + v[4]*2*l[1] + v[5]*2*l[0]
+	}
+	return v[3]*(1-2*l[2]) + v[4]*(1-2*l[0]) + v[5]*(1-2*l[1])
 }
 
 // pullTaut shortens a polyline greedily: from each kept point it jumps to
@@ -659,50 +659,6 @@ func pullTaut(p [][2]float64, visible func(a, b [2]float64) bool) [][2]float64 {
 		}
 		out = append(out, p[j])
 		i = j
-	}
-	return out
-}
-
-// simplify removes the points of a polyline that lie within tol of the
-// chord of their neighbours (Douglas & Peucker 1973, Cartographica 10).
-func simplify(p [][2]float64, tol float64) [][2]float64 {
-	if len(p) < 3 {
-		return p
-	}
-	keep := make([]bool, len(p))
-	keep[0], keep[len(p)-1] = true, true
-	var rec func(i, j int)
-	rec = func(i, j int) {
-		if j <= i+1 {
-			return
-		}
-		a, b := p[i], p[j]
-		dx, dy := b[0]-a[0], b[1]-a[1]
-		l := math.Hypot(dx, dy)
-		worst, wk := -1.0, -1
-		for k := i + 1; k < j; k++ {
-			var d float64
-			if l == 0 {
-				d = dist2(p[k], a)
-			} else {
-				d = math.Abs((p[k][0]-a[0])*dy-(p[k][1]-a[1])*dx) / l
-			}
-			if d > worst {
-				worst, wk = d, k
-			}
-		}
-		if worst > tol {
-			keep[wk] = true
-			rec(i, wk)
-			rec(wk, j)
-		}
-	}
-	rec(0, len(p)-1)
-	out := make([][2]float64, 0, len(p))
-	for i, k := range keep {
-		if k {
-			out = append(out, p[i])
-		}
 	}
 	return out
 }

@@ -6,17 +6,14 @@ import (
 	"testing"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
-// segDist returns the distance from x to the polyline p.
-func segDist(x [2]float64, p [][2]float64) float64 {
+// polyDist returns the distance from x to the polyline p.
+func polyDist(x [2]float64, p [][2]float64) float64 {
 	best := math.Inf(1)
 	for i := 1; i < len(p); i++ {
-		a, b := p[i-1], p[i]
-		dx, dy := b[0]-a[0], b[1]-a[1]
-		s := ((x[0]-a[0])*dx + (x[1]-a[1])*dy) / (dx*dx + dy*dy)
-		s = math.Max(0, math.Min(1, s))
-		best = math.Min(best, math.Hypot(x[0]-a[0]-s*dx, x[1]-a[1]-s*dy))
+		best = math.Min(best, plane.SegDist(x, p[i-1], p[i]))
 	}
 	return best
 }
@@ -34,7 +31,7 @@ func porosity(bands []band) func(x [2]float64) (F, P [5]float64, W, f float64) {
 	return func(x [2]float64) (F, P [5]float64, W, f float64) {
 		f = bandF0
 		for _, b := range bands {
-			f = math.Max(f, bandF0+(bandFmax-bandF0)*math.Max(0, 1-segDist(x, b.line)/b.w))
+			f = math.Max(f, bandF0+(bandFmax-bandF0)*math.Max(0, 1-polyDist(x, b.line)/b.w))
 		}
 		return [5]float64{1, 0, 0, 1, 1}, P, 0, f
 	}
@@ -155,7 +152,7 @@ func TestLocateFrontContour(t *testing.T) {
 	want := reach(0.12, 0.06)
 	worst := 0.0
 	for _, p := range l {
-		worst = math.Max(worst, math.Abs(segDist(p, line)-want))
+		worst = math.Max(worst, math.Abs(polyDist(p, line)-want))
 	}
 	t.Logf("contour: %d points, worst distance error %.3g (element size 0.025)", len(l), worst)
 	if worst > 0.2*0.025 {

@@ -6,12 +6,14 @@
 // # Location
 //
 // A Locator indexes the old triangles' bounding boxes in an R-tree
-// (github.com/tidwall/rtree). Locate finds the old triangle that contains a
-// point by an exact point-in-triangle test on the corner nodes: the three
-// orientation signs are computed with a floating-point filter and, when the
-// filter cannot decide, exactly — by an error-free split of the products when
-// the coordinate differences are exact, else in rational arithmetic (the
-// adaptive-predicate idea of Shewchuk 1997, Discrete Comput. Geom. 18).
+// (plane.Locator on github.com/tidwall/rtree). Locate finds the old triangle
+// that contains a point by an exact point-in-triangle test on the corner
+// nodes: the three orientation signs come from plane.Orient, a
+// floating-point filter with an exact evaluation when the filter cannot
+// decide (the adaptive predicates of Shewchuk 1997, Discrete Comput.
+// Geom. 18). Among several triangles that contain the point (on a shared
+// edge or vertex) the one in which it lies deepest wins, then the lowest
+// index.
 //
 // Containment is decided on the straight-sided triangle of the corner nodes:
 // a curved boundary element is replaced by its chord. In a curved element (a

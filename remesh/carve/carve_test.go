@@ -15,6 +15,7 @@ import (
 	"tearline/remesh/size"
 	"tearline/remesh/tri"
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
 // squareDomain is the original domain of testmesh.Rectangle(0, 0, a, a, …): four
@@ -924,7 +925,7 @@ func TestCarveTurningPaths(t *testing.T) {
 			broken := breakWhere(m0, func(x, y float64) bool {
 				for _, p := range paths {
 					for i := 1; i < len(p); i++ {
-						if segDistance([2]float64{x, y}, p[i-1], p[i]) < half {
+						if plane.SegDist([2]float64{x, y}, p[i-1], p[i]) < half {
 							return true
 						}
 					}

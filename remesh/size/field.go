@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"tearline/remesh/geom"
+	"tearline/solver/plane"
 )
 
 // Options set up a Field.
@@ -100,30 +101,12 @@ func NewField(d *geom.Domain, opt Options) (*Field, error) {
 	return s, nil
 }
 
-// segDist returns the distance from (x, y) to the segment a–b.
-func segDist(x, y float64, a, b [2]float64) float64 {
-	dx, dy := b[0]-a[0], b[1]-a[1]
-	px, py := x-a[0], y-a[1]
-	l2 := dx*dx + dy*dy
-	if l2 > 0 {
-		t := (px*dx + py*dy) / l2
-		if t > 1 {
-			t = 1
-		} else if t < 0 {
-			t = 0
-		}
-		px -= t * dx
-		py -= t * dy
-	}
-	return math.Hypot(px, py)
-}
-
 // At returns h at (x, y).
 func (s *Field) At(x, y float64) float64 {
 	o := &s.Options
 	h := o.HFar
 	for i := range s.Zones {
-		d := segDist(x, y, s.Zones[i].From, s.Zones[i].To) - o.FineRadius
+		d := plane.SegDist([2]float64{x, y}, s.Zones[i].From, s.Zones[i].To) - o.FineRadius
 		v := o.HFine
 		if d > 0 {
 			v += o.Grading * d

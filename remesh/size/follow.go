@@ -6,6 +6,7 @@ import (
 
 	"tearline/criteria"
 	"tearline/remesh/geom"
+	"tearline/solver/plane"
 )
 
 // FollowOptions sets up the tip-following size field. Lengths other than
@@ -186,7 +187,7 @@ func ZoneFor(t criteria.Tip, opt *FollowOptions) (ZonePiece, error) {
 type TipField struct {
 	opt     FollowOptions
 	zone    FineZone
-	wake    *kdPoints
+	wake    *plane.Points
 	feature func(x, y float64) float64
 	// reach is the distance beyond which a term exceeds h_far.
 	zoneReach, wakeReach float64
@@ -221,7 +222,7 @@ func NewTipField(tips []criteria.Tip, damaged [][2]float64, feature func(x, y fl
 	// field stays g-Lipschitz, and a query visits far fewer points.
 	delta := 0.1 * f.zone.HWake / g
 	f.wakeBase = f.zone.HWake - g*delta
-	f.wake = newKDPoints(thinPoints(damaged, delta/math.Sqrt2))
+	f.wake = plane.NewPoints(thinPoints(damaged, delta/math.Sqrt2))
 	f.zoneReach = (opt.HFar - f.zone.HFine) / g
 	f.wakeReach = (opt.HFar - f.wakeBase) / g
 	return f, nil
@@ -235,7 +236,7 @@ func (f *TipField) At(x, y float64) float64 {
 	if d := f.zone.Distance(p); d < f.zoneReach {
 		h = math.Min(h, f.zone.HFine+o.Grade*math.Max(0, d))
 	}
-	if d := f.wake.nearest(p, f.wakeReach); d < f.wakeReach {
+	if d := f.wake.Dist(p, f.wakeReach); d < f.wakeReach {
 		h = math.Min(h, f.wakeBase+o.Grade*d)
 	}
 	if f.feature != nil {

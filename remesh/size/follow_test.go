@@ -174,29 +174,6 @@ func TestTipFieldGradation(t *testing.T) {
 	}
 }
 
-func TestKDPointsNearest(t *testing.T) {
-	// against brute force
-	rng := rand.New(rand.NewPCG(5, 6))
-	pts := make([][2]float64, 500)
-	for i := range pts {
-		pts[i] = [2]float64{rng.Float64(), rng.Float64()}
-	}
-	kd := newKDPoints(pts)
-	for k := 0; k < 2000; k++ {
-		x := [2]float64{rng.Float64()*3 - 1, rng.Float64()*3 - 1}
-		want := math.Inf(1)
-		for _, p := range pts {
-			want = math.Min(want, math.Hypot(p[0]-x[0], p[1]-x[1]))
-		}
-		if got := kd.nearest(x, math.Inf(1)); math.Abs(got-want) > 1e-15*want {
-			t.Fatalf("nearest to %v: %g, brute force %g", x, got, want)
-		}
-		if got := kd.nearest(x, 0.5*want); got < 0.5*want {
-			t.Fatalf("cut-off query returned %g below the cut-off %g", got, 0.5*want)
-		}
-	}
-}
-
 func TestFollowValidate(t *testing.T) {
 	for _, c := range []struct {
 		name string

@@ -3,7 +3,6 @@ package size
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"tearline/solver/fem"
 )
@@ -45,59 +44,4 @@ func AboveAlert(g *fem.GaussPoint, fLevel, pLevel float64) bool {
 		return true
 	}
 	return pLevel > 0 && !math.IsInf(pLevel, 1) && g.State.P >= pLevel
-}
-
-// kdPoints is a static 2-d tree over points for nearest-distance queries
-// (Bentley 1975, Commun. ACM 18): the points are sorted in place so that
-// the median of every sub-range splits it on alternating axes.
-type kdPoints struct {
-	p [][2]float64
-}
-
-func newKDPoints(pts [][2]float64) *kdPoints {
-	t := &kdPoints{p: append([][2]float64(nil), pts...)}
-	t.build(0, len(t.p), 0)
-	return t
-}
-
-func (t *kdPoints) build(lo, hi, axis int) {
-	if hi-lo <= 1 {
-		return
-	}
-	s := t.p[lo:hi]
-	sort.Slice(s, func(i, j int) bool { return s[i][axis] < s[j][axis] })
-	m := (lo + hi) / 2
-	t.build(lo, m, 1-axis)
-	t.build(m+1, hi, 1-axis)
-}
-
-// nearest returns the distance from x to the nearest point, or a value
-// ≥ cutoff when none lies closer than cutoff (+Inf for an empty tree).
-func (t *kdPoints) nearest(x [2]float64, cutoff float64) float64 {
-	best := cutoff * cutoff
-	if len(t.p) == 0 {
-		return math.Inf(1)
-	}
-	t.search(x, 0, len(t.p), 0, &best)
-	return math.Sqrt(best)
-}
-
-func (t *kdPoints) search(x [2]float64, lo, hi, axis int, best *float64) {
-	if hi <= lo {
-		return
-	}
-	m := (lo + hi) / 2
-	q := t.p[m]
-	if d := (q[0]-x[0])*(q[0]-x[0]) + (q[1]-x[1])*(q[1]-x[1]); d < *best {
-		*best = d
-	}
-	diff := x[axis] - q[axis]
-	near0, near1, far0, far1 := lo, m, m+1, hi
-	if diff > 0 {
-		near0, near1, far0, far1 = m+1, hi, lo, m
-	}
-	t.search(x, near0, near1, 1-axis, best)
-	if diff*diff < *best {
-		t.search(x, far0, far1, 1-axis, best)
-	}
 }
