@@ -251,10 +251,6 @@ func (lc *Locator) isoparametric(e int, p [2]float64, l0 [3]float64, inside0 boo
 	return l0, inside0
 }
 
-// dist2 is plane.DistSq, kept for transfer.go until it calls plane.DistSq
-// itself.
-func dist2(a, b [2]float64) float64 { return plane.DistSq(a, b) }
-
 // pointKey is the bit pattern of a position (−0 read as +0).
 func pointKey(p [2]float64) [2]uint64 {
 	return [2]uint64{math.Float64bits(p[0] + 0), math.Float64bits(p[1] + 0)}

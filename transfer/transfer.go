@@ -7,6 +7,7 @@ import (
 
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
 // Method selects how Gauss-point state is recovered on the old mesh.
@@ -281,7 +282,7 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 				// whether the new point is broken.
 				near, nd := -1, math.Inf(1)
 				for j := h.Elem * nq; j < (h.Elem+1)*nq; j++ {
-					if d := dist2(oldX[j], newX[i]); d < nd {
+					if d := plane.DistSq(oldX[j], newX[i]); d < nd {
 						near, nd = j, d
 					}
 				}

@@ -8,6 +8,7 @@ import (
 
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
 // fieldsFrom fills Fields on m: displacement u(x) on every node, the corner
@@ -252,7 +253,7 @@ func TestPorosityBounds(t *testing.T) {
 	// just below FBreak: the boundary nodes' patch fits extrapolate and
 	// overshoot or undershoot (f below F0, p below 0 away from the peaks).
 	c1, c2 := [2]float64{0.52, 0.47}, [2]float64{0, 0.3}
-	peak := func(p, c [2]float64, w float64) float64 { return math.Exp(-dist2(p, c) / (w * w)) }
+	peak := func(p, c [2]float64, w float64) float64 { return math.Exp(-plane.DistSq(p, c) / (w * w)) }
 	state := func(p [2]float64) material.State {
 		f := f0 + 0.25*peak(p, c1, 0.04) + 0.147*peak(p, c2, 0.08)
 		s := material.State{P: 0.8*peak(p, c1, 0.03) + 0.5*peak(p, c2, 0.05), F: f}
@@ -280,7 +281,7 @@ func TestPorosityBounds(t *testing.T) {
 				e, _, _ := lc.Locate(newX[i])
 				near := e * 6
 				for j := e * 6; j < e*6+6; j++ {
-					if dist2(oldX[j], newX[i]) < dist2(oldX[near], newX[i]) {
+					if plane.DistSq(oldX[j], newX[i]) < plane.DistSq(oldX[near], newX[i]) {
 						near = j
 					}
 				}
@@ -383,14 +384,14 @@ func TestUnchangedVerbatim(t *testing.T) {
 			// Reference: the old point at the same position (brute force).
 			j := 0
 			for k := range oldX {
-				if dist2(oldX[k], newX[i]) < dist2(oldX[j], newX[i]) {
+				if plane.DistSq(oldX[k], newX[i]) < plane.DistSq(oldX[j], newX[i]) {
 					j = k
 				}
 			}
 			if same[e].elem < 0 {
 				continue
 			}
-			if d := math.Sqrt(dist2(oldX[j], newX[i])); d > 1e-14 {
+			if d := math.Sqrt(plane.DistSq(oldX[j], newX[i])); d > 1e-14 {
 				t.Fatalf("new point %d of unchanged triangle %d has no old point at its position (nearest %g away)", q, e, d)
 			}
 			if !reflect.DeepEqual(to.State[i], from.State[j]) || math.Float64bits(to.Gauss[i].W) != math.Float64bits(from.Gauss[j].W) {
@@ -444,7 +445,7 @@ func TestRulePermutation(t *testing.T) {
 			}
 			a := r.Point(q, nw.X[nw.Tri[0][0]], nw.X[nw.Tri[0][1]], nw.X[nw.Tri[0][2]])
 			b := r.Point(j, old.X[old.Tri[0][0]], old.X[old.Tri[0][1]], old.X[old.Tri[0][2]])
-			if math.Sqrt(dist2(a, b)) > 1e-15 {
+			if math.Sqrt(plane.DistSq(a, b)) > 1e-15 {
 				t.Fatalf("rotation %d: point %d at %v, old point %d at %v", s, q, a, j, b)
 			}
 		}
