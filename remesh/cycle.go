@@ -573,7 +573,7 @@ func (c *Cycle) Displacement() ([][2]float64, error) {
 func (c *Cycle) brokenCount() int {
 	n := 0
 	for e := range c.Mesh.Tri {
-		if c.Prob.Broken(e) {
+		if c.Prob.Released(e) {
 			n++
 		}
 	}

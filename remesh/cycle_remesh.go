@@ -314,7 +314,7 @@ func (c *Cycle) sizeField() (*size.TipField, []bool, error) {
 	gp := c.GaussPoints()
 	released := make([]bool, len(c.Mesh.Tri))
 	for e := range released {
-		released[e] = c.Prob.Broken(e)
+		released[e] = c.Prob.Released(e)
 	}
 	damaged, err := size.DamagedPoints(gp, released, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
 	if err != nil {

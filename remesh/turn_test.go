@@ -140,7 +140,7 @@ func (w *turnWatch) Step(r *StepRecord, v View) error {
 	}
 	gp := c.GaussPoints()
 	for e := range c.Mesh.Tri {
-		holds := c.Prob.Broken(e)
+		holds := c.Prob.Released(e)
 		for i := 0; i < gp.PerElement && !holds; i++ {
 			s := &gp.At(e, i).State
 			holds = s.Broken || s.F >= w.fBreak

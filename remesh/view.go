@@ -55,7 +55,7 @@ func (v View) NodalField(f fem.Field, dst []float64) (bool, error) {
 
 // Released reports whether element e is out of the assembly (broken, or
 // releasing its force).
-func (v View) Released(e int) bool { return v.c.Prob.Broken(e) }
+func (v View) Released(e int) bool { return v.c.Prob.Released(e) }
 
 // GaussPoints returns the committed Gauss-point data.
 func (v View) GaussPoints() *fem.GaussPoints { return v.c.GaussPoints() }

@@ -450,7 +450,7 @@ func (s *Solver) strainCorrection() float64 {
 	p := s.P
 	var m float64
 	for e, t := range p.Mesh.Tri {
-		if p.Broken(e) {
+		if p.Released(e) {
 			continue
 		}
 		for k := 0; k < 3; k++ {

@@ -125,7 +125,7 @@ func (p *Problem) ProjectVolume() error {
 	num := make([]float64, len(p.Mesh.X))
 	den := make([]float64, len(p.Mesh.X))
 	for e := range p.Mesh.Tri {
-		if p.Broken(e) {
+		if p.Released(e) {
 			continue
 		}
 		for g := 0; g < perElem; g++ {
