@@ -39,23 +39,23 @@ func benchCycle(b *testing.B) *Cycle {
 	if err != nil {
 		b.Fatal(err)
 	}
-	c.Cfg.Adapt = false
+	c.cfg.Adapt = false
 	start := time.Now()
 	if _, err := c.Run(nopObserver{}); err != nil {
 		b.Fatal(err)
 	}
-	if !(c.Da > 0) {
+	if !(c.da > 0) {
 		b.Fatal("the set-up run did not grow the crack")
 	}
 	// Onto the large mesh: the follow zone of benchFollow, the remesh
 	// pipeline, and re-equilibration at the same load.
-	c.Cfg.Adapt = true
-	c.Cfg.Follow = benchFollow(cfg.Length, tc.HFar)
+	c.cfg.Adapt = true
+	c.cfg.Follow = benchFollow(cfg.Follow.Length, tc.HFar)
 	if _, err := c.remesh(trigger.Decision{Reason: "benchmark set-up"}); err != nil {
 		b.Fatal(err)
 	}
 	b.Logf("set-up: Δa = %.3g mm after %d steps, %d unknowns, %d elements, max f %.3g (%v)",
-		c.Da, c.Steps, c.Prob.Dofs.N, len(c.Mesh.Tri), maxPorosity(c), time.Since(start).Round(time.Millisecond))
+		c.da, c.steps, c.prob.Dofs.N, len(c.mesh.Tri), maxPorosity(c), time.Since(start).Round(time.Millisecond))
 	return c
 }
 
@@ -87,21 +87,21 @@ func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Durat
 	if err != nil {
 		return nil, ph, err
 	}
-	damaged, err := size.DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	damaged, err := size.DamagedPoints(gp, broken, c.cfg.Trigger.FAlert, c.cfg.Trigger.PAlert)
 	if err != nil {
 		return nil, ph, err
 	}
-	tf, err := size.NewTipField(tips, damaged, nil, c.Cfg.Follow)
+	tf, err := size.NewTipField(tips, damaged, nil, c.cfg.Follow)
 	if err != nil {
 		return nil, ph, err
 	}
-	carved, err := carve.Domain(c.Mesh, broken, c.Cfg.Domain, tips, tf.At, c.Cfg.Carve)
+	carved, err := carve.Domain(c.mesh, broken, c.cfg.Domain, tips, tf.At, c.cfg.Carve)
 	if err != nil {
 		return nil, ph, err
 	}
 	ph[0] = time.Since(t0)
 	t0 = time.Now()
-	m, _, err := meshing.Mesh(carved.Domain, tf.At, c.Cfg.Mesh)
+	m, _, err := meshing.Mesh(carved.Domain, tf.At, c.cfg.Mesh)
 	if err != nil {
 		return nil, ph, err
 	}
@@ -111,24 +111,24 @@ func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Durat
 	if err != nil {
 		return nil, ph, err
 	}
-	to, _, err := transfer.Map(c.Mesh, from, m, c.Cfg.Transfer)
+	to, _, err := transfer.Map(c.mesh, from, m, c.cfg.Transfer)
 	if err != nil {
 		return nil, ph, err
 	}
 	ph[2] = time.Since(t0)
 	t0 = time.Now()
-	bcs, err := c.Cfg.BCs(m)
+	bcs, err := c.cfg.BCs(m)
 	if err != nil {
 		return nil, ph, err
 	}
-	p, err = fem.NewProblem(m, c.Cfg.Material, c.Cfg.FE, bcs)
+	p, err = fem.NewProblem(m, c.cfg.Material, c.cfg.FE, bcs)
 	if err != nil {
 		return nil, ph, err
 	}
 	// install and reconcile act on the cycle's current mesh and problem:
 	// a shallow copy holding the new ones leaves c as it was.
-	nc := &stage{Cfg: c.Cfg, Mesh: m, Prob: p}
-	if err := nc.install(to, c.Prob.TCommitted, false); err != nil {
+	nc := &stage{cfg: c.cfg, mesh: m, prob: p}
+	if err := nc.install(to, c.prob.TCommitted, false); err != nil {
 		p.Close()
 		return nil, ph, err
 	}
@@ -159,10 +159,10 @@ func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Durat
 //     and one solve — what each iteration of solver.Increment does.
 func BenchmarkCycleRemesh(b *testing.B) {
 	c := benchCycle(b)
-	defer c.Prob.Close()
-	ell := c.Cfg.Length
+	defer c.prob.Close()
+	ell := c.cfg.Follow.Length
 	b.Run("remesh", func(b *testing.B) {
-		tips := append([]criteria.Tip(nil), c.Tips...)
+		tips := append([]criteria.Tip(nil), c.tips...)
 		for i := range tips {
 			d, _ := tips[i].UnitDir()
 			tips[i].X[0] += 3 * ell * d[0]
@@ -185,14 +185,14 @@ func BenchmarkCycleRemesh(b *testing.B) {
 		}
 		b.StopTimer()
 		n := float64(b.N)
-		b.ReportMetric(float64(c.Prob.Dofs.N), "unknowns-before")
+		b.ReportMetric(float64(c.prob.Dofs.N), "unknowns-before")
 		b.ReportMetric(float64(dofs), "unknowns-after")
 		for k, name := range []string{"geom-ms", "mesh-ms", "transfer-ms", "install-ms"} {
 			b.ReportMetric(sum[k].Seconds()*1e3/n, name)
 		}
 	})
 	b.Run("newton", func(b *testing.B) {
-		p := c.Prob
+		p := c.prob
 		p.SetTime(1.01 * p.TCommitted)
 		if err := p.Assemble(true); err != nil {
 			b.Fatal(err)

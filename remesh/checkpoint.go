@@ -55,11 +55,11 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 		return err
 	}
 	cp := checkpoint{
-		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Tau: c.Tau(), Dt: c.solver.NextDt(),
-		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
-		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra, Releases: c.Prob.Releases(),
+		Version: checkpointVersion, Mesh: c.mesh, Fields: f, T: c.prob.TCommitted, Tau: c.Tau(), Dt: c.solver.NextDt(),
+		Steps: c.steps, Remeshes: c.remeshes, PeakDofs: c.peakDofs, Da: c.da, DaProj: c.daProj,
+		Tips: c.tips, Zone: c.zone, Wall: c.wall, Extra: extra, Releases: c.prob.Releases(),
 	}
-	if c.solver.P == c.Prob {
+	if c.solver.P == c.prob {
 		cp.Prev = c.solver.PreviousIncrement()
 		if ctl := c.solver.Controlled(); ctl != nil {
 			cp.Offset = ctl.Offset
@@ -87,25 +87,25 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 	if err := cp.Fields.Check(cp.Mesh); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
-	c := &Cycle{stage: stage{Cfg: &cfg}, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
-		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall}
+	c := &Cycle{stage: stage{cfg: &cfg}, steps: cp.Steps, remeshes: cp.Remeshes, da: cp.Da, daProj: cp.DaProj,
+		tips: cp.Tips, zone: cp.Zone, wall: cp.Wall}
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
-		c.Seeds = append(c.Seeds, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
+		c.seeds = append(c.seeds, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
 	}
 	if err := c.setMesh(cp.Mesh); err != nil {
 		return nil, nil, err
 	}
-	c.PeakDofs = max(c.PeakDofs, cp.PeakDofs)
+	c.peakDofs = max(c.peakDofs, cp.PeakDofs)
 	if err := c.install(cp.Fields, cp.T, true); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
-	if err := c.Prob.SetReleases(cp.Releases); err != nil {
+	if err := c.prob.SetReleases(cp.Releases); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
 	// Re-evaluate the committed state so that reactions and Gauss-point data
 	// are those of the checkpoint (no iteration: the state is converged).
-	if err := c.Prob.Assemble(false); err != nil {
+	if err := c.prob.Assemble(false); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
 	if err := c.resumeSolver(&cp); err != nil {

@@ -30,14 +30,10 @@ type CycleConfig struct {
 
 	FE       fem.Options
 	Material material.Model
-	// F0, Fc and FBreak are the material's porosity levels (initial,
-	// coalescence onset, broken): they set the transfer bounds and the
-	// damage-front levels. Fc = 0 means a material without porosity (no
-	// damage front, Δa stays 0).
-	F0, Fc, FBreak float64
-	// Length is the internal length ℓ (0 = local model); the adaptive
-	// cycle measures its zones in Length, or in 2·h_fine for a local model.
-	Length float64
+	// Fc is the material's porosity at the onset of coalescence: the
+	// damage front is the contour 2·Fc (criteria.FrontOptions). Fc = 0
+	// means a material without porosity (no damage front, Δa stays 0).
+	Fc float64
 
 	// BCs returns the boundary conditions of a mesh (labels and named
 	// points survive remeshing, so the same function serves every mesh).
@@ -161,17 +157,17 @@ type Outcome struct {
 // it through a View.
 type Cycle struct {
 	stage // the current mesh and problem
-	Zone  size.FineZone
-	Seeds []criteria.Tip
-	// Tips are the current crack tips (initially the domain's).
-	Tips []criteria.Tip
-	// Steps, Remeshes count converged steps and remeshes; PeakDofs is the
+	zone  size.FineZone
+	seeds []criteria.Tip
+	// tips are the current crack tips (initially the domain's).
+	tips []criteria.Tip
+	// steps, remeshes count converged steps and remeshes; PeakDofs is the
 	// largest problem so far.
-	Steps, Remeshes int
-	PeakDofs        int
-	Da, DaProj      float64
-	// Wall is the wall time of the run so far (carried across resumes).
-	Wall time.Duration
+	steps, remeshes int
+	peakDofs        int
+	da, daProj      float64
+	// wall is the wall time of the run so far (carried across resumes).
+	wall time.Duration
 
 	solver *solver.Solver
 	// wall0 and started: the wall time before this Run and its start.
@@ -179,15 +175,8 @@ type Cycle struct {
 	started time.Time
 	// remeshFails counts the remeshes that failed in a row.
 	remeshFails int
-}
-
-// stage is a problem on one mesh, with the run's configuration: the
-// current one, or a new mesh's while its transferred state settles.
-type stage struct {
-	Cfg  *CycleConfig
-	Mesh *fem.Mesh
-	Prob *fem.Problem
-	gp   fem.GaussPoints
+	// stopRequest is an observer's reason to end the run (View.RequestStop).
+	stopRequest string
 }
 
 // NewCycle meshes the domain and sets up the first problem.
@@ -203,13 +192,13 @@ func NewCycle(cfg CycleConfig) (*Cycle, error) {
 	if err != nil {
 		return nil, fmt.Errorf("cycle: initial mesh: %w", err)
 	}
-	c := &Cycle{stage: stage{Cfg: &cfg}}
-	c.Zone = size.InitialZone(sf, c.hWake())
+	c := &Cycle{stage: stage{cfg: &cfg}}
+	c.zone = size.InitialZone(sf, c.hWake())
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
 		tip := criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir}
-		c.Seeds = append(c.Seeds, tip)
-		c.Tips = append(c.Tips, tip)
+		c.seeds = append(c.seeds, tip)
+		c.tips = append(c.tips, tip)
 	}
 	if err := c.setMesh(m); err != nil {
 		return nil, err
@@ -223,14 +212,14 @@ func NewCycle(cfg CycleConfig) (*Cycle, error) {
 // startSolver makes the solver of the current problem, with first
 // increment dt and, under an opening control, pseudo-time tau.
 func (c *Cycle) startSolver(dt, tau float64) error {
-	opt := c.Cfg.Solver
+	opt := c.cfg.Solver
 	opt.Dt = math.Min(math.Max(dt, opt.DtMin), opt.DtMax)
-	s, err := solver.New(c.Prob, opt)
+	s, err := solver.New(c.prob, opt)
 	if err != nil {
 		return err
 	}
 	c.solver = s
-	ctl, err := c.control(c.Prob)
+	ctl, err := c.control(c.prob)
 	if err != nil || ctl == nil {
 		return err
 	}
@@ -242,10 +231,10 @@ func (c *Cycle) startSolver(dt, tau float64) error {
 
 // control is the opening control of problem p (nil under load control).
 func (c *Cycle) control(p *fem.Problem) (*solver.Control, error) {
-	if c.Cfg.Control == nil {
+	if c.cfg.Control == nil {
 		return nil, nil
 	}
-	ctl, err := c.Cfg.Control(p)
+	ctl, err := c.cfg.Control(p)
 	if err != nil {
 		return nil, fmt.Errorf("opening control: %w", err)
 	}
@@ -271,23 +260,23 @@ func sortedTipNames(d *geom.Domain) []string {
 
 // hWake is the size damaged points outside the fine zone may have.
 func (c *Cycle) hWake() float64 {
-	if c.Cfg.Adapt {
-		return c.Cfg.Follow.HWake()
+	if c.cfg.Adapt {
+		return c.cfg.Follow.HWake()
 	}
-	return c.Cfg.Size.WithDefaults().HFar
+	return c.cfg.Size.WithDefaults().HFar
 }
 
 // newStage builds the problem on mesh m (its state virgin).
 func (c *Cycle) newStage(m *fem.Mesh) (*stage, error) {
-	bcs, err := c.Cfg.BCs(m)
+	bcs, err := c.cfg.BCs(m)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: boundary conditions: %w", err)
 	}
-	p, err := fem.NewProblem(m, c.Cfg.Material, c.Cfg.FE, bcs)
+	p, err := fem.NewProblem(m, c.cfg.Material, c.cfg.FE, bcs)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: problem: %w", err)
 	}
-	return &stage{Cfg: c.Cfg, Mesh: m, Prob: p}, nil
+	return &stage{cfg: c.cfg, mesh: m, prob: p}, nil
 }
 
 // setMesh makes the problem on mesh m (its state virgin) the current one.
@@ -296,19 +285,12 @@ func (c *Cycle) setMesh(m *fem.Mesh) error {
 	if err != nil {
 		return err
 	}
-	if c.Prob != nil {
-		c.Prob.Close()
+	if c.prob != nil {
+		c.prob.Close()
 	}
 	c.stage = *next
-	c.PeakDofs = max(c.PeakDofs, next.Prob.Dofs.N)
+	c.peakDofs = max(c.peakDofs, next.prob.Dofs.N)
 	return nil
-}
-
-// GaussPoints returns the committed Gauss-point data of the stage's
-// problem (refreshed on every call; the slice is reused).
-func (c *stage) GaussPoints() *fem.GaussPoints {
-	c.Prob.GaussPoints(&c.gp)
-	return &c.gp
 }
 
 // Run advances the run until stop.t, stop.da, the deadline, the step
@@ -317,7 +299,8 @@ func (c *stage) GaussPoints() *fem.GaussPoints {
 // the damage front → record → decide → (remesh: size field → new geometry
 // → mesh → transfer → settle → re-equilibrate).
 func (c *Cycle) Run(obs Observer) (Outcome, error) {
-	c.started, c.wall0 = time.Now(), c.Wall
+	c.started, c.wall0 = time.Now(), c.wall
+	c.stopRequest = ""
 	for {
 		if end, done := c.atLimit(); done {
 			return c.outcome(end), nil
@@ -367,12 +350,12 @@ func stopWith(status solver.Status, reason string) verdict {
 
 // outcome is the run's end as the caller sees it.
 func (c *Cycle) outcome(v verdict) Outcome {
-	c.Wall = c.wall0 + time.Since(c.started)
+	c.wall = c.wall0 + time.Since(c.started)
 	status := v.status
 	if !v.stop {
 		status = solver.Stopped // an error ended the run
 	}
-	return Outcome{Status: status, Reason: v.reason, Steps: c.Steps, T: c.Tau(), Da: c.Da, PeakDof: c.PeakDofs}
+	return Outcome{Status: status, Reason: v.reason, Steps: c.steps, T: c.Tau(), Da: c.da, PeakDof: c.peakDofs}
 }
 
 // atLimit reports whether the run has reached stop.t or the step limit.
@@ -380,7 +363,7 @@ func (c *Cycle) atLimit() (verdict, bool) {
 	if c.solver.Done() {
 		return stopWith(solver.Completed, ""), true
 	}
-	if max := c.Cfg.Solver.MaxSteps; c.Steps >= max {
+	if max := c.cfg.Solver.MaxSteps; c.steps >= max {
 		return stopWith(solver.Stopped, fmt.Sprintf("step limit %d reached at t = %g", max, c.Tau())), true
 	}
 	return verdict{}, false
@@ -390,7 +373,7 @@ func (c *Cycle) atLimit() (verdict, bool) {
 // (increments cut below the minimum) ends the run with its reason.
 func (c *Cycle) solveIncrement() (solver.Step, verdict, error) {
 	st, err := c.solver.Next()
-	c.Wall = c.wall0 + time.Since(c.started)
+	c.wall = c.wall0 + time.Since(c.started)
 	var stall *solver.StallError
 	if errors.As(err, &stall) {
 		return st, stopWith(solver.Stopped, stall.Error()), nil
@@ -398,23 +381,26 @@ func (c *Cycle) solveIncrement() (solver.Step, verdict, error) {
 	if err != nil {
 		return st, verdict{}, err
 	}
-	c.Steps++
+	c.steps++
 	return st, verdict{}, nil
 }
 
-// decide ends the run when the crack has grown far enough or the deadline
-// has passed, and asks the trigger whether a remesh is due.
+// decide ends the run when an observer asked for it, the crack has grown
+// far enough or the deadline has passed, and asks the trigger whether a remesh is due.
 func (c *Cycle) decide(gp *fem.GaussPoints) (verdict, error) {
-	if c.Cfg.StopDa > 0 && c.Da >= c.Cfg.StopDa {
-		return stopWith(solver.Completed, fmt.Sprintf("crack growth Δa = %.4g reached stop.da = %g", c.Da, c.Cfg.StopDa)), nil
+	if c.stopRequest != "" {
+		return stopWith(solver.Stopped, c.stopRequest), nil
 	}
-	if !c.Cfg.Deadline.IsZero() && time.Now().After(c.Cfg.Deadline) {
+	if c.cfg.StopDa > 0 && c.da >= c.cfg.StopDa {
+		return stopWith(solver.Completed, fmt.Sprintf("crack growth Δa = %.4g reached stop.da = %g", c.da, c.cfg.StopDa)), nil
+	}
+	if !c.cfg.Deadline.IsZero() && time.Now().After(c.cfg.Deadline) {
 		return stopWith(solver.Stopped, "wall-clock limit stop.hours reached"), nil
 	}
-	if !c.Cfg.Adapt {
+	if !c.cfg.Adapt {
 		return verdict{}, nil
 	}
-	d, err := trigger.Check(c.Mesh, gp, c.Tips, &c.Zone, c.Remeshes, c.Cfg.Trigger)
+	d, err := trigger.Check(c.mesh, gp, c.tips, &c.zone, c.remeshes, c.cfg.Trigger)
 	return verdict{remesh: d}, err
 }
 
@@ -430,13 +416,13 @@ func (c *Cycle) remeshOrRetry(d trigger.Decision, obs Observer) (verdict, error)
 	}
 	c.remeshFails++
 	if c.remeshFails >= remeshAttempts {
-		return stopWith(solver.Stopped, fmt.Sprintf("remesh %d failed %d times in a row, last: %v", c.Remeshes+1, c.remeshFails, err)), nil
+		return stopWith(solver.Stopped, fmt.Sprintf("remesh %d failed %d times in a row, last: %v", c.remeshes+1, c.remeshFails, err)), nil
 	}
-	if err := c.rebindSolver(c.Prob); err != nil {
+	if err := c.rebindSolver(c.prob); err != nil {
 		return verdict{}, err
 	}
 	if fo, ok := obs.(RemeshFailureObserver); ok {
-		return verdict{}, fo.RemeshFailed(c.Remeshes+1, c.Steps, err)
+		return verdict{}, fo.RemeshFailed(c.remeshes+1, c.steps, err)
 	}
 	return verdict{}, nil
 }
@@ -456,31 +442,31 @@ func (c *Cycle) rebindSolver(p *fem.Problem) error {
 // record evaluates the crack-growth measures of the converged state whose
 // Gauss-point data is gp.
 func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error) {
-	p := c.Prob
+	p := c.prob
 	rec := &StepRecord{
-		Step: c.Steps, T: c.Tau(), Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.Mesh.Tri) - c.brokenCount(),
-		Remeshes: c.Remeshes, Iters: st.Iterations, Cutbacks: st.Cutbacks,
+		Step: c.steps, T: c.Tau(), Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.mesh.Tri) - c.releasedCount(),
+		Remeshes: c.remeshes, Iters: st.Iterations, Cutbacks: st.Cutbacks,
 		JFar: math.NaN(), JDomain: math.NaN(), CTOD: math.NaN(),
 		Residuals: append([]float64(nil), st.Residuals...),
-		StepWall:  st.Wall, CumWall: c.Wall,
+		StepWall:  st.Wall, CumWall: c.wall,
 	}
 	var err error
-	rec.Control, rec.Force, err = c.Cfg.Measure(p)
+	rec.Control, rec.Force, err = c.cfg.Measure(p)
 	if err != nil {
 		return nil, err
 	}
 	for i := range gp.Points {
 		rec.MaxPorosity = math.Max(rec.MaxPorosity, gp.Points[i].State.F)
 	}
-	if k := c.Cfg.KField; k != nil {
+	if k := c.cfg.KField; k != nil {
 		rec.JFar = criteria.FarFieldJMixed(k.K*p.TCommitted, k.KII*p.TCommitted, k.El)
 	}
-	if len(c.Seeds) == 0 {
+	if len(c.seeds) == 0 {
 		return rec, nil
 	}
-	rec.Da, rec.DaProj = c.Da, c.DaProj
-	rec.TipX = c.Tips[0].X
-	if c.Cfg.J != nil {
+	rec.Da, rec.DaProj = c.da, c.daProj
+	rec.TipX = c.tips[0].X
+	if c.cfg.J != nil {
 		js, err := c.domainJ(gp)
 		if err != nil {
 			rec.Unmeasured = append(rec.Unmeasured, fmt.Errorf("domain J: %w", err))
@@ -505,12 +491,12 @@ func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error)
 // each tip has grown. A material without porosity (Fc = 0), or a domain
 // without crack tips, has no front: nil.
 func (c *Cycle) locateFront(gp *fem.GaussPoints) (*criteria.Front, error) {
-	if !(c.Cfg.Fc > 0) || len(c.Seeds) == 0 {
+	if !(c.cfg.Fc > 0) || len(c.seeds) == 0 {
 		return nil, nil
 	}
-	front, err := criteria.LocateFront(c.Mesh, gp, criteria.FrontOptions{Fc: c.Cfg.Fc, Tips: c.Seeds})
+	front, err := criteria.LocateFront(c.mesh, gp, criteria.FrontOptions{Fc: c.cfg.Fc, Tips: c.seeds})
 	if err != nil {
-		return nil, fmt.Errorf("step %d: crack tip: %w", c.Steps, err)
+		return nil, fmt.Errorf("step %d: crack tip: %w", c.steps, err)
 	}
 	return front, nil
 }
@@ -522,58 +508,38 @@ func (c *Cycle) follow(front *criteria.Front) {
 		return
 	}
 	for i, t := range front.Tips {
-		if t.DA >= c.Da {
-			c.Da, c.DaProj = t.DA, t.DAProj
+		if t.DA >= c.da {
+			c.da, c.daProj = t.DA, t.DAProj
 		}
-		if i < len(c.Tips) && t.Grown {
-			c.Tips[i] = t.Tip
+		if i < len(c.tips) && t.Grown {
+			c.tips[i] = t.Tip
 		}
 	}
 }
 
 // domainJ evaluates J on the configured rings around the first tip.
 func (c *Cycle) domainJ(gp *fem.GaussPoints) ([]float64, error) {
-	jc := c.Cfg.J
+	jc := c.cfg.J
 	rings := make([]criteria.Ring, len(jc.Rings))
 	for i, r := range jc.Rings {
 		rings[i] = criteria.Ring{In: r.In * jc.Unit, Out: r.Out * jc.Unit}
 	}
-	t := c.Tips[0]
-	return criteria.DomainJ(c.Mesh, gp, criteria.JOptions{Tip: t.X, Dir: t.Dir, Rings: rings, Symmetric: c.Cfg.Symmetric})
+	t := c.tips[0]
+	return criteria.DomainJ(c.mesh, gp, criteria.JOptions{Tip: t.X, Dir: t.Dir, Rings: rings, Symmetric: c.cfg.Symmetric})
 }
 
 // ctod measures the crack-tip opening at the first tip.
 func (c *Cycle) ctod() (float64, error) {
-	u, err := c.Displacement()
-	if err != nil {
-		return 0, err
-	}
-	t := c.Tips[0]
-	op, err := criteria.CTOD(c.Mesh, u, criteria.CTODOptions{Tip: t.X, Dir: t.Dir, Symmetric: c.Cfg.Symmetric})
+	t := c.tips[0]
+	op, err := criteria.CTOD(c.mesh, c.prob.Displacement(), criteria.CTODOptions{Tip: t.X, Dir: t.Dir, Symmetric: c.cfg.Symmetric})
 	return op.Delta, err
 }
 
-// Displacement returns the committed nodal displacement.
-func (c *Cycle) Displacement() ([][2]float64, error) {
-	n := len(c.Mesh.X)
-	ux, uy := make([]float64, n), make([]float64, n)
-	if err := c.Prob.NodalField(fem.Ux, ux); err != nil {
-		return nil, err
-	}
-	if err := c.Prob.NodalField(fem.Uy, uy); err != nil {
-		return nil, err
-	}
-	u := make([][2]float64, n)
-	for i := range u {
-		u[i] = [2]float64{ux[i], uy[i]}
-	}
-	return u, nil
-}
-
-func (c *Cycle) brokenCount() int {
+// releasedCount is the number of elements out of the assembly.
+func (c *Cycle) releasedCount() int {
 	n := 0
-	for e := range c.Mesh.Tri {
-		if c.Prob.Released(e) {
+	for e := range c.mesh.Tri {
+		if c.prob.Released(e) {
 			n++
 		}
 	}

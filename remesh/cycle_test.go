@@ -20,16 +20,15 @@ import (
 
 // recorder keeps every record the cycle reports.
 type recorder struct {
-	steps   []StepRecord
-	remesh  []RemeshRecord
-	stopAt  int
-	stopErr error
+	steps  []StepRecord
+	remesh []RemeshRecord
+	stopAt int
 }
 
 func (r *recorder) Step(s *StepRecord, v View) error {
 	r.steps = append(r.steps, *s)
 	if r.stopAt > 0 && s.Step == r.stopAt {
-		return r.stopErr
+		v.RequestStop("test: interrupted")
 	}
 	return nil
 }
@@ -60,7 +59,7 @@ func elasticSSY(t *testing.T, k float64) CycleConfig {
 	so.Dt, so.DtMax, so.TEnd = 0.5, 0.5, 1
 	return CycleConfig{
 		Domain: d, Size: size.Options{HFine: 0.05, HFar: 2, FineRadius: 0.5},
-		Material: mat, F0: 0, Fc: 0.02, FBreak: 1, Length: 0.1,
+		Material: mat, Fc: 0.02,
 		BCs: func(m *fem.Mesh) (fem.BCs, error) {
 			return fem.BCs{
 				Symmetries: []fem.Symmetry{{Label: "symmetry", Comp: 1}},
@@ -133,8 +132,7 @@ func TestCheckpointRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	stop := solver.ErrStop
-	part := recorder{stopAt: 2, stopErr: stop}
+	part := recorder{stopAt: 2}
 	if _, err := first.Run(&part); err != nil {
 		t.Fatal(err)
 	}
@@ -179,7 +177,7 @@ func plasticSSY(t *testing.T, k, fineRadius float64) (CycleConfig, *material.GTN
 	if err != nil {
 		t.Fatal(err)
 	}
-	cfg.Material, cfg.F0, cfg.Fc, cfg.FBreak, cfg.Length = mat, par.F0, par.FC, par.BreakPorosity(), 0.2
+	cfg.Material, cfg.Fc = mat, par.FC
 	cfg.Size = size.Options{HFine: 0.1, HFar: 2, FineRadius: fineRadius}
 	cfg.Adapt = true
 	cfg.Trigger = trigger.DefaultOptions(0.2)
@@ -205,7 +203,7 @@ func TestRemeshReaction(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	c.Cfg.Adapt = false // reach the plastic state on the first mesh
+	c.cfg.Adapt = false // reach the plastic state on the first mesh
 	var rec recorder
 	if _, err := c.Run(&rec); err != nil {
 		t.Fatal(err)
@@ -213,7 +211,7 @@ func TestRemeshReaction(t *testing.T) {
 	if rec.steps[len(rec.steps)-1].MaxPorosity <= par.F0 {
 		t.Fatalf("no plastic void growth before the remesh (max f %g)", rec.steps[len(rec.steps)-1].MaxPorosity)
 	}
-	c.Cfg.Adapt = true
+	c.cfg.Adapt = true
 	rr, err := c.remesh(trigger.Decision{Reason: "test"})
 	if err != nil {
 		t.Fatal(err)
@@ -223,8 +221,8 @@ func TestRemeshReaction(t *testing.T) {
 	}
 	// The new mesh has its own discretisation error: the reference after
 	// re-equilibration is the same loading solved from scratch on it.
-	bcs, _ := cfg.BCs(c.Mesh)
-	p, err := fem.NewProblem(c.Mesh, mat, cfg.FE, bcs)
+	bcs, _ := cfg.BCs(c.mesh)
+	p, err := fem.NewProblem(c.mesh, mat, cfg.FE, bcs)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -96,7 +96,7 @@ func notchedBar(bc barCase) (*barRun, error) {
 		Domain:   d,
 		Size:     size.Options{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
 		FE:       fem.Options{Kinematics: fem.Axisymmetric},
-		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: bc.Ell,
+		Material: mat, Fc: par.FC,
 		Solver: so,
 	}
 	cfg.BCs, cfg.Measure = pulledEdge("end", [2]bool{false, true}, v10Elong,
@@ -105,13 +105,13 @@ func notchedBar(bc barCase) (*barRun, error) {
 	if err != nil {
 		return nil, err
 	}
-	run := &barRun{Case: bc, Elements: len(c.Mesh.Tri)}
+	run := &barRun{Case: bc, Elements: len(c.mesh.Tri)}
 	obs := &barObserver{run: run}
 	out, err := c.Run(obs)
 	if err != nil {
 		return nil, fmt.Errorf("%v: %w", bc, err)
 	}
-	run.Status, run.Reason, run.Wall = out.Status, out.Reason, c.Wall
+	run.Status, run.Reason, run.Wall = out.Status, out.Reason, c.wall
 	return run, nil
 }
 
@@ -130,7 +130,7 @@ func (o *barObserver) Step(r *StepRecord, v View) error {
 	o.run.Force = append(o.run.Force, r.Force)
 	o.peak = math.Max(o.peak, r.Force)
 	if r.Force < (1-v10StopDrop)*o.peak {
-		return solver.ErrStop
+		v.RequestStop("force dropped below the stop level")
 	}
 	return nil
 }
@@ -443,7 +443,7 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 	cfg := CycleConfig{
 		Domain:   d,
 		Size:     size.Options{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
-		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
+		Material: mat, Fc: par.FC,
 		Solver: so,
 	}
 	cfg.BCs, cfg.Measure = pulledEdge("top", [2]bool{true, true}, v10ColUy,
@@ -453,17 +453,17 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 		return 0, 0, 0, err
 	}
 	gp := c.GaussPoints()
-	st := c.Prob.State()
+	st := c.prob.State()
 	for e := range st {
 		for g := range st[e] {
 			y := gp.At(e, g).X[1]
 			st[e][g].F = par.F0 * (1 + 0.1*math.Exp(-(y*y)/(v10ColB*v10ColB)))
 		}
 	}
-	if err := c.Prob.SetState(st); err != nil {
+	if err := c.prob.SetState(st); err != nil {
 		return 0, 0, 0, err
 	}
-	obs := &columnObserver{level: 2 * par.FC, fBreak: cfg.FBreak, width: W, ylim: 3 * ell, w: math.NaN()}
+	obs := &columnObserver{level: 2 * par.FC, fBreak: cfg.Transfer.FBreak, width: W, ylim: 3 * ell, w: math.NaN()}
 	out, err := c.Run(obs)
 	if err != nil {
 		return 0, 0, 0, err
@@ -471,7 +471,7 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 	if math.IsNaN(obs.w) {
 		return 0, 0, 0, fmt.Errorf("column ℓ = %g, h = %g: no point broke (%v %s)", ell, h, out.Status, out.Reason)
 	}
-	return obs.w, len(c.Mesh.Tri), obs.at, nil
+	return obs.w, len(c.mesh.Tri), obs.at, nil
 }
 
 type columnObserver struct {
@@ -487,7 +487,8 @@ func (o *columnObserver) Step(r *StepRecord, v View) error {
 	}
 	o.w = bandWidth(c.GaussPoints(), o.level, o.width, o.ylim)
 	o.at = r.Control
-	return solver.ErrStop
+	v.RequestStop("the band has broken")
+	return nil
 }
 
 func (o *columnObserver) Remesh(*RemeshRecord, View) error { return nil }

@@ -78,7 +78,7 @@ func turnConfig(t testing.TB, tc turnCase) CycleConfig {
 	cfg := CycleConfig{
 		Domain:   d,
 		Size:     size.Options{HFine: hFine, HFar: tc.HFar, FineRadius: 0.15, Grading: 0.3},
-		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
+		Material: mat, Fc: par.FC,
 		BCs: func(m *fem.Mesh) (fem.BCs, error) {
 			return fem.BCs{Displacements: []fem.Displacement{{Label: "remote", Fix: [2]bool{true, true},
 				Func: func(X [2]float64, t float64) [2]float64 {
@@ -131,16 +131,16 @@ type turnWatch struct {
 func (w *turnWatch) Step(r *StepRecord, v View) error {
 	c := v.c
 	w.steps = append(w.steps, *r)
-	for _, tp := range c.Tips {
-		dep := c.Zone.Depth(tp.X)
-		w.minDepth = math.Min(w.minDepth, dep/c.Zone.HFine)
+	for _, tp := range c.tips {
+		dep := c.zone.Depth(tp.X)
+		w.minDepth = math.Min(w.minDepth, dep/c.zone.HFine)
 		if dep < 0 {
 			w.t.Errorf("step %d: tip %q at (%.4g, %.4g) lies %.3g mm outside the fine zone", r.Step, tp.Name, tp.X[0], tp.X[1], -dep)
 		}
 	}
 	gp := c.GaussPoints()
-	for e := range c.Mesh.Tri {
-		holds := c.Prob.Released(e)
+	for e := range c.mesh.Tri {
+		holds := c.prob.Released(e)
 		for i := 0; i < gp.PerElement && !holds; i++ {
 			s := &gp.At(e, i).State
 			holds = s.Broken || s.F >= w.fBreak
@@ -148,7 +148,7 @@ func (w *turnWatch) Step(r *StepRecord, v View) error {
 		if !holds {
 			continue
 		}
-		h := trigger.LongestEdge(c.Mesh, e) / c.Zone.HFine
+		h := trigger.LongestEdge(c.mesh, e) / c.zone.HFine
 		if h > w.worst {
 			w.worst, w.worstStep = h, r.Step
 		}
@@ -157,14 +157,14 @@ func (w *turnWatch) Step(r *StepRecord, v View) error {
 		}
 	}
 	w.t.Logf("step %3d τ %.4f K_I %7.1f Δa %.4f tip (%.4f, %+.4f) dir (%+.3f, %+.3f) dofs %6d iters %2d cut %d max f %.3f  %5.1fs",
-		r.Step, r.T, r.Load, r.Da, r.TipX[0], r.TipX[1], c.Tips[0].Dir[0], c.Tips[0].Dir[1], r.Dofs, r.Iters, r.Cutbacks, r.MaxPorosity, time.Since(w.start).Seconds())
+		r.Step, r.T, r.Load, r.Da, r.TipX[0], r.TipX[1], c.tips[0].Dir[0], c.tips[0].Dir[1], r.Dofs, r.Iters, r.Cutbacks, r.MaxPorosity, time.Since(w.start).Seconds())
 	return nil
 }
 
 func (w *turnWatch) Remesh(r *RemeshRecord, v View) error {
 	c := v.c
 	w.remeshes = append(w.remeshes, *r)
-	w.remeshTipY = append(w.remeshTipY, c.Tips[0].X[1])
+	w.remeshTipY = append(w.remeshTipY, c.tips[0].X[1])
 	w.t.Logf("remesh %d at step %d (Δa %.4f): %s; dofs %d → %d, removed %d, %d iterations; geometry %v mesh %v map %v equilibrium %v",
 		r.Index, r.Step, r.Da, r.Reason, r.DofsBefore, r.DofsAfter, r.Removed, r.Iterations, r.GeomWall, r.MeshWall, r.MapWall, r.EquilWall)
 	return nil
@@ -202,7 +202,7 @@ func TestTurningCrack(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	w := &turnWatch{t: t, fBreak: cfg.FBreak, factor: 1.5, minDepth: math.Inf(1), start: time.Now()}
+	w := &turnWatch{t: t, fBreak: cfg.Transfer.FBreak, factor: 1.5, minDepth: math.Inf(1), start: time.Now()}
 	out, err := c.Run(w)
 	if err != nil {
 		t.Fatal(err)
@@ -211,7 +211,7 @@ func TestTurningCrack(t *testing.T) {
 	if out.Status != solver.Completed {
 		t.Fatalf("the run ended %v (%s) at Δa = %.4g before reaching Δa = %g", out.Status, out.Reason, out.Da, tc.StopDa)
 	}
-	ell := cfg.Length
+	ell := cfg.Follow.Length
 	turned := 0
 	for _, y := range w.remeshTipY {
 		if math.Abs(y) > 0.25*ell {
@@ -221,7 +221,7 @@ func TestTurningCrack(t *testing.T) {
 	if turned == 0 {
 		t.Errorf("no remesh after the tip left the plane (tip |y| at the remeshes %v, want one > ℓ/4)", w.remeshTipY)
 	}
-	tip := c.Tips[0]
+	tip := c.tips[0]
 	kink := criteria.KinkAngle(1, tc.Ratio)
 	chord := math.Atan2(tip.X[1], tip.X[0])
 	dir := math.Atan2(tip.Dir[1], tip.Dir[0])

@@ -34,31 +34,36 @@ type Progress struct {
 // Progress returns the run's counters.
 func (v View) Progress() Progress {
 	c := v.c
-	return Progress{Steps: c.Steps, Remeshes: c.Remeshes, T: c.Tau(), Load: c.Prob.TCommitted, Da: c.Da, DaProj: c.DaProj,
-		PeakDofs: c.PeakDofs, Wall: c.Wall, Tracked: len(c.Seeds) > 0}
+	return Progress{Steps: c.steps, Remeshes: c.remeshes, T: c.Tau(), Load: c.prob.TCommitted, Da: c.da, DaProj: c.daProj,
+		PeakDofs: c.peakDofs, Wall: c.wall, Tracked: len(c.seeds) > 0}
 }
 
 // Mesh returns the current mesh.
-func (v View) Mesh() *fem.Mesh { return v.c.Mesh }
+func (v View) Mesh() *fem.Mesh { return v.c.mesh }
 
 // Displacement returns the committed nodal displacement.
-func (v View) Displacement() [][2]float64 { return v.c.Prob.Displacement() }
+func (v View) Displacement() [][2]float64 { return v.c.prob.Displacement() }
 
 // NodalField fills dst with the committed nodal values of field f; it
 // reports false when the problem does not carry f.
 func (v View) NodalField(f fem.Field, dst []float64) (bool, error) {
-	if !v.c.Prob.Dofs.Has(f) {
+	if !v.c.prob.Dofs.Has(f) {
 		return false, nil
 	}
-	return true, v.c.Prob.NodalField(f, dst)
+	return true, v.c.prob.NodalField(f, dst)
 }
 
 // Released reports whether element e is out of the assembly (broken, or
 // releasing its force).
-func (v View) Released(e int) bool { return v.c.Prob.Released(e) }
+func (v View) Released(e int) bool { return v.c.prob.Released(e) }
 
 // GaussPoints returns the committed Gauss-point data.
 func (v View) GaussPoints() *fem.GaussPoints { return v.c.GaussPoints() }
+
+// RequestStop asks the cycle to end the run cleanly after the current
+// step, with status Stopped and the given reason (an observer that has
+// seen what it needs: a load drop, a band width).
+func (v View) RequestStop(reason string) { v.c.stopRequest = reason }
 
 // WriteCheckpoint writes the committed state of the run to w; see
 // Cycle.WriteCheckpoint.

@@ -58,9 +58,8 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		Size:     sf.Options,
 		Mesh:     c.Mesh.options(),
 		Material: mat,
-		F0:       c.Material.F0, Fc: c.Material.Fc, FBreak: c.Material.breakPorosity(),
-		Length: c.Material.Length,
-		StopDa: c.Stop.Da,
+		Fc:       c.Material.Fc,
+		StopDa:   c.Stop.Da,
 	}
 	if c.Material.Model == "elastic" {
 		cfg.Fc = 0 // no porosity: the cycle locates no damage front
@@ -128,7 +127,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	cfg.Carve = carve.DefaultOptions()
 	cfg.Carve.Simplify = c.Adapt.Simplify
 	cfg.Transfer = transfer.DefaultOptions()
-	cfg.Transfer.F0, cfg.Transfer.FBreak = c.Material.F0, cfg.FBreak
+	cfg.Transfer.F0, cfg.Transfer.FBreak = c.Material.F0, c.Material.breakPorosity()
 	cfg.Transfer.Axisymmetric = d.Axisymmetric
 	if cfg.Adapt {
 		for _, v := range []interface{ Validate() error }{&cfg.Trigger, &cfg.Follow, &cfg.Carve} {

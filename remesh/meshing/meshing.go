@@ -1,12 +1,3 @@
-// Package remesh runs the adaptive cycle of tearline: the size field around
-// the crack tips, the geometry left after removing broken material, and the
-// glue that meshes a geom.Domain into the shared 6-node fem.Mesh.
-//
-// Meshing a built-in specimen:
-//
-//	d, _ := geom.DefaultCT().Domain()
-//	h, _ := size.NewField(d, size.Options{HFine: 0.05, HFar: 2})
-//	m, rep, err := meshing.Mesh(d, h.At, meshing.Options{})
 package meshing
 
 import (

@@ -1,17 +1,8 @@
-// The adaptive cycle (DESIGN.md §4): when to remesh (Check), the
-// tip-following size field (TipField), and the new geometry with broken
-// material removed (Carve), which MeshDomain meshes. One cycle, in outline:
-//
-//	dec, err := trigger.Check(m, gp, tips, zone, count, trig)
-//	if dec.Remesh {
-//		broken := carve.BrokenElements(gp)
-//		dmg, _ := size.DamagedPoints(gp, broken, trig.FAlert, trig.PAlert)
-//		field, _ := size.NewTipField(tips, dmg, features, follow)
-//		c, _ := carve.Domain(m, broken, original, tips, field.At, carve)
-//		m2, rep, err := meshing.Mesh(c.Domain, field.At, meshOpt)
-//		zone = field.Zone()
-//	}
-
+// Package trigger decides when the adaptive cycle remeshes: when a crack
+// tip or the damage front comes within a margin of the edge of the fine
+// zone, or when damage or plastic activity sits in an element larger than
+// the size field promised there (DESIGN.md §4). Right after a remesh none
+// of these holds, so remeshes are rare by construction.
 package trigger
 
 import (

@@ -4,18 +4,28 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"time"
 
-	"tearline/remesh/carve"
-	"tearline/remesh/geom"
-	"tearline/remesh/meshing"
-	"tearline/remesh/size"
-	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
 	"tearline/transfer"
 )
+
+// stage is a problem on one mesh, with the run's configuration: the
+// current one, or a new mesh's while its transferred state settles.
+type stage struct {
+	cfg  *CycleConfig
+	mesh *fem.Mesh
+	prob *fem.Problem
+	gp   fem.GaussPoints
+}
+
+// GaussPoints returns the committed Gauss-point data of the stage's
+// problem (refreshed on every call; the slice is reused).
+func (c *stage) GaussPoints() *fem.GaussPoints {
+	c.prob.GaussPoints(&c.gp)
+	return &c.gp
+}
 
 // linearFields lists the corner-node fields a transfer carries, in the
 // order of transfer.Fields.Linear (those switched on).
@@ -25,17 +35,17 @@ func linearFields() [4]fem.Field {
 
 // fields collects the committed state of the current problem for a transfer.
 func (c *stage) fields() (*transfer.Fields, error) {
-	f := &transfer.Fields{U: c.Prob.Displacement()}
-	nn := len(c.Mesh.X)
+	f := &transfer.Fields{U: c.prob.Displacement()}
+	nn := len(c.mesh.X)
 	for _, fd := range linearFields() {
-		if !c.Prob.Dofs.Has(fd) {
+		if !c.prob.Dofs.Has(fd) {
 			continue
 		}
 		v := make([]float64, nn)
-		if err := c.Prob.NodalField(fd, v); err != nil {
+		if err := c.prob.NodalField(fd, v); err != nil {
 			return nil, err
 		}
-		f.Linear = append(f.Linear, v[:c.Mesh.NumCorners])
+		f.Linear = append(f.Linear, v[:c.mesh.NumCorners])
 	}
 	gp := c.GaussPoints()
 	n := len(gp.Points)
@@ -48,7 +58,7 @@ func (c *stage) fields() (*transfer.Fields, error) {
 		d.W, d.F, d.P = g.W, g.F, g.P
 		// The elastic strain the material saw (see reconcilePlasticStrain);
 		// zero where the element is inverted.
-		if E, err := c.Prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement); err == nil {
+		if E, err := c.prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement); err == nil {
 			for k := 0; k < 4; k++ {
 				d.Ee[k] = E[k] - g.State.Ep[k]
 			}
@@ -73,7 +83,7 @@ func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
 		return nil
 	}
 	nq := fem.ElementRule().Len()
-	st := c.Prob.State()
+	st := c.prob.State()
 	fixed := make([][]material.State, len(st))
 	for e := range st {
 		fixed[e] = append([]material.State(nil), st[e]...)
@@ -82,9 +92,9 @@ func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
 			if s.Broken {
 				continue
 			}
-			E, err := c.Prob.MaterialStrain(e, g)
-			if inverted(err) && c.Prob.Straighten(e) {
-				E, err = c.Prob.MaterialStrain(e, g)
+			E, err := c.prob.MaterialStrain(e, g)
+			if inverted(err) && c.prob.Straighten(e) {
+				E, err = c.prob.MaterialStrain(e, g)
 			}
 			if err != nil {
 				return err
@@ -105,17 +115,17 @@ func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
 			}
 		}
 	}
-	return c.Prob.SetState(fixed)
+	return c.prob.SetState(fixed)
 }
 
 // yieldStress is the current flow stress of the point at barycentric
 // coordinates l of element e with cumulative plastic strain p, with the
 // interpolated nodal ā and λ of the regularised model.
 func (c *stage) yieldStress(m material.Plastic, e int, l [3]float64, p float64) float64 {
-	if !c.Prob.Regularised() {
+	if !c.prob.Regularised() {
 		return m.FlowStress(p, 0, 0)
 	}
-	return m.FlowStress(p, c.Prob.LinearFieldAt(fem.Abar, e, l), c.Prob.LinearFieldAt(fem.Lambda, e, l))
+	return m.FlowStress(p, c.prob.LinearFieldAt(fem.Abar, e, l), c.prob.LinearFieldAt(fem.Lambda, e, l))
 }
 
 // inverted reports whether err is that of an element the displacement
@@ -137,10 +147,10 @@ const maxRepairs = 200
 // scaling every point outside the surface disturbs a converged state more
 // than re-equilibration repairs. It returns the number of points repaired.
 func (c *stage) settleTransferred() (int, error) {
-	pm, _ := c.Cfg.Material.(material.Plastic)
+	pm, _ := c.cfg.Material.(material.Plastic)
 	rule := fem.ElementRule()
 	for n := 0; ; n++ {
-		err := c.Prob.Assemble(false)
+		err := c.prob.Assemble(false)
 		var ee *fem.ElementError
 		if err == nil || n == maxRepairs || !errors.As(err, &ee) {
 			return n, err
@@ -150,7 +160,7 @@ func (c *stage) settleTransferred() (int, error) {
 			// (its midside nodes interpolated from strongly distorted old
 			// elements): straighten its edges, i.e. put each midside
 			// node's displacement at the mean of its edge's corners.
-			if !c.Prob.Straighten(ee.Elem) {
+			if !c.prob.Straighten(ee.Elem) {
 				return n, err
 			}
 			continue
@@ -158,24 +168,24 @@ func (c *stage) settleTransferred() (int, error) {
 		if pm == nil {
 			return n, err
 		}
-		st := c.Prob.State()
+		st := c.prob.State()
 		fixed := make([][]material.State, len(st))
 		copy(fixed, st)
 		fixed[ee.Elem] = append([]material.State(nil), st[ee.Elem]...)
 		s := &fixed[ee.Elem][ee.Point]
 		l := rule.L[ee.Point]
-		E, err2 := c.Prob.MaterialStrain(ee.Elem, ee.Point)
+		E, err2 := c.prob.MaterialStrain(ee.Elem, ee.Point)
 		if err2 != nil {
 			return n, err
 		}
 		flow := c.yieldStress(pm, ee.Elem, l, s.P)
-		if r := pm.LocalFlowStress(s.P); c.Prob.Regularised() && flow < 0.5*r {
+		if r := pm.LocalFlowStress(s.P); c.prob.Regularised() && flow < 0.5*r {
 			// The interpolated multiplier field (λ varies steeply between
 			// nodes next to a softening zone) leaves no elastic range,
 			// A = R + λ + r(p − ā) ≤ 0. λ and ā are unknowns, not
 			// history: restart them at the element's corners from the
 			// local solution and let the re-equilibration find them.
-			c.Prob.ResetRegularisation(ee.Elem, s.P)
+			c.prob.ResetRegularisation(ee.Elem, s.P)
 			continue
 		}
 		changed, err2 := pm.ScaleToYield(s, E, flow)
@@ -189,7 +199,7 @@ func (c *stage) settleTransferred() (int, error) {
 				s.Ep[k] = 0.5 * (s.Ep[k] + E[k])
 			}
 		}
-		if err := c.Prob.SetState(fixed); err != nil {
+		if err := c.prob.SetState(fixed); err != nil {
 			return n, err
 		}
 	}
@@ -212,8 +222,8 @@ func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
 // install puts transferred (or checkpointed, exact) fields into the
 // current problem as its committed state at pseudo-time t.
 func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
-	p := c.Prob
-	nn := len(c.Mesh.X)
+	p := c.prob
+	nn := len(c.mesh.X)
 	ux, uy := make([]float64, nn), make([]float64, nn)
 	for i, u := range f.U {
 		ux[i], uy[i] = u[0], u[1]
@@ -240,7 +250,7 @@ func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
 		k++
 	}
 	nq := fem.ElementRule().Len()
-	st := make([][]material.State, len(c.Mesh.Tri))
+	st := make([][]material.State, len(c.mesh.Tri))
 	for e := range st {
 		st[e] = f.State[e*nq : (e+1)*nq]
 	}
@@ -263,179 +273,6 @@ func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
 	return nil
 }
 
-// remesh builds the new geometry and mesh for decision d, transfers the
-// state onto it and re-establishes equilibrium at the same load. The new
-// mesh replaces the current one only once it is in equilibrium: a failed
-// remesh leaves the run at its last converged state.
-func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
-	rr := &RemeshRecord{
-		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau(), Da: c.Da, Reason: d.Reason,
-		DofsBefore: c.Prob.Dofs.N, ElemsBefore: len(c.Mesh.Tri),
-	}
-	var err error
-	if _, rr.ForceBefore, err = c.Cfg.Measure(c.Prob); err != nil {
-		return nil, err
-	}
-	t0 := time.Now()
-	field, released, err := c.sizeField()
-	if err != nil {
-		return nil, err
-	}
-	dom, err := c.newGeometry(field, released, rr)
-	if err != nil {
-		return nil, err
-	}
-	rr.GeomWall = time.Since(t0)
-	t0 = time.Now()
-	m, err := c.newMesh(dom, field, rr)
-	if err != nil {
-		return nil, err
-	}
-	rr.MeshWall = time.Since(t0)
-	t0 = time.Now()
-	next, err := c.transferTo(m, rr)
-	if err != nil {
-		return nil, err
-	}
-	rr.MapWall = time.Since(t0)
-	if err := c.settleOn(next, rr); err != nil {
-		next.Prob.Close()
-		return nil, err
-	}
-	c.adopt(next, field, rr)
-	return rr, nil
-}
-
-// sizeField is the tip-following size field of the next mesh, with the
-// elements that leave the geometry: those out of the assembly (broken,
-// or releasing their force; what force they still held is part of the
-// out-of-balance force re-equilibration relaxes).
-func (c *Cycle) sizeField() (*size.TipField, []bool, error) {
-	gp := c.GaussPoints()
-	released := make([]bool, len(c.Mesh.Tri))
-	for e := range released {
-		released[e] = c.Prob.Released(e)
-	}
-	damaged, err := size.DamagedPoints(gp, released, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
-	if err != nil {
-		return nil, nil, err
-	}
-	tf, err := size.NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
-	if err != nil {
-		return nil, nil, fmt.Errorf("size field: %w", err)
-	}
-	return tf, released, nil
-}
-
-// newGeometry is the domain of the material left when the released
-// elements are carved away.
-func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRecord) (*geom.Domain, error) {
-	carved, err := carve.Domain(c.Mesh, released, c.Cfg.Domain, c.Tips, field.At, c.Cfg.Carve)
-	if err != nil {
-		return nil, fmt.Errorf("new geometry: %w", err)
-	}
-	for _, r := range carved.Removed {
-		if r {
-			rr.Removed++
-		}
-	}
-	return carved.Domain, nil
-}
-
-// newMesh meshes the new domain to the size field.
-func (c *Cycle) newMesh(dom *geom.Domain, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
-	m, rep, err := meshing.Mesh(dom, field.At, c.Cfg.Mesh)
-	if err != nil {
-		return nil, fmt.Errorf("new mesh: %w", err)
-	}
-	rr.MinAngle = rep.MinAngleDeg
-	rr.MinSize = math.Inf(1)
-	for e := range m.Tri {
-		rr.MinSize = math.Min(rr.MinSize, trigger.LongestEdge(m, e))
-	}
-	return m, nil
-}
-
-// transferTo maps the committed state onto mesh m: the new problem, its
-// committed state the transferred one, made compatible with the
-// transferred displacement (volume projection, plastic strain).
-func (c *Cycle) transferTo(m *fem.Mesh, rr *RemeshRecord) (*stage, error) {
-	from, err := c.fields()
-	if err != nil {
-		return nil, err
-	}
-	to, trec, err := transfer.Map(c.Mesh, from, m, c.Cfg.Transfer)
-	if err != nil {
-		return nil, fmt.Errorf("transfer: %w", err)
-	}
-	rr.MaxFBefore, rr.MaxFAfter = trec.Before.MaxF, trec.After.MaxF
-	rr.IntPBefore, rr.IntPAfter = trec.Before.IntP, trec.After.IntP
-	rr.WorkBefore, rr.WorkAfter = trec.Before.Work, trec.After.Work
-	rr.Verbatim = trec.Verbatim
-	next, err := c.newStage(m)
-	if err != nil {
-		return nil, err
-	}
-	if err := next.installTransferred(to, c.Prob.TCommitted); err != nil {
-		next.Prob.Close()
-		return nil, err
-	}
-	return next, nil
-}
-
-// installTransferred puts the transferred fields into the new problem at
-// load factor t and makes them compatible with the transferred
-// displacement.
-func (c *stage) installTransferred(to *transfer.Fields, t float64) error {
-	if err := c.install(to, t, false); err != nil {
-		return fmt.Errorf("install transferred state: %w", err)
-	}
-	if err := c.Prob.ProjectVolume(); err != nil {
-		return fmt.Errorf("transferred state: %w", err)
-	}
-	if err := c.reconcilePlasticStrain(to); err != nil {
-		return fmt.Errorf("transferred state: %w", err)
-	}
-	return nil
-}
-
-// settleOn evaluates the transferred state on the new stage (repairing
-// the points whose update fails on it), records the force right after the
-// transfer, moves the solver onto the new problem and re-establishes
-// equilibrium at the same load.
-func (c *Cycle) settleOn(next *stage, rr *RemeshRecord) error {
-	if _, err := next.settleTransferred(); err != nil {
-		return fmt.Errorf("assembly after transfer: %w", err)
-	}
-	next.Prob.AdoptAssembled()
-	var err error
-	if _, rr.ForceTransfer, err = c.Cfg.Measure(next.Prob); err != nil {
-		return err
-	}
-	t0 := time.Now()
-	if err := c.rebindSolver(next.Prob); err != nil {
-		return err
-	}
-	its, err := next.reequilibrate(c.solver)
-	rr.Iterations = its
-	if err != nil {
-		return fmt.Errorf("re-equilibration at load factor %g: %w", next.Prob.TCommitted, err)
-	}
-	rr.EquilWall = time.Since(t0)
-	_, rr.ForceAfter, err = c.Cfg.Measure(next.Prob)
-	return err
-}
-
-// adopt makes the re-equilibrated new stage the current one.
-func (c *Cycle) adopt(next *stage, field *size.TipField, rr *RemeshRecord) {
-	rr.DofsAfter, rr.ElemsAfter = next.Prob.Dofs.N, len(next.Mesh.Tri)
-	c.Prob.Close()
-	c.stage = *next
-	c.PeakDofs = max(c.PeakDofs, next.Prob.Dofs.N)
-	c.Zone = field.Zone()
-	c.Remeshes++
-}
-
 // reequilibrate brings the transferred state into equilibrium at the
 // committed load factor: one increment to the same load, or — when that fails (a
 // full Newton solve against the whole out-of-balance force inverts
@@ -451,15 +288,15 @@ func (c *stage) reequilibrate(s *solver.Solver) (int, error) {
 	}
 	first := err
 	var ee *fem.ElementError
-	if errors.As(err, &ee) && ee.Elem >= 0 && ee.Elem < len(c.Mesh.Tri) {
+	if errors.As(err, &ee) && ee.Elem >= 0 && ee.Elem < len(c.mesh.Tri) {
 		var x [2]float64
 		for k := 0; k < 3; k++ {
-			q := c.Mesh.X[c.Mesh.Tri[ee.Elem][k]]
+			q := c.mesh.X[c.mesh.Tri[ee.Elem][k]]
 			x[0], x[1] = x[0]+q[0]/3, x[1]+q[1]/3
 		}
 		first = fmt.Errorf("%w (element centred at (%.4g, %.4g))", err, x[0], x[1])
 	}
-	p := c.Prob
+	p := c.prob
 	if err := p.Assemble(false); err != nil {
 		return its, first
 	}
