@@ -23,7 +23,7 @@ func BenchmarkDomainJ(b *testing.B) {
 func BenchmarkLocateFront(b *testing.B) {
 	m := gridMesh(-0.5, 1.5, -1, 1, 224, 224, true)
 	gp := gaussFrom(m, porosity([]band{{[][2]float64{{0, 0}, {0.9, 0}}, 0.05}}))
-	opt := FrontOptions{Fc: 0.025, FTip: 0.1, Tips: []Seed{{Dir: [2]float64{1, 0}}}}
+	opt := FrontOptions{Fc: 0.025, FTip: 0.1, Tips: []Tip{{Dir: [2]float64{1, 0}}}}
 	b.ReportMetric(float64(len(m.Tri)), "elements")
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
 // CTODOptions selects the tip and the crack faces of CTOD.
@@ -81,7 +82,7 @@ func CTOD(m *fem.Mesh, u [][2]float64, opt CTODOptions) (Opening, error) {
 			}
 			p[k] = [2]float64{m.X[nd][0] + u[nd][0], m.X[nd][1] + u[nd][1]}
 		}
-		scale = math.Max(scale, dist2(p[0], p[2]))
+		scale = math.Max(scale, plane.Dist(p[0], p[2]))
 		edges = append(edges, p)
 	}
 	if len(edges) == 0 {
@@ -117,7 +118,7 @@ func CTOD(m *fem.Mesh, u [][2]float64, opt CTODOptions) (Opening, error) {
 		return o, fmt.Errorf("CTOD: the −45° line from the deformed tip %v cuts no crack-face edge labelled %q (for a half model set Symmetric)", v, label)
 	}
 	o.Lower = pl
-	o.Delta = dist2(pu, pl)
+	o.Delta = plane.Dist(pu, pl)
 	return o, nil
 }
 

@@ -7,13 +7,8 @@ import (
 	"sort"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
-
-// Seed is an initial crack tip: its reference position and the initial
-// crack direction (need not be unit length).
-type Seed struct {
-	X, Dir [2]float64
-}
 
 // FrontOptions selects the porosity levels and the initial tips of
 // LocateFront.
@@ -27,8 +22,8 @@ type FrontOptions struct {
 	// FTip is the level that marks cracked material for the crack tip;
 	// 0 means FFront.
 	FTip float64
-	// Tips are the initial crack tips; one Tip is returned for each.
-	Tips []Seed
+	// Tips are the initial crack tips; one Growth is returned for each.
+	Tips []Tip
 	// CrackLabel names the boundary label of crack faces made by removing
 	// broken material; their nodes ahead of an initial tip count as cracked.
 	// "" means "crack". A mesh without the label is fine.
@@ -79,12 +74,13 @@ func (o *FrontOptions) Validate() error {
 	return nil
 }
 
-// Tip is a located crack tip.
-type Tip struct {
-	Seed   int        // index of the initial tip in FrontOptions.Tips
-	X      [2]float64 // tip position (reference configuration)
-	DA     float64    // crack extension Δa along the path from the initial tip
-	DAProj float64    // Δa projected on the initial crack direction
+// Growth is how far one crack tip has grown: the located tip (its Dir
+// along the last part of the path, see pathDirection) and the path to it.
+type Growth struct {
+	Tip            // current tip (reference configuration)
+	Seed   int     // index of the initial tip in FrontOptions.Tips
+	DA     float64 // crack extension Δa along the path from the initial tip
+	DAProj float64 // Δa projected on the initial crack direction
 	// Path is the crack path from the initial tip to X (a polyline with
 	// the mesh zigzag removed), whose length is DA.
 	Path [][2]float64
@@ -98,7 +94,7 @@ type Front struct {
 	Level float64        // the contour level f_front
 	Lines [][][2]float64 // the contour f = f_front as polylines, the longest first; a closed line repeats its first point at the end
 	Nodal []float64      // recovered porosity at every node
-	Tips  []Tip          // one per initial tip
+	Tips  []Growth       // one per initial tip
 }
 
 // subTri are the four linear sub-triangles of a 6-node triangle (local
@@ -128,8 +124,8 @@ func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 			}
 		}
 	}
-	inv, ok := inverse3(A)
-	if !ok {
+	inv, det, ok := plane.Inverse3(A)
+	if !ok || math.Abs(det) < 1e-14 {
 		return nil, fmt.Errorf("porosity recovery: the element rule's points are collinear")
 	}
 	nodeL := [6][2]float64{{1, 0}, {0, 1}, {0, 0}, {0.5, 0.5}, {0, 0.5}, {0.5, 0}}
@@ -161,24 +157,6 @@ func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 		}
 	}
 	return sum, nil
-}
-
-func inverse3(a [3][3]float64) ([3][3]float64, bool) {
-	det := a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) -
-		a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) +
-		a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
-	if math.Abs(det) < 1e-14 {
-		return [3][3]float64{}, false
-	}
-	var r [3][3]float64
-	for i := 0; i < 3; i++ {
-		for j := 0; j < 3; j++ {
-			i1, i2 := (j+1)%3, (j+2)%3
-			j1, j2 := (i+1)%3, (i+2)%3
-			r[i][j] = (a[i1][j1]*a[i2][j2] - a[i1][j2]*a[i2][j1]) / det
-		}
-	}
-	return r, true
 }
 
 // LocateFront finds the damage front and the crack tip(s).
@@ -334,10 +312,8 @@ func (p *pq) Pop() interface{} {
 	return it
 }
 
-func dist2(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
-
 // locateTips runs the multi-source shortest-path search and picks the tips.
-func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip {
+func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Growth {
 	nn := len(m.X)
 	// Sub-triangle edge adjacency in compressed rows (an edge shared by two
 	// elements appears twice, which is harmless).
@@ -383,7 +359,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			hi = [2]float64{math.Max(hi[0], x[0]), math.Max(hi[1], x[1])}
 		}
 	}
-	tol := 1e-9 * dist2(lo, hi)
+	tol := 1e-9 * plane.Dist(lo, hi)
 	// Cracked nodes: f ≥ f_tip, or on a crack face ahead of some initial tip.
 	cracked := make([]bool, nn)
 	for n := range f {
@@ -428,7 +404,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		best, bd := -1, math.Inf(1)
 		for n := 0; n < nn; n++ {
 			if used[n] {
-				if d := dist2(m.X[n], sd.X); d < bd {
+				if d := plane.Dist(m.X[n], sd.X); d < bd {
 					best, bd = n, d
 				}
 			}
@@ -438,7 +414,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		if maxGap[s] == 0 {
 			for _, b := range adj(best) {
 				// a sub-edge is half an element edge: 2 element edges = 4 sub-edges.
-				maxGap[s] = math.Max(maxGap[s], 4*dist2(m.X[best], m.X[b]))
+				maxGap[s] = math.Max(maxGap[s], 4*plane.Dist(m.X[best], m.X[b]))
 			}
 		}
 		if bd < cost[best] {
@@ -458,7 +434,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			continue
 		}
 		for _, b := range adj(a) {
-			l := dist2(m.X[a], m.X[b])
+			l := plane.Dist(m.X[a], m.X[b])
 			c, g := l, gap[a]
 			if !(isCracked(a) && cracked[b]) {
 				c *= bridgeCost
@@ -477,9 +453,9 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			}
 		}
 	}
-	tips := make([]Tip, len(opt.Tips))
+	tips := make([]Growth, len(opt.Tips))
 	for s, sd := range opt.Tips {
-		tips[s] = Tip{Seed: s, X: sd.X, Path: [][2]float64{sd.X}}
+		tips[s] = Growth{Tip: sd, Seed: s, Path: [][2]float64{sd.X}}
 	}
 	// Candidates: cracked nodes, and the points beyond them where f falls
 	// through f_tip along an edge. The graph length glen over-estimates the
@@ -512,7 +488,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 			sf := (f[a] - ftip) / (f[a] - f[b])
 			xa, xb := m.X[a], m.X[b]
 			x := [2]float64{xa[0] + sf*(xb[0]-xa[0]), xa[1] + sf*(xb[1]-xa[1])}
-			cands[s] = append(cands[s], cand{a, x, glen[a] + dist2(x, xa)})
+			cands[s] = append(cands[s], cand{a, x, glen[a] + plane.Dist(x, xa)})
 		}
 	}
 	vis := visibility(m, f, ftip, cracked)
@@ -537,20 +513,21 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Tip 
 		sort.Slice(rs, func(i, j int) bool { return rs[i].len > rs[j].len })
 		// The few longest are pulled taut inside the cracked material; the
 		// longest taut path wins.
-		var best Tip
+		var best Growth
 		for i, r := range rs {
 			if i >= 48 {
 				break
 			}
 			path := pullTaut(r.path, vis)
 			if l := polyLength(path); l > best.DA || i == 0 {
-				best = Tip{Seed: s, X: r.c.x, DA: l, Path: path, Grown: true}
+				best = Growth{Tip: Tip{Name: opt.Tips[s].Name, X: r.c.x}, Seed: s, DA: l, Path: path, Grown: true}
 			}
 		}
 		d0, _ := frame(opt.Tips[s].Dir)
 		sx := opt.Tips[s].X
 		best.DAProj = (best.X[0]-sx[0])*d0[0] + (best.X[1]-sx[1])*d0[1]
 		if best.DA > tol {
+			best.Dir = pathDirection(best.Path, best.DA, opt.Tips[s].Dir)
 			tips[s] = best
 		}
 	}
@@ -578,13 +555,13 @@ func tipPath(m *fem.Mesh, parent []int, node int, x, sx [2]float64) [][2]float64
 	if len(chain) > 1 {
 		tol = 0.5 * polyLength(chain) / float64(len(chain)-1)
 	}
-	return simplify(chain, tol)
+	return plane.Simplify(chain, tol)
 }
 
 func polyLength(p [][2]float64) float64 {
 	l := 0.0
 	for i := 1; i < len(p); i++ {
-		l += dist2(p[i-1], p[i])
+		l += plane.Dist(p[i-1], p[i])
 	}
 	return l
 }
@@ -595,12 +572,15 @@ func polyLength(p [][2]float64) float64 {
 // element with a cracked node on a crack face, or lie outside the mesh
 // (the void of removed broken material).
 func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, q [2]float64) bool {
-	loc := newLocator(m)
+	loc := plane.NewLocator(func(e int) [3][2]float64 {
+		t := m.Tri[e]
+		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
+	}, len(m.Tri))
 	hmin := math.Inf(1)
 	for _, t := range m.Tri {
 		for _, st := range subTri {
 			for j := 0; j < 3; j++ {
-				if d := dist2(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
+				if d := plane.Dist(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
 					hmin = math.Min(hmin, d)
 				}
 			}
@@ -608,12 +588,14 @@ func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, 
 	}
 	step := hmin / 4
 	return func(p, q [2]float64) bool {
-		n := int(math.Ceil(dist2(p, q) / step))
+		n := int(math.Ceil(plane.Dist(p, q) / step))
 		for k := 1; k < n; k++ {
 			s := float64(k) / float64(n)
 			x := [2]float64{p[0] + s*(q[0]-p[0]), p[1] + s*(q[1]-p[1])}
-			e, l := loc.find(x)
-			if e < 0 {
+			// the lowest-numbered triangle within round-off (1e-12 in area
+			// coordinates), so a point on a shared edge takes one side
+			e, l, ok := loc.FindFirst(x, 1e-12)
+			if !ok {
 				continue
 			}
 			t := m.Tri[e]
@@ -630,6 +612,20 @@ func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, 
 		}
 		return true
 	}
+}
+
+// subLinear interpolates nodal values v of a 6-node triangle linearly on
+// the sub-triangle that contains the area coordinates l.
+func subLinear(v [6]float64, l [3]float64) float64 {
+	switch {
+	case l[0] >= 0.5:
+		return v[0]*(2*l[0]-1) + v[3]*2*l[1] + v[5]*2*l[2]
+	case l[1] >= 0.5:
+		return v[1]*(2*l[1]-1) + v[3]*2*l[0] + v[4]*2*l[2]
+	case l[2] >= 0.5:
+		return v[2]*(2*l[2]-1) + v[4]*2*l[1] + v[5]*2*l[0]
+	}
+	return v[3]*(1-2*l[2]) + v[4]*(1-2*l[0]) + v[5]*(1-2*l[1])
 }
 
 // pullTaut shortens a polyline greedily: from each kept point it jumps to
@@ -663,50 +659,6 @@ func pullTaut(p [][2]float64, visible func(a, b [2]float64) bool) [][2]float64 {
 		}
 		out = append(out, p[j])
 		i = j
-	}
-	return out
-}
-
-// simplify removes the points of a polyline that lie within tol of the
-// chord of their neighbours (Douglas & Peucker 1973, Cartographica 10).
-func simplify(p [][2]float64, tol float64) [][2]float64 {
-	if len(p) < 3 {
-		return p
-	}
-	keep := make([]bool, len(p))
-	keep[0], keep[len(p)-1] = true, true
-	var rec func(i, j int)
-	rec = func(i, j int) {
-		if j <= i+1 {
-			return
-		}
-		a, b := p[i], p[j]
-		dx, dy := b[0]-a[0], b[1]-a[1]
-		l := math.Hypot(dx, dy)
-		worst, wk := -1.0, -1
-		for k := i + 1; k < j; k++ {
-			var d float64
-			if l == 0 {
-				d = dist2(p[k], a)
-			} else {
-				d = math.Abs((p[k][0]-a[0])*dy-(p[k][1]-a[1])*dx) / l
-			}
-			if d > worst {
-				worst, wk = d, k
-			}
-		}
-		if worst > tol {
-			keep[wk] = true
-			rec(i, wk)
-			rec(wk, j)
-		}
-	}
-	rec(0, len(p)-1)
-	out := make([][2]float64, 0, len(p))
-	for i, k := range keep {
-		if k {
-			out = append(out, p[i])
-		}
 	}
 	return out
 }

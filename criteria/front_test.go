@@ -6,17 +6,14 @@ import (
 	"testing"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
-// segDist returns the distance from x to the polyline p.
-func segDist(x [2]float64, p [][2]float64) float64 {
+// polyDist returns the distance from x to the polyline p.
+func polyDist(x [2]float64, p [][2]float64) float64 {
 	best := math.Inf(1)
 	for i := 1; i < len(p); i++ {
-		a, b := p[i-1], p[i]
-		dx, dy := b[0]-a[0], b[1]-a[1]
-		s := ((x[0]-a[0])*dx + (x[1]-a[1])*dy) / (dx*dx + dy*dy)
-		s = math.Max(0, math.Min(1, s))
-		best = math.Min(best, math.Hypot(x[0]-a[0]-s*dx, x[1]-a[1]-s*dy))
+		best = math.Min(best, plane.SegDist(x, p[i-1], p[i]))
 	}
 	return best
 }
@@ -34,7 +31,7 @@ func porosity(bands []band) func(x [2]float64) (F, P [5]float64, W, f float64) {
 	return func(x [2]float64) (F, P [5]float64, W, f float64) {
 		f = bandF0
 		for _, b := range bands {
-			f = math.Max(f, bandF0+(bandFmax-bandF0)*math.Max(0, 1-segDist(x, b.line)/b.w))
+			f = math.Max(f, bandF0+(bandFmax-bandF0)*math.Max(0, 1-polyDist(x, b.line)/b.w))
 		}
 		return [5]float64{1, 0, 0, 1, 1}, P, 0, f
 	}
@@ -80,25 +77,25 @@ func TestLocateFrontTips(t *testing.T) {
 	for _, tc := range []struct {
 		name  string
 		bands []band
-		seeds []Seed
+		seeds []Tip
 		want  []want
 	}{
 		{"straight", []band{{[][2]float64{{0, 0}, {1, 0}}, w}, {[][2]float64{{0, 1.2}, {0.1, 1.2}}, w}},
-			[]Seed{{X: [2]float64{0, 0}, Dir: east}},
+			[]Tip{{X: [2]float64{0, 0}, Dir: east}},
 			[]want{{x: [2]float64{1 + rho, 0}, da: 1 + rho, daProj: 1 + rho}}},
 		{"turned", []band{{[][2]float64{{0, 0}, {1, 0}, {1, 0.6}}, w}},
-			[]Seed{{X: [2]float64{0, 0}, Dir: east}},
+			[]Tip{{X: [2]float64{0, 0}, Dir: east}},
 			[]want{{x: turnTip, da: turnDA, daProj: turnTip[0]}}},
 		{"two bands", []band{{[][2]float64{{0, 0}, {0.8, 0}}, w}, {[][2]float64{{2.2, 1}, {1.6, 1}}, w}},
-			[]Seed{{X: [2]float64{0, 0}, Dir: east}, {X: [2]float64{2.2, 1}, Dir: west}},
+			[]Tip{{X: [2]float64{0, 0}, Dir: east}, {X: [2]float64{2.2, 1}, Dir: west}},
 			[]want{{x: [2]float64{0.8 + rho, 0}, da: 0.8 + rho, daProj: 0.8 + rho}, {x: [2]float64{1.6 - rho, 1}, da: 0.6 + rho, daProj: 0.6 + rho}}},
 		{"one band, two tips", []band{{[][2]float64{{0, 0}, {2, 0}}, w}},
-			[]Seed{{X: [2]float64{0, 0}, Dir: east}, {X: [2]float64{2, 0}, Dir: west}},
+			[]Tip{{X: [2]float64{0, 0}, Dir: east}, {X: [2]float64{2, 0}, Dir: west}},
 			// the tips share the band at the bisector x = 1, whose farthest
 			// points are (1, ±ρ)
 			[]want{{[2]float64{1, rho}, math.Hypot(1, rho), 1, true}, {[2]float64{1, rho}, math.Hypot(1, rho), 1, true}}},
 		{"gap ahead of the tip", []band{{[][2]float64{{0.06 + rho, 0}, {1, 0}}, w}},
-			[]Seed{{X: [2]float64{0, 0}, Dir: east}},
+			[]Tip{{X: [2]float64{0, 0}, Dir: east}},
 			[]want{{x: [2]float64{1 + rho, 0}, da: 1 + rho, daProj: 1 + rho}}},
 	} {
 		gp := gaussFrom(m, porosity(tc.bands))
@@ -138,7 +135,7 @@ func TestLocateFrontContour(t *testing.T) {
 	m := gridMesh(-0.5, 1.5, -0.5, 0.5, 80, 40, true)
 	line := [][2]float64{{0, 0}, {1, 0}}
 	gp := gaussFrom(m, porosity([]band{{line, 0.12}}))
-	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.03, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.03, Tips: []Tip{{Dir: [2]float64{1, 0}}}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -155,7 +152,7 @@ func TestLocateFrontContour(t *testing.T) {
 	want := reach(0.12, 0.06)
 	worst := 0.0
 	for _, p := range l {
-		worst = math.Max(worst, math.Abs(segDist(p, line)-want))
+		worst = math.Max(worst, math.Abs(polyDist(p, line)-want))
 	}
 	t.Logf("contour: %d points, worst distance error %.3g (element size 0.025)", len(l), worst)
 	if worst > 0.2*0.025 {
@@ -168,8 +165,8 @@ func TestLocateFrontContour(t *testing.T) {
 func TestLocateFrontUngrown(t *testing.T) {
 	m := gridMesh(0, 1, 0, 1, 10, 10, false)
 	gp := gaussFrom(m, porosity(nil))
-	seed := Seed{X: [2]float64{0.31, 0.5}, Dir: [2]float64{1, 0}}
-	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.02, Tips: []Seed{seed}})
+	seed := Tip{X: [2]float64{0.31, 0.5}, Dir: [2]float64{1, 0}}
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.02, Tips: []Tip{seed}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -207,7 +204,7 @@ func TestLocateFrontCrackFaces(t *testing.T) {
 		t.Fatal("test set-up: no element removed")
 	}
 	gp := gaussFrom(m, field)
-	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.025, FTip: 0.1, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.025, FTip: 0.1, Tips: []Tip{{Dir: [2]float64{1, 0}}}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -223,7 +220,7 @@ func TestLocateFrontCrackFaces(t *testing.T) {
 func TestLocateFrontBadInput(t *testing.T) {
 	m := gridMesh(0, 1, 0, 1, 4, 4, false)
 	gp := gaussFrom(m, porosity(nil))
-	seeds := []Seed{{Dir: [2]float64{1, 0}}}
+	seeds := []Tip{{Dir: [2]float64{1, 0}}}
 	for _, tc := range []struct {
 		name string
 		m    *fem.Mesh
@@ -235,7 +232,7 @@ func TestLocateFrontBadInput(t *testing.T) {
 		{"no level", m, gp, FrontOptions{Tips: seeds}, "front level"},
 		{"tip level above 1", m, gp, FrontOptions{Fc: 0.02, FTip: 1.5, Tips: seeds}, "tip level"},
 		{"no tips", m, gp, FrontOptions{Fc: 0.02}, "no initial crack tip"},
-		{"zero direction", m, gp, FrontOptions{Fc: 0.02, Tips: []Seed{{}}}, "crack direction"},
+		{"zero direction", m, gp, FrontOptions{Fc: 0.02, Tips: []Tip{{}}}, "crack direction"},
 		{"negative gap", m, gp, FrontOptions{Fc: 0.02, Tips: seeds, MaxGap: -1}, "MaxGap"},
 		{"wrong Gauss count", m, &fem.GaussPoints{PerElement: 3, Points: gp.Points[:3*len(m.Tri)]}, FrontOptions{Fc: 0.02, Tips: seeds}, "points per element"},
 	} {
@@ -263,7 +260,7 @@ func TestLocateFrontBluntApex(t *testing.T) {
 	}
 	m.X[apex][0] = 1e-13
 	gp := gaussFrom(m, porosity(nil))
-	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.02, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.02, Tips: []Tip{{Dir: [2]float64{1, 0}}}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -278,7 +275,7 @@ func TestLocateFrontBluntApex(t *testing.T) {
 func TestLocateFrontHalfModel(t *testing.T) {
 	m := gridMesh(-0.5, 2, 0, 1, 100, 40, true)
 	gp := gaussFrom(m, porosity([]band{{[][2]float64{{0, 0}, {1.2, 0}}, 0.1}}))
-	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+	fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Tip{{Dir: [2]float64{1, 0}}}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -346,7 +343,7 @@ func TestLocateFrontIrregularMesh(t *testing.T) {
 		{"turned", [][2]float64{{0, 0}, {1, 0}, {1, 0.6}}, turn},
 	} {
 		gp := gaussFrom(m, porosity([]band{{tc.line, 0.1}}))
-		fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Seed{{Dir: [2]float64{1, 0}}}})
+		fr, err := LocateFront(m, gp, FrontOptions{Fc: 0.05, Tips: []Tip{{Dir: [2]float64{1, 0}}}})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -5,7 +5,11 @@ import (
 	"testing"
 	"time"
 
-	"tearline/solver"
+	"tearline/criteria"
+	"tearline/remesh/carve"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver/fem"
 	"tearline/solver/sparse"
 	"tearline/transfer"
@@ -13,8 +17,8 @@ import (
 
 // benchFollow is the follow zone of the benchmark's meshes: wide enough
 // that the full boundary-layer disk carries about 5·10⁴ unknowns.
-func benchFollow(ell, hFar float64) FollowOptions {
-	f := DefaultFollowOptions(ell, hFar)
+func benchFollow(ell, hFar float64) size.FollowOptions {
+	f := size.DefaultFollowOptions(ell, hFar)
 	f.Ahead, f.Behind, f.Width, f.Spread, f.Grade = 8, 2, 6, 7, 0.3
 	return f
 }
@@ -47,7 +51,7 @@ func benchCycle(b *testing.B) *Cycle {
 	// pipeline, and re-equilibration at the same load.
 	c.Cfg.Adapt = true
 	c.Cfg.Follow = benchFollow(cfg.Length, tc.HFar)
-	if _, err := c.remesh(Decision{Reason: "benchmark set-up"}); err != nil {
+	if _, err := c.remesh(trigger.Decision{Reason: "benchmark set-up"}); err != nil {
 		b.Fatal(err)
 	}
 	b.Logf("set-up: Δa = %.3g mm after %d steps, %d unknowns, %d elements, max f %.3g (%v)",
@@ -66,38 +70,38 @@ func maxPorosity(c *Cycle) float64 {
 
 type nopObserver struct{}
 
-func (nopObserver) Step(*StepRecord, *Cycle) error     { return nil }
-func (nopObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (nopObserver) Step(*StepRecord, View) error     { return nil }
+func (nopObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // remeshOnce runs the remesh pipeline of Cycle.remesh (cycle_remesh.go) on
 // c for tips moved to tips, up to and including the installation of the
 // transferred state on the new problem, but without re-equilibration: it
 // returns the new problem (the caller closes it) and the phase times:
-// geometry (broken elements to Carve), mesh, transfer (collecting the
+// geometry (broken elements to carve.Domain), mesh, transfer (collecting the
 // fields and transfer.Map) and installation (the new problem, install,
 // reconcile).
-func remeshOnce(c *Cycle, tips []Tip) (p *fem.Problem, ph [4]time.Duration, err error) {
+func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Duration, err error) {
 	t0 := time.Now()
 	gp := c.GaussPoints()
-	broken, err := BrokenElements(gp)
+	broken, err := carve.BrokenElements(gp)
 	if err != nil {
 		return nil, ph, err
 	}
-	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	damaged, err := size.DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
 	if err != nil {
 		return nil, ph, err
 	}
-	tf, err := NewTipField(tips, damaged, nil, c.Cfg.Follow)
+	tf, err := size.NewTipField(tips, damaged, nil, c.Cfg.Follow)
 	if err != nil {
 		return nil, ph, err
 	}
-	carved, err := Carve(c.Mesh, broken, c.Cfg.Domain, tips, tf.At, c.Cfg.Carve)
+	carved, err := carve.Domain(c.Mesh, broken, c.Cfg.Domain, tips, tf.At, c.Cfg.Carve)
 	if err != nil {
 		return nil, ph, err
 	}
 	ph[0] = time.Since(t0)
 	t0 = time.Now()
-	m, _, err := MeshDomain(carved.Domain, tf.At, c.Cfg.Mesh)
+	m, _, err := meshing.Mesh(carved.Domain, tf.At, c.Cfg.Mesh)
 	if err != nil {
 		return nil, ph, err
 	}
@@ -123,7 +127,7 @@ func remeshOnce(c *Cycle, tips []Tip) (p *fem.Problem, ph [4]time.Duration, err 
 	}
 	// install and reconcile act on the cycle's current mesh and problem:
 	// a shallow copy holding the new ones leaves c as it was.
-	nc := &Cycle{Cfg: c.Cfg, Mesh: m, Prob: p}
+	nc := &stage{Cfg: c.Cfg, Mesh: m, Prob: p}
 	if err := nc.install(to, c.Prob.TCommitted, false); err != nil {
 		p.Close()
 		return nil, ph, err
@@ -144,10 +148,10 @@ func remeshOnce(c *Cycle, tips []Tip) (p *fem.Problem, ph [4]time.Duration, err 
 //   - remesh: broken elements, damaged points, the tip-following size
 //     field for tips moved 3ℓ ahead along their direction (as after the
 //     growth between two remeshes, so that most of the fine zone is new),
-//     the new geometry (Carve), the new mesh (MeshDomain), the transfer
+//     the new geometry (carve.Domain), the new mesh (meshing.Mesh), the transfer
 //     (transfer.Map), the new problem with the transferred state installed
 //     and reconciled; not the re-equilibration. Phase times are reported
-//     as geom-ms (broken elements to Carve), mesh-ms, transfer-ms (fields
+//     as geom-ms (broken elements to carve.Domain), mesh-ms, transfer-ms (fields
 //     and transfer.Map) and install-ms (new problem, install, reconcile).
 //   - newton: assembly of residual and tangent at a load 1% above the
 //     committed one, numeric factorisation with the solver's default
@@ -158,9 +162,9 @@ func BenchmarkCycleRemesh(b *testing.B) {
 	defer c.Prob.Close()
 	ell := c.Cfg.Length
 	b.Run("remesh", func(b *testing.B) {
-		tips := append([]Tip(nil), c.Tips...)
+		tips := append([]criteria.Tip(nil), c.Tips...)
 		for i := range tips {
-			d, _ := tips[i].unitDir()
+			d, _ := tips[i].UnitDir()
 			tips[i].X[0] += 3 * ell * d[0]
 			tips[i].X[1] += 3 * ell * d[1]
 		}
@@ -193,7 +197,7 @@ func BenchmarkCycleRemesh(b *testing.B) {
 		if err := p.Assemble(true); err != nil {
 			b.Fatal(err)
 		}
-		lu := &solver.Equilibrated{Inner: &sparse.LU{}}
+		lu := &sparse.LU{}
 		if err := lu.Analyze(p.K); err != nil {
 			b.Fatal(err)
 		}

@@ -7,6 +7,8 @@ import (
 	"io"
 	"time"
 
+	"tearline/criteria"
+	"tearline/remesh/size"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/transfer"
@@ -14,7 +16,7 @@ import (
 
 // checkpointVersion changes whenever the layout below does; an older
 // checkpoint is refused with a clear error rather than misread.
-const checkpointVersion = 3
+const checkpointVersion = 4
 
 // checkpoint is everything a run needs to continue exactly where it was:
 // the mesh, the committed fields and Gauss-point state, the pseudo-time and
@@ -31,8 +33,8 @@ type checkpoint struct {
 	Steps, Remeshes int
 	PeakDofs        int
 	Da, DaProj      float64
-	Tips            []Tip
-	Zone            FineZone
+	Tips            []criteria.Tip
+	Zone            size.FineZone
 	Wall            time.Duration
 	// Prev is the solver's last converged increment (its predictor for
 	// the next one).
@@ -53,11 +55,11 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 		return err
 	}
 	cp := checkpoint{
-		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Tau: c.Tau, Dt: c.Dt,
+		Version: checkpointVersion, Mesh: c.Mesh, Fields: f, T: c.Prob.TCommitted, Tau: c.Tau(), Dt: c.solver.NextDt(),
 		Steps: c.Steps, Remeshes: c.Remeshes, PeakDofs: c.PeakDofs, Da: c.Da, DaProj: c.DaProj,
 		Tips: c.Tips, Zone: c.Zone, Wall: c.Wall, Extra: extra, Releases: c.Prob.Releases(),
 	}
-	if c.solver != nil && c.solver.P == c.Prob {
+	if c.solver.P == c.Prob {
 		cp.Prev = c.solver.PreviousIncrement()
 		if ctl := c.solver.Controlled(); ctl != nil {
 			cp.Offset = ctl.Offset
@@ -85,12 +87,11 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 	if err := cp.Fields.Check(cp.Mesh); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
-	c := &Cycle{Cfg: cfg, Dt: cp.Dt, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
-		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall, Tau: cp.Tau, prev: cp.Prev, offset: cp.Offset, hasOffset: cfg.Control != nil}
+	c := &Cycle{stage: stage{Cfg: &cfg}, Steps: cp.Steps, Remeshes: cp.Remeshes, Da: cp.Da, DaProj: cp.DaProj,
+		Tips: cp.Tips, Zone: cp.Zone, Wall: cp.Wall}
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
-		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))
-		c.seedDir = append(c.seedDir, pt.Dir)
+		c.Seeds = append(c.Seeds, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
 	}
 	if err := c.setMesh(cp.Mesh); err != nil {
 		return nil, nil, err
@@ -107,5 +108,25 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 	if err := c.Prob.Assemble(false); err != nil {
 		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
 	}
+	if err := c.resumeSolver(&cp); err != nil {
+		return nil, nil, fmt.Errorf("checkpoint state: %w", err)
+	}
 	return c, cp.Extra, nil
+}
+
+// resumeSolver starts the solver where the checkpointed one was: its next
+// increment, pseudo-time, control offset and previous increment (the
+// predictor of the next one), so that the resumed run repeats the
+// uninterrupted one.
+func (c *Cycle) resumeSolver(cp *checkpoint) error {
+	if err := c.startSolver(cp.Dt, cp.Tau); err != nil {
+		return err
+	}
+	if ctl := c.solver.Controlled(); ctl != nil {
+		ctl.Offset = cp.Offset
+	}
+	if cp.Prev.Dt > 0 {
+		return c.solver.SetPreviousIncrement(cp.Prev)
+	}
+	return nil
 }

@@ -8,7 +8,11 @@ import (
 	"time"
 
 	"tearline/criteria"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -21,8 +25,8 @@ type CycleConfig struct {
 	Domain *geom.Domain
 	// Size sets up the initial mesh's size field (fine zone around every
 	// crack tip of Domain); Mesh the triangulator.
-	Size SizeOptions
-	Mesh MeshOptions
+	Size size.Options
+	Mesh meshing.Options
 
 	FE       fem.Options
 	Material material.Model
@@ -52,9 +56,9 @@ type CycleConfig struct {
 	// Adapt switches the adaptive cycle on; the options below are used
 	// only then.
 	Adapt    bool
-	Trigger  TriggerOptions
-	Follow   FollowOptions
-	Carve    CarveOptions
+	Trigger  trigger.Options
+	Follow   size.FollowOptions
+	Carve    carve.Options
 	Transfer transfer.Options
 
 	// J configures the domain integral (rings in units of ℓ, or of h_fine
@@ -95,8 +99,11 @@ type StepRecord struct {
 	MaxPorosity       float64
 	TipX              [2]float64
 	Residuals         []float64
-	Reequilibrium     bool // the step re-established equilibrium after a transfer
 	StepWall, CumWall time.Duration
+	// Unmeasured lists the measures that could not be evaluated at this
+	// step (J rings leaving the body, a tip outside the mesh): their
+	// values are NaN.
+	Unmeasured []error
 }
 
 // RemeshRecord is the record of one remesh (remesh.csv).
@@ -119,11 +126,12 @@ type RemeshRecord struct {
 	EquilWall                   time.Duration
 }
 
-// Observer receives the cycle's records as they happen. Any error it
-// returns stops the run (and is returned by Run).
+// Observer receives the cycle's records as they happen, with a read-only
+// view of the run. Any error it returns stops the run (and is returned by
+// Run).
 type Observer interface {
-	Step(r *StepRecord, c *Cycle) error
-	Remesh(r *RemeshRecord, c *Cycle) error
+	Step(r *StepRecord, v View) error
+	Remesh(r *RemeshRecord, v View) error
 }
 
 // RemeshFailureObserver is an Observer that also hears of a remesh that
@@ -134,8 +142,8 @@ type RemeshFailureObserver interface {
 }
 
 // remeshAttempts is how many times in a row a remesh may fail before the
-// run stops (our choice: the 30ℓ boundary-layer run passed, one step
-// later, a remesh whose re-equilibration had failed).
+// run stops (see DEVELOPERS.md, decision log: a failed re-equilibration
+// passed one step later).
 const remeshAttempts = 3
 
 // Outcome is how a run ended.
@@ -149,47 +157,37 @@ type Outcome struct {
 }
 
 // Cycle is the state of an adaptive run: the current mesh and problem, the
-// crack tips and what has been recorded so far.
+// solver that advances it, the crack tips and the counters. Observers see
+// it through a View.
 type Cycle struct {
-	Cfg   CycleConfig
-	Mesh  *fem.Mesh
-	Prob  *fem.Problem
-	Zone  FineZone
-	Seeds []criteria.Seed
+	stage // the current mesh and problem
+	Zone  size.FineZone
+	Seeds []criteria.Tip
 	// Tips are the current crack tips (initially the domain's).
-	Tips []Tip
-	// Steps, Remeshes count converged steps and remeshes; Dt is the next
-	// increment; PeakDofs the largest problem so far.
+	Tips []criteria.Tip
+	// Steps, Remeshes count converged steps and remeshes; PeakDofs is the
+	// largest problem so far.
 	Steps, Remeshes int
-	Dt              float64
 	PeakDofs        int
 	Da, DaProj      float64
 	// Wall is the wall time of the run so far (carried across resumes).
 	Wall time.Duration
-	// Tau is the committed pseudo-time: the load factor, or under a
-	// Control the pseudo-time that drives the opening.
-	Tau float64
 
-	gp     fem.GaussPoints
 	solver *solver.Solver
-	// prev: the solver's last converged increment, restored from a
-	// checkpoint into the first solver of a resumed run, with the
-	// control's offset (hasOffset).
-	prev      solver.Previous
-	offset    float64
-	hasOffset bool
-	started   time.Time
-	stop      *stopRequest
-	seedDir   [][2]float64
+	// wall0 and started: the wall time before this Run and its start.
+	wall0   time.Duration
+	started time.Time
 	// remeshFails counts the remeshes that failed in a row.
 	remeshFails int
 }
 
-type stopRequest struct {
-	remesh    bool
-	completed bool
-	reason    string
-	decision  Decision
+// stage is a problem on one mesh, with the run's configuration: the
+// current one, or a new mesh's while its transferred state settles.
+type stage struct {
+	Cfg  *CycleConfig
+	Mesh *fem.Mesh
+	Prob *fem.Problem
+	gp   fem.GaussPoints
 }
 
 // NewCycle meshes the domain and sets up the first problem.
@@ -197,27 +195,66 @@ func NewCycle(cfg CycleConfig) (*Cycle, error) {
 	if cfg.Domain == nil || cfg.Material == nil || cfg.BCs == nil || cfg.Measure == nil {
 		return nil, errors.New("cycle: Domain, Material, BCs and Measure are required")
 	}
-	sf, err := NewSizeField(cfg.Domain, cfg.Size)
+	sf, err := size.NewField(cfg.Domain, cfg.Size)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: initial size field: %w", err)
 	}
-	m, _, err := MeshDomain(cfg.Domain, sf.At, cfg.Mesh)
+	m, _, err := meshing.Mesh(cfg.Domain, sf.At, cfg.Mesh)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: initial mesh: %w", err)
 	}
-	c := &Cycle{Cfg: cfg, Dt: cfg.Solver.Dt}
-	c.Zone = InitialZone(sf, c.hWake())
+	c := &Cycle{stage: stage{Cfg: &cfg}}
+	c.Zone = size.InitialZone(sf, c.hWake())
 	for _, name := range sortedTipNames(cfg.Domain) {
 		pt := cfg.Domain.Points[name]
-		c.Seeds = append(c.Seeds, seedOf(pt.X, pt.Dir))
-		c.Tips = append(c.Tips, Tip{Name: name, X: pt.X, Dir: pt.Dir})
-		c.seedDir = append(c.seedDir, pt.Dir)
+		tip := criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir}
+		c.Seeds = append(c.Seeds, tip)
+		c.Tips = append(c.Tips, tip)
 	}
 	if err := c.setMesh(m); err != nil {
 		return nil, err
 	}
+	if err := c.startSolver(cfg.Solver.Dt, 0); err != nil {
+		return nil, err
+	}
 	return c, nil
 }
+
+// startSolver makes the solver of the current problem, with first
+// increment dt and, under an opening control, pseudo-time tau.
+func (c *Cycle) startSolver(dt, tau float64) error {
+	opt := c.Cfg.Solver
+	opt.Dt = math.Min(math.Max(dt, opt.DtMin), opt.DtMax)
+	s, err := solver.New(c.Prob, opt)
+	if err != nil {
+		return err
+	}
+	c.solver = s
+	ctl, err := c.control(c.Prob)
+	if err != nil || ctl == nil {
+		return err
+	}
+	if err := s.SetControl(ctl, tau); err != nil {
+		return fmt.Errorf("opening control: %w", err)
+	}
+	return nil
+}
+
+// control is the opening control of problem p (nil under load control).
+func (c *Cycle) control(p *fem.Problem) (*solver.Control, error) {
+	if c.Cfg.Control == nil {
+		return nil, nil
+	}
+	ctl, err := c.Cfg.Control(p)
+	if err != nil {
+		return nil, fmt.Errorf("opening control: %w", err)
+	}
+	return ctl, nil
+}
+
+// Tau is the committed pseudo-time: the load factor, or under a control
+// the pseudo-time that drives the opening.
+func (c *Cycle) Tau() float64 { return c.solver.Time() }
 
 // sortedTipNames lists the domain's crack-tip points in name order, so that
 // every run (and every resume) sees them in the same order.
@@ -240,8 +277,8 @@ func (c *Cycle) hWake() float64 {
 	return c.Cfg.Size.WithDefaults().HFar
 }
 
-// newProblem builds the problem on mesh m (its state virgin).
-func (c *Cycle) newProblem(m *fem.Mesh) (*fem.Problem, error) {
+// newStage builds the problem on mesh m (its state virgin).
+func (c *Cycle) newStage(m *fem.Mesh) (*stage, error) {
 	bcs, err := c.Cfg.BCs(m)
 	if err != nil {
 		return nil, fmt.Errorf("cycle: boundary conditions: %w", err)
@@ -250,156 +287,182 @@ func (c *Cycle) newProblem(m *fem.Mesh) (*fem.Problem, error) {
 	if err != nil {
 		return nil, fmt.Errorf("cycle: problem: %w", err)
 	}
-	return p, nil
+	return &stage{Cfg: c.Cfg, Mesh: m, Prob: p}, nil
 }
 
 // setMesh makes the problem on mesh m (its state virgin) the current one.
 func (c *Cycle) setMesh(m *fem.Mesh) error {
-	p, err := c.newProblem(m)
+	next, err := c.newStage(m)
 	if err != nil {
 		return err
 	}
 	if c.Prob != nil {
 		c.Prob.Close()
 	}
-	c.Mesh, c.Prob = m, p
-	if p.Dofs.N > c.PeakDofs {
-		c.PeakDofs = p.Dofs.N
-	}
+	c.stage = *next
+	c.PeakDofs = max(c.PeakDofs, next.Prob.Dofs.N)
 	return nil
 }
 
-// GaussPoints returns the committed Gauss-point data of the current problem
-// (refreshed on every call; the slice is reused).
-func (c *Cycle) GaussPoints() *fem.GaussPoints {
+// GaussPoints returns the committed Gauss-point data of the stage's
+// problem (refreshed on every call; the slice is reused).
+func (c *stage) GaussPoints() *fem.GaussPoints {
 	c.Prob.GaussPoints(&c.gp)
 	return &c.gp
 }
 
-// Run advances the run until stop.t, stop.da, the deadline, or a clean
-// solver stop, calling obs after every step and remesh.
+// Run advances the run until stop.t, stop.da, the deadline, the step
+// limit or a stall of the solver, calling obs after every step and remesh.
+// One pass of the loop is the adaptive cycle: solve an increment → locate
+// the damage front → record → decide → (remesh: size field → new geometry
+// → mesh → transfer → settle → re-equilibrate).
 func (c *Cycle) Run(obs Observer) (Outcome, error) {
-	c.started = time.Now()
-	wall0 := c.Wall
+	c.started, c.wall0 = time.Now(), c.Wall
 	for {
-		opt := c.Cfg.Solver
-		opt.Dt = math.Min(math.Max(c.Dt, opt.DtMin), opt.DtMax)
-		opt.MaxSteps = max(1, opt.MaxSteps-c.Steps)
-		s, err := solver.New(c.Prob, opt)
+		if end, done := c.atLimit(); done {
+			return c.outcome(end), nil
+		}
+		st, end, err := c.solveIncrement()
+		if err != nil || end.stop {
+			return c.outcome(end), err
+		}
+		gp := c.GaussPoints()
+		front, err := c.locateFront(gp)
 		if err != nil {
-			return Outcome{}, err
+			return c.outcome(verdict{}), err
 		}
-		if c.Cfg.Control != nil {
-			ctl, err := c.Cfg.Control(c.Prob)
-			if err != nil {
-				return Outcome{}, fmt.Errorf("opening control: %w", err)
-			}
-			if err := s.SetControl(ctl, c.Tau); err != nil {
-				return Outcome{}, fmt.Errorf("opening control: %w", err)
-			}
-			if c.hasOffset {
-				s.Controlled().Offset = c.offset
-				c.hasOffset = false
-			}
-		}
-		if c.prev.Dt > 0 {
-			if err := s.SetPreviousIncrement(c.prev); err != nil {
-				return Outcome{}, err
-			}
-			c.prev = solver.Previous{}
-		}
-		c.solver = s
-		c.stop = nil
-		res, err := s.Run(func(st solver.Step) error {
-			c.Wall = wall0 + time.Since(c.started)
-			c.Dt = s.NextDt()
-			c.Tau = s.Time()
-			c.Steps++
-			rec, err := c.record(st, false)
-			if err != nil {
-				return err
-			}
-			if err := obs.Step(rec, c); err != nil {
-				return err
-			}
-			return c.decide(rec)
-		})
-		c.Wall = wall0 + time.Since(c.started)
-		out := Outcome{Status: res.Status, Reason: res.Reason, Steps: c.Steps, T: c.Tau, Da: c.Da, PeakDof: c.PeakDofs}
-		if err != nil && !errors.Is(err, solver.ErrStop) {
-			return out, err
-		}
-		if c.stop == nil {
-			return out, nil
-		}
-		if c.stop.completed {
-			out.Status, out.Reason = solver.Completed, c.stop.reason
-			return out, nil
-		}
-		if !c.stop.remesh {
-			out.Status, out.Reason = solver.Stopped, c.stop.reason
-			return out, nil
-		}
-		rr, err := c.remesh(c.stop.decision)
+		c.follow(front)
+		rec, err := c.record(st, gp)
 		if err != nil {
-			// The old mesh and state are intact: go on with them and try
-			// again after the next step, when the state has moved on (a
-			// transient failure, typically in re-equilibration), unless the
-			// remesh has failed remeshAttempts times in a row.
-			c.remeshFails++
-			if c.remeshFails >= remeshAttempts {
-				out.Status, out.Reason = solver.Stopped, fmt.Sprintf("remesh %d failed %d times in a row, last: %v", c.Remeshes+1, c.remeshFails, err)
-				return out, nil
-			}
-			if fo, ok := obs.(RemeshFailureObserver); ok {
-				if err := fo.RemeshFailed(c.Remeshes+1, c.Steps, err); err != nil {
-					return out, err
-				}
-			}
+			return c.outcome(verdict{}), err
+		}
+		if err := obs.Step(rec, View{c}); err != nil {
+			return c.outcome(verdict{}), err
+		}
+		v, err := c.decide(gp)
+		if err != nil || v.stop {
+			return c.outcome(v), err
+		}
+		if !v.remesh.Remesh {
 			continue
 		}
-		c.remeshFails = 0
-		if err := obs.Remesh(rr, c); err != nil {
-			return out, err
+		if v, err := c.remeshOrRetry(v.remesh, obs); err != nil || v.stop {
+			return c.outcome(v), err
 		}
 	}
 }
 
-// decide ends the solver's run after a step when the crack has grown far
-// enough, the deadline has passed, or a remesh is due.
-func (c *Cycle) decide(rec *StepRecord) error {
+// verdict is what the cycle does after a step: go on, remesh, or stop
+// with a status and reason.
+type verdict struct {
+	stop   bool
+	status solver.Status
+	reason string
+	remesh trigger.Decision
+}
+
+func stopWith(status solver.Status, reason string) verdict {
+	return verdict{stop: true, status: status, reason: reason}
+}
+
+// outcome is the run's end as the caller sees it.
+func (c *Cycle) outcome(v verdict) Outcome {
+	c.Wall = c.wall0 + time.Since(c.started)
+	status := v.status
+	if !v.stop {
+		status = solver.Stopped // an error ended the run
+	}
+	return Outcome{Status: status, Reason: v.reason, Steps: c.Steps, T: c.Tau(), Da: c.Da, PeakDof: c.PeakDofs}
+}
+
+// atLimit reports whether the run has reached stop.t or the step limit.
+func (c *Cycle) atLimit() (verdict, bool) {
+	if c.solver.Done() {
+		return stopWith(solver.Completed, ""), true
+	}
+	if max := c.Cfg.Solver.MaxSteps; c.Steps >= max {
+		return stopWith(solver.Stopped, fmt.Sprintf("step limit %d reached at t = %g", max, c.Tau())), true
+	}
+	return verdict{}, false
+}
+
+// solveIncrement advances the solver by one converged increment. A stall
+// (increments cut below the minimum) ends the run with its reason.
+func (c *Cycle) solveIncrement() (solver.Step, verdict, error) {
+	st, err := c.solver.Next()
+	c.Wall = c.wall0 + time.Since(c.started)
+	var stall *solver.StallError
+	if errors.As(err, &stall) {
+		return st, stopWith(solver.Stopped, stall.Error()), nil
+	}
+	if err != nil {
+		return st, verdict{}, err
+	}
+	c.Steps++
+	return st, verdict{}, nil
+}
+
+// decide ends the run when the crack has grown far enough or the deadline
+// has passed, and asks the trigger whether a remesh is due.
+func (c *Cycle) decide(gp *fem.GaussPoints) (verdict, error) {
 	if c.Cfg.StopDa > 0 && c.Da >= c.Cfg.StopDa {
-		c.stop = &stopRequest{completed: true, reason: fmt.Sprintf("crack growth Δa = %.4g reached stop.da = %g", c.Da, c.Cfg.StopDa)}
-		return solver.ErrStop
+		return stopWith(solver.Completed, fmt.Sprintf("crack growth Δa = %.4g reached stop.da = %g", c.Da, c.Cfg.StopDa)), nil
 	}
 	if !c.Cfg.Deadline.IsZero() && time.Now().After(c.Cfg.Deadline) {
-		c.stop = &stopRequest{reason: "wall-clock limit stop.hours reached"}
-		return solver.ErrStop
+		return stopWith(solver.Stopped, "wall-clock limit stop.hours reached"), nil
 	}
 	if !c.Cfg.Adapt {
-		return nil
+		return verdict{}, nil
 	}
-	d, err := NeedRemesh(c.Mesh, &c.gp, c.Tips, &c.Zone, c.Remeshes, c.Cfg.Trigger)
+	d, err := trigger.Check(c.Mesh, gp, c.Tips, &c.Zone, c.Remeshes, c.Cfg.Trigger)
+	return verdict{remesh: d}, err
+}
+
+// remeshOrRetry remeshes for decision d. A failed remesh leaves the run on
+// its old mesh and state, to try again after the next step (a transient
+// failure, typically in re-equilibration), unless it has failed
+// remeshAttempts times in a row.
+func (c *Cycle) remeshOrRetry(d trigger.Decision, obs Observer) (verdict, error) {
+	rr, err := c.remesh(d)
+	if err == nil {
+		c.remeshFails = 0
+		return verdict{}, obs.Remesh(rr, View{c})
+	}
+	c.remeshFails++
+	if c.remeshFails >= remeshAttempts {
+		return stopWith(solver.Stopped, fmt.Sprintf("remesh %d failed %d times in a row, last: %v", c.Remeshes+1, c.remeshFails, err)), nil
+	}
+	if err := c.rebindSolver(c.Prob); err != nil {
+		return verdict{}, err
+	}
+	if fo, ok := obs.(RemeshFailureObserver); ok {
+		return verdict{}, fo.RemeshFailed(c.Remeshes+1, c.Steps, err)
+	}
+	return verdict{}, nil
+}
+
+// rebindSolver moves the solver onto problem p with p's control.
+func (c *Cycle) rebindSolver(p *fem.Problem) error {
+	ctl, err := c.control(p)
 	if err != nil {
 		return err
 	}
-	if d.Remesh {
-		c.stop = &stopRequest{remesh: true, decision: d}
-		return solver.ErrStop
+	if err := c.solver.Rebind(p, ctl); err != nil {
+		return fmt.Errorf("opening control: %w", err)
 	}
 	return nil
 }
 
-// record evaluates the crack-growth measures of the converged state.
-func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
+// record evaluates the crack-growth measures of the converged state whose
+// Gauss-point data is gp.
+func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error) {
 	p := c.Prob
-	gp := c.GaussPoints()
 	rec := &StepRecord{
-		Step: c.Steps, T: c.Tau, Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.Mesh.Tri) - c.brokenCount(),
+		Step: c.Steps, T: c.Tau(), Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.Mesh.Tri) - c.brokenCount(),
 		Remeshes: c.Remeshes, Iters: st.Iterations, Cutbacks: st.Cutbacks,
 		JFar: math.NaN(), JDomain: math.NaN(), CTOD: math.NaN(),
-		Residuals: append([]float64(nil), st.Residuals...), Reequilibrium: equil,
-		StepWall: st.Wall, CumWall: c.Wall,
+		Residuals: append([]float64(nil), st.Residuals...),
+		StepWall:  st.Wall, CumWall: c.Wall,
 	}
 	var err error
 	rec.Control, rec.Force, err = c.Cfg.Measure(p)
@@ -415,13 +478,14 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 	if len(c.Seeds) == 0 {
 		return rec, nil
 	}
-	if err := c.locateTips(gp); err != nil {
-		return nil, err
-	}
 	rec.Da, rec.DaProj = c.Da, c.DaProj
 	rec.TipX = c.Tips[0].X
 	if c.Cfg.J != nil {
-		if js, err := c.domainJ(gp); err == nil && len(js) > 0 {
+		js, err := c.domainJ(gp)
+		if err != nil {
+			rec.Unmeasured = append(rec.Unmeasured, fmt.Errorf("domain J: %w", err))
+		}
+		if len(js) > 0 {
 			rec.JRings = js
 			// The outermost ring: the most remote from the process zone,
 			// where incremental plasticity and damage spoil path
@@ -429,52 +493,42 @@ func (c *Cycle) record(st solver.Step, equil bool) (*StepRecord, error) {
 			rec.JDomain = js[len(js)-1]
 		}
 	}
-	if op, err := c.ctod(); err == nil {
+	if op, err := c.ctod(); err != nil {
+		rec.Unmeasured = append(rec.Unmeasured, fmt.Errorf("CTOD: %w", err))
+	} else {
 		rec.CTOD = op
 	}
 	return rec, nil
 }
 
-// locateTips moves the crack tips to the current damage front and updates
-// Δa. A material without porosity (Fc = 0) has no front: the tips stay.
-func (c *Cycle) locateTips(gp *fem.GaussPoints) error {
-	if !(c.Cfg.Fc > 0) {
-		return nil
+// locateFront locates the damage front of the converged state: how far
+// each tip has grown. A material without porosity (Fc = 0), or a domain
+// without crack tips, has no front: nil.
+func (c *Cycle) locateFront(gp *fem.GaussPoints) (*criteria.Front, error) {
+	if !(c.Cfg.Fc > 0) || len(c.Seeds) == 0 {
+		return nil, nil
 	}
 	front, err := criteria.LocateFront(c.Mesh, gp, criteria.FrontOptions{Fc: c.Cfg.Fc, Tips: c.Seeds})
 	if err != nil {
-		return fmt.Errorf("step %d: crack tip: %w", c.Steps, err)
+		return nil, fmt.Errorf("step %d: crack tip: %w", c.Steps, err)
 	}
-	// The run's Δa is that of the tip that has grown furthest.
+	return front, nil
+}
+
+// follow moves the crack tips to the located front; the run's Δa is that
+// of the tip that has grown furthest.
+func (c *Cycle) follow(front *criteria.Front) {
+	if front == nil {
+		return
+	}
 	for i, t := range front.Tips {
 		if t.DA >= c.Da {
 			c.Da, c.DaProj = t.DA, t.DAProj
 		}
 		if i < len(c.Tips) && t.Grown {
-			c.Tips[i].X = t.X
-			c.Tips[i].Dir = tipDirection(t, c.seedDir[i])
+			c.Tips[i] = t.Tip
 		}
 	}
-	return nil
-}
-
-// tipDirection is the growth direction of a tip: the chord of the last part
-// of its path, or the initial direction while the path is short.
-func tipDirection(t criteria.Tip, initial [2]float64) [2]float64 {
-	n := len(t.Path)
-	if n < 2 {
-		return initial
-	}
-	end := t.Path[n-1]
-	for i := n - 2; i >= 0; i-- {
-		d := [2]float64{end[0] - t.Path[i][0], end[1] - t.Path[i][1]}
-		if math.Hypot(d[0], d[1]) > 0 {
-			if i == 0 || math.Hypot(d[0], d[1]) > 0.25*t.DA {
-				return d
-			}
-		}
-	}
-	return initial
 }
 
 // domainJ evaluates J on the configured rings around the first tip.
@@ -519,11 +573,9 @@ func (c *Cycle) Displacement() ([][2]float64, error) {
 func (c *Cycle) brokenCount() int {
 	n := 0
 	for e := range c.Mesh.Tri {
-		if c.Prob.Broken(e) {
+		if c.Prob.Released(e) {
 			n++
 		}
 	}
 	return n
 }
-
-func seedOf(x, dir [2]float64) criteria.Seed { return criteria.Seed{X: x, Dir: dir} }

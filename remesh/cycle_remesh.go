@@ -6,6 +6,11 @@ import (
 	"math"
 	"time"
 
+	"tearline/remesh/carve"
+	"tearline/remesh/geom"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -19,12 +24,8 @@ func linearFields() [4]fem.Field {
 }
 
 // fields collects the committed state of the current problem for a transfer.
-func (c *Cycle) fields() (*transfer.Fields, error) {
-	u, err := c.Displacement()
-	if err != nil {
-		return nil, err
-	}
-	f := &transfer.Fields{U: u}
+func (c *stage) fields() (*transfer.Fields, error) {
+	f := &transfer.Fields{U: c.Prob.Displacement()}
 	nn := len(c.Mesh.X)
 	for _, fd := range linearFields() {
 		if !c.Prob.Dofs.Has(fd) {
@@ -39,64 +40,40 @@ func (c *Cycle) fields() (*transfer.Fields, error) {
 	gp := c.GaussPoints()
 	n := len(gp.Points)
 	f.State = make([]material.State, n)
-	// History: the stress work W, the 5 components of F and of P (kept so
-	// that a checkpoint restores the committed points exactly), and the 4
-	// components of the elastic log strain Eᵉ = E(F) − Eᵖ (see
-	// reconcilePlasticStrain).
-	f.History = make([][]float64, 15)
-	for k := range f.History {
-		f.History[k] = make([]float64, n)
-	}
-	rule := fem.ElementRule()
-	mixed := c.Prob.Mixed()
+	f.Gauss = make([]transfer.GaussData, n)
 	for i := range gp.Points {
 		g := &gp.Points[i]
 		f.State[i] = g.State
-		f.History[0][i] = g.W
-		for k := 0; k < 5; k++ {
-			f.History[1+k][i] = g.F[k]
-			f.History[6+k][i] = g.P[k]
-		}
-		// The elastic strain the material saw: in the three-field element
-		// the trace of E is θ, not tr E(F), and σ_m = K(θ − tr Eᵖ).
-		if E, err := c.materialStrain(i/gp.PerElement, i%gp.PerElement, rule.L[i%gp.PerElement], mixed); err == nil {
+		d := &f.Gauss[i]
+		d.W, d.F, d.P = g.W, g.F, g.P
+		// The elastic strain the material saw (see reconcilePlasticStrain);
+		// zero where the element is inverted.
+		if E, err := c.Prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement); err == nil {
 			for k := 0; k < 4; k++ {
-				f.History[11+k][i] = E[k] - g.State.Ep[k]
+				d.Ee[k] = E[k] - g.State.Ep[k]
 			}
 		}
 	}
 	return f, nil
 }
 
-// logStrainOf returns E = ½ ln(FᵀF) of a deformation gradient in the
-// Gauss-point layout (11, 12, 21, 22, 33); ok is false for an unusable F
-// (never assembled, or inverted).
-func logStrainOf(F [5]float64) (material.Sym, bool) {
-	c := material.Sym{F[0]*F[0] + F[2]*F[2], F[1]*F[1] + F[3]*F[3], F[4] * F[4], F[0]*F[1] + F[2]*F[3]}
-	if det := (F[0]*F[3] - F[1]*F[2]) * F[4]; !(det > 0) {
-		return material.Sym{}, false
-	}
-	e, _ := material.LogStrain(c)
-	return e, true
-}
-
 // reconcilePlasticStrain makes the transferred state compatible with the
 // transferred displacement: at a new Gauss point where the two disagree by
-// more than twice the elastic strain, the plastic strain is set to Eᵖ = E(F(u)) − Eᵉ, with Eᵉ the projected elastic strain. The
-// recovered Eᵖ is smoothed where the plastic strain peaks, while u is
-// interpolated exactly; their mismatch would appear as an elastic strain of
-// the size of the plastic one (stresses of tens of GPa at a crack tip).
-// Transferring the elastic strain and letting Eᵖ absorb the difference keeps
-// the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
+// more than twice the elastic strain, the plastic strain is set to
+// Eᵖ = Ẽ(u) − Eᵉ, with Ẽ the strain the material sees
+// (fem.Problem.MaterialStrain) and Eᵉ the projected elastic strain
+// (transfer.GaussData.Ee). The recovered Eᵖ is smoothed where the plastic
+// strain peaks, while u is interpolated exactly; their mismatch would
+// appear as an elastic strain of the size of the plastic one (stresses of
+// tens of GPa at a crack tip). Transferring the elastic strain and letting
+// Eᵖ absorb the difference keeps the stress continuous (common practice; cf. Perić et al. 1996, CMAME 137,
 // on transfer operators for evolving meshes).
-func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
-	if len(f.History) < 15 {
+func (c *stage) reconcilePlasticStrain(f *transfer.Fields) error {
+	if f.Gauss == nil {
 		return nil
 	}
-	rule := fem.ElementRule()
-	nq := rule.Len()
+	nq := fem.ElementRule().Len()
 	st := c.Prob.State()
-	mixed := c.Prob.Mixed()
 	fixed := make([][]material.State, len(st))
 	for e := range st {
 		fixed[e] = append([]material.State(nil), st[e]...)
@@ -105,9 +82,9 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 			if s.Broken {
 				continue
 			}
-			E, err := c.materialStrain(e, g, rule.L[g], mixed)
-			if errors.Is(err, errInverted) && c.straightenElement(e) {
-				E, err = c.materialStrain(e, g, rule.L[g], mixed)
+			E, err := c.Prob.MaterialStrain(e, g)
+			if inverted(err) && c.Prob.Straighten(e) {
+				E, err = c.Prob.MaterialStrain(e, g)
 			}
 			if err != nil {
 				return err
@@ -115,12 +92,10 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 			i := e*nq + g
 			// Only where the mismatch is large against the elastic strain
 			// itself: elsewhere the projected Eᵖ is the better estimate
-			// (measured: reconciling everywhere moved the re-equilibrated
-			// reaction of a plastic boundary-layer disk by 0.24%, against
-			// 0.025% without).
-			var ee, mis material.Sym
+			// and is kept.
+			ee := f.Gauss[i].Ee
+			var mis material.Sym
 			for k := 0; k < 4; k++ {
-				ee[k] = f.History[11+k][i]
 				mis[k] = E[k] - s.Ep[k] - ee[k]
 			}
 			if math.Sqrt(mis.Ddot(mis)) > 2*math.Max(math.Sqrt(ee.Ddot(ee)), 1e-4) {
@@ -133,117 +108,21 @@ func (c *Cycle) reconcilePlasticStrain(f *transfer.Fields) error {
 	return c.Prob.SetState(fixed)
 }
 
-// materialStrain is the log strain the material sees at point g (at
-// barycentric coordinates l) of element e in the committed unknowns: with its trace replaced by the volume
-// variable θ in the three-field element.
-func (c *Cycle) materialStrain(e, g int, l [3]float64, mixed bool) (material.Sym, error) {
-	F, err := c.Prob.DeformationGradient(e, l, c.Prob.Committed)
-	if err != nil {
-		return material.Sym{}, err
-	}
-	E, ok := logStrainOf(F)
-	if !ok {
-		return E, fmt.Errorf("element %d point %d: %w", e, g, errInverted)
-	}
-	if mixed {
-		d := (c.atPoint(e, l, fem.Theta) - E.Trace()) / 3
-		E[0], E[1], E[2] = E[0]+d, E[1]+d, E[2]+d
-	}
-	return E, nil
-}
-
-// straightenElement sets the displacement of element e's midside nodes to
-// the mean of their edge's corner nodes, in the current and committed
-// unknowns; it reports whether anything changed.
-func (c *Cycle) straightenElement(e int) bool {
-	p := c.Prob
-	t := c.Mesh.Tri[e]
-	changed := false
-	for k := 0; k < 3; k++ {
-		a, b, m := t[k], t[(k+1)%3], t[3+k]
-		for _, f := range [2]fem.Field{fem.Ux, fem.Uy} {
-			da, db, dm := p.Dofs.Of(a, f), p.Dofs.Of(b, f), p.Dofs.Of(m, f)
-			if da < 0 || db < 0 || dm < 0 {
-				continue
-			}
-			v := 0.5 * (p.Committed[da] + p.Committed[db])
-			if p.Committed[dm] != v {
-				changed = true
-			}
-			p.Committed[dm], p.U[dm] = v, v
-		}
-	}
-	return changed
-}
-
-// projectVolume sets the volume variable θ of a three-field problem to the
-// lumped L2 projection of tr E(u) of the transferred displacement,
-// θ_a = Σ N_a tr E dA / Σ N_a dA over the Gauss points of the active
-// elements, instead of the interpolated old θ: at equilibrium θ is that
-// projection, and where the old θ varied steeply (the blunted notch root)
-// its interpolation disagreed with the new displacement by several per
-// cent of volume, which the first Newton corrections turned into trial
-// mean stresses of 9–15 GPa.
-func (c *Cycle) projectVolume() error {
-	p := c.Prob
-	if !p.Mixed() {
-		return nil
-	}
-	rule := fem.ElementRule()
-	gp := c.GaussPoints()
-	num := make([]float64, len(c.Mesh.X))
-	den := make([]float64, len(c.Mesh.X))
-	for e := range c.Mesh.Tri {
-		if p.Broken(e) {
-			continue
-		}
-		for g := 0; g < rule.Len(); g++ {
-			E, err := c.materialStrain(e, g, rule.L[g], false)
-			if err != nil {
-				continue // inverted: settleTransferred straightens it later
-			}
-			da := gp.At(e, g).DA
-			for k := 0; k < 3; k++ {
-				n := c.Mesh.Tri[e][k]
-				num[n] += rule.L[g][k] * E.Trace() * da
-				den[n] += rule.L[g][k] * da
-			}
-		}
-	}
-	theta := make([]float64, len(c.Mesh.X))
-	if err := p.NodalField(fem.Theta, theta); err != nil {
-		return err
-	}
-	for n := range theta {
-		if den[n] > 0 {
-			theta[n] = num[n] / den[n]
-		}
-	}
-	return p.SetNodalField(fem.Theta, theta)
-}
-
-// errInverted: the transferred displacement inverts an element.
-var errInverted = errors.New("transferred displacement inverts the element")
-
-// yieldStress is the current flow stress of the GTN point at barycentric
+// yieldStress is the current flow stress of the point at barycentric
 // coordinates l of element e with cumulative plastic strain p, with the
 // interpolated nodal ā and λ of the regularised model.
-func (c *Cycle) yieldStress(m *material.GTN, e int, l [3]float64, p float64) float64 {
+func (c *stage) yieldStress(m material.Plastic, e int, l [3]float64, p float64) float64 {
 	if !c.Prob.Regularised() {
 		return m.FlowStress(p, 0, 0)
 	}
-	return m.FlowStress(p, c.atPoint(e, l, fem.Abar), c.atPoint(e, l, fem.Lambda))
+	return m.FlowStress(p, c.Prob.LinearFieldAt(fem.Abar, e, l), c.Prob.LinearFieldAt(fem.Lambda, e, l))
 }
 
-// atPoint is the committed corner field f (θ, ā, λ: linear on the
-// element) at barycentric coordinates l of element e.
-func (c *Cycle) atPoint(e int, l [3]float64, f fem.Field) float64 {
-	var v float64
-	for k := 0; k < 3; k++ {
-		x, _ := c.Prob.Nodal(c.Prob.Committed, c.Mesh.Tri[e][k], f)
-		v += l[k] * x
-	}
-	return v
+// inverted reports whether err is that of an element the displacement
+// inverts.
+func inverted(err error) bool {
+	var ee *fem.ElementError
+	return errors.As(err, &ee) && ee.Inverted
 }
 
 // maxRepairs bounds the points settleTransferred may repair in one remesh.
@@ -252,10 +131,13 @@ const maxRepairs = 200
 // settleTransferred evaluates the transferred state. Where a point's
 // material update fails on it (a trial stress far outside the yield
 // surface, which the return mapping cannot bring back), that point's
-// elastic strain is scaled back onto the surface and the evaluation is
-// repeated. It returns the number of points repaired.
-func (c *Cycle) settleTransferred() (int, error) {
-	gtn, _ := c.Cfg.Material.(*material.GTN)
+// elastic strain is scaled back onto the surface of a plastic model
+// (material.Plastic) and the evaluation is repeated. Only failing points
+// are repaired: elsewhere the projected state is the better estimate, and
+// scaling every point outside the surface disturbs a converged state more
+// than re-equilibration repairs. It returns the number of points repaired.
+func (c *stage) settleTransferred() (int, error) {
+	pm, _ := c.Cfg.Material.(material.Plastic)
 	rule := fem.ElementRule()
 	for n := 0; ; n++ {
 		err := c.Prob.Assemble(false)
@@ -268,12 +150,12 @@ func (c *Cycle) settleTransferred() (int, error) {
 			// (its midside nodes interpolated from strongly distorted old
 			// elements): straighten its edges, i.e. put each midside
 			// node's displacement at the mean of its edge's corners.
-			if !c.straightenElement(ee.Elem) {
+			if !c.Prob.Straighten(ee.Elem) {
 				return n, err
 			}
 			continue
 		}
-		if gtn == nil {
+		if pm == nil {
 			return n, err
 		}
 		st := c.Prob.State()
@@ -282,22 +164,21 @@ func (c *Cycle) settleTransferred() (int, error) {
 		fixed[ee.Elem] = append([]material.State(nil), st[ee.Elem]...)
 		s := &fixed[ee.Elem][ee.Point]
 		l := rule.L[ee.Point]
-		E, err2 := c.materialStrain(ee.Elem, ee.Point, l, c.Prob.Mixed())
+		E, err2 := c.Prob.MaterialStrain(ee.Elem, ee.Point)
 		if err2 != nil {
 			return n, err
 		}
-		flow := c.yieldStress(gtn, ee.Elem, l, s.P)
-		if r, _ := gtn.Params().Hardening.Flow(s.P); c.Prob.Regularised() && flow < 0.5*r {
-			// The interpolated multiplier field (λ swings by ±10σ₀ between
-			// neighbouring nodes next to a softening zone) leaves no
-			// elastic range, A = R + λ + r(p − ā) ≤ 0. λ and ā are
-			// unknowns, not history: restart them at the element's
-			// corners from the local solution ā = p, λ = 0, and let the
-			// re-equilibration find them.
-			c.localRegularisation(ee.Elem, s.P)
+		flow := c.yieldStress(pm, ee.Elem, l, s.P)
+		if r := pm.LocalFlowStress(s.P); c.Prob.Regularised() && flow < 0.5*r {
+			// The interpolated multiplier field (λ varies steeply between
+			// nodes next to a softening zone) leaves no elastic range,
+			// A = R + λ + r(p − ā) ≤ 0. λ and ā are unknowns, not
+			// history: restart them at the element's corners from the
+			// local solution and let the re-equilibration find them.
+			c.Prob.ResetRegularisation(ee.Elem, s.P)
 			continue
 		}
-		changed, err2 := admissibleElastic(gtn, s, E, flow)
+		changed, err2 := pm.ScaleToYield(s, E, flow)
 		if err2 != nil {
 			return n, err
 		}
@@ -314,55 +195,23 @@ func (c *Cycle) settleTransferred() (int, error) {
 	}
 }
 
-// admissibleElastic scales the elastic strain E − Eᵖ of a transferred GTN
-// point back onto the yield surface σ* = R(p) when it lies outside (σ* is
-// homogeneous of degree one in the stress), keeping the total strain: Eᵖ
-// takes up the difference. A converged state's stress lies on or inside
-// the surface, but a least-squares fit next to a steep gradient (the crack
-// faces left by removed elements) can put it far outside, where the
-// return mapping fails (measured: a trial mean stress of 13 GPa against a
-// hydrostatic yield of 1.6 GPa after the first remesh of the
-// boundary-layer case). It is applied only to points whose update fails:
-// applied to every point outside, it changed 220 points of a converged
-// plastic disk and its re-equilibration failed.
-func admissibleElastic(m *material.GTN, s *material.State, E material.Sym, flow float64) (bool, error) {
-	var ee material.Sym
-	for k := 0; k < 4; k++ {
-		ee[k] = E[k] - s.Ep[k]
-	}
-	seff, err := m.EffectiveStress(m.Params().Elastic.Stress(ee), s.F)
-	if err != nil {
-		return false, err
-	}
-	r := math.Max(flow, 1e-3*m.Sigma0())
-	if !(seff > r) {
-		return false, nil
-	}
-	scale := r / seff
-	for k := 0; k < 4; k++ {
-		s.Ep[k] = E[k] - scale*ee[k]
-	}
-	return true, nil
-}
-
-// gaussData unpacks the History arrays of fields into W, F and P.
+// gaussData unpacks the Gauss-point data of f into W, F and P in the
+// layout of fem.Problem.SetGaussData.
 func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
-	if len(f.History) < 11 {
-		return nil, nil, nil, fmt.Errorf("state holds %d history arrays, want at least 11 (W, F, P)", len(f.History))
+	if f.Gauss == nil {
+		return nil, nil, nil, errors.New("the state holds no Gauss-point data (W, F, P)")
 	}
-	n := len(f.History[0])
-	F, P = make([][5]float64, n), make([][5]float64, n)
-	for i := 0; i < n; i++ {
-		for k := 0; k < 5; k++ {
-			F[i][k], P[i][k] = f.History[1+k][i], f.History[6+k][i]
-		}
+	n := len(f.Gauss)
+	F, P, W = make([][5]float64, n), make([][5]float64, n), make([]float64, n)
+	for i, d := range f.Gauss {
+		F[i], P[i], W[i] = d.F, d.P, d.W
 	}
-	return F, P, f.History[0], nil
+	return F, P, W, nil
 }
 
 // install puts transferred (or checkpointed, exact) fields into the
 // current problem as its committed state at pseudo-time t.
-func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
+func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
 	p := c.Prob
 	nn := len(c.Mesh.X)
 	ux, uy := make([]float64, nn), make([]float64, nn)
@@ -415,11 +264,12 @@ func (c *Cycle) install(f *transfer.Fields, t float64, exact bool) error {
 }
 
 // remesh builds the new geometry and mesh for decision d, transfers the
-// state onto it and re-establishes equilibrium at the same load.
-func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
-	t := c.Prob.TCommitted
+// state onto it and re-establishes equilibrium at the same load. The new
+// mesh replaces the current one only once it is in equilibrium: a failed
+// remesh leaves the run at its last converged state.
+func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 	rr := &RemeshRecord{
-		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau, Da: c.Da, Reason: d.Reason,
+		Index: c.Remeshes + 1, Step: c.Steps, T: c.Tau(), Da: c.Da, Reason: d.Reason,
 		DofsBefore: c.Prob.Dofs.N, ElemsBefore: len(c.Mesh.Tri),
 	}
 	var err error
@@ -427,23 +277,60 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 		return nil, err
 	}
 	t0 := time.Now()
-	gp := c.GaussPoints()
-	// Elements out of the assembly leave the geometry: the broken ones and
-	// those releasing their force or done with it (what force they still
-	// held is part of the out-of-balance force re-equilibration relaxes).
-	broken := make([]bool, len(c.Mesh.Tri))
-	for e := range broken {
-		broken[e] = c.Prob.Broken(e)
-	}
-	damaged, err := DamagedPoints(gp, broken, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	field, released, err := c.sizeField()
 	if err != nil {
 		return nil, err
 	}
-	tf, err := NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
+	dom, err := c.newGeometry(field, released, rr)
 	if err != nil {
-		return nil, fmt.Errorf("size field: %w", err)
+		return nil, err
 	}
-	carved, err := Carve(c.Mesh, broken, c.Cfg.Domain, c.Tips, tf.At, c.Cfg.Carve)
+	rr.GeomWall = time.Since(t0)
+	t0 = time.Now()
+	m, err := c.newMesh(dom, field, rr)
+	if err != nil {
+		return nil, err
+	}
+	rr.MeshWall = time.Since(t0)
+	t0 = time.Now()
+	next, err := c.transferTo(m, rr)
+	if err != nil {
+		return nil, err
+	}
+	rr.MapWall = time.Since(t0)
+	if err := c.settleOn(next, rr); err != nil {
+		next.Prob.Close()
+		return nil, err
+	}
+	c.adopt(next, field, rr)
+	return rr, nil
+}
+
+// sizeField is the tip-following size field of the next mesh, with the
+// elements that leave the geometry: those out of the assembly (broken,
+// or releasing their force; what force they still held is part of the
+// out-of-balance force re-equilibration relaxes).
+func (c *Cycle) sizeField() (*size.TipField, []bool, error) {
+	gp := c.GaussPoints()
+	released := make([]bool, len(c.Mesh.Tri))
+	for e := range released {
+		released[e] = c.Prob.Released(e)
+	}
+	damaged, err := size.DamagedPoints(gp, released, c.Cfg.Trigger.FAlert, c.Cfg.Trigger.PAlert)
+	if err != nil {
+		return nil, nil, err
+	}
+	tf, err := size.NewTipField(c.Tips, damaged, nil, c.Cfg.Follow)
+	if err != nil {
+		return nil, nil, fmt.Errorf("size field: %w", err)
+	}
+	return tf, released, nil
+}
+
+// newGeometry is the domain of the material left when the released
+// elements are carved away.
+func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRecord) (*geom.Domain, error) {
+	carved, err := carve.Domain(c.Mesh, released, c.Cfg.Domain, c.Tips, field.At, c.Cfg.Carve)
 	if err != nil {
 		return nil, fmt.Errorf("new geometry: %w", err)
 	}
@@ -452,108 +339,112 @@ func (c *Cycle) remesh(d Decision) (*RemeshRecord, error) {
 			rr.Removed++
 		}
 	}
-	rr.GeomWall = time.Since(t0)
+	return carved.Domain, nil
+}
 
-	t0 = time.Now()
-	m, rep, err := MeshDomain(carved.Domain, tf.At, c.Cfg.Mesh)
+// newMesh meshes the new domain to the size field.
+func (c *Cycle) newMesh(dom *geom.Domain, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
+	m, rep, err := meshing.Mesh(dom, field.At, c.Cfg.Mesh)
 	if err != nil {
 		return nil, fmt.Errorf("new mesh: %w", err)
 	}
 	rr.MinAngle = rep.MinAngleDeg
 	rr.MinSize = math.Inf(1)
 	for e := range m.Tri {
-		rr.MinSize = math.Min(rr.MinSize, LongestEdge(m, e))
+		rr.MinSize = math.Min(rr.MinSize, trigger.LongestEdge(m, e))
 	}
-	rr.MeshWall = time.Since(t0)
+	return m, nil
+}
 
-	t0 = time.Now()
+// transferTo maps the committed state onto mesh m: the new problem, its
+// committed state the transferred one, made compatible with the
+// transferred displacement (volume projection, plastic strain).
+func (c *Cycle) transferTo(m *fem.Mesh, rr *RemeshRecord) (*stage, error) {
 	from, err := c.fields()
 	if err != nil {
 		return nil, err
 	}
-	opt := c.Cfg.Transfer
-	to, trec, err := transfer.Map(c.Mesh, from, m, opt)
+	to, trec, err := transfer.Map(c.Mesh, from, m, c.Cfg.Transfer)
 	if err != nil {
 		return nil, fmt.Errorf("transfer: %w", err)
 	}
 	rr.MaxFBefore, rr.MaxFAfter = trec.Before.MaxF, trec.After.MaxF
 	rr.IntPBefore, rr.IntPAfter = trec.Before.IntP, trec.After.IntP
-	if len(trec.Before.IntHistory) > 0 && len(trec.After.IntHistory) > 0 {
-		rr.WorkBefore, rr.WorkAfter = trec.Before.IntHistory[0], trec.After.IntHistory[0]
-	}
+	rr.WorkBefore, rr.WorkAfter = trec.Before.Work, trec.After.Work
 	rr.Verbatim = trec.Verbatim
-	// The new problem replaces the old one only once it is in
-	// equilibrium: a failed remesh leaves the run at its last converged
-	// state (the final checkpoint and fields are of that state).
-	p, err := c.newProblem(m)
+	next, err := c.newStage(m)
 	if err != nil {
 		return nil, err
 	}
-	oldMesh, oldProb, oldPeak := c.Mesh, c.Prob, c.PeakDofs
-	c.Mesh, c.Prob = m, p
-	c.PeakDofs = max(c.PeakDofs, p.Dofs.N)
-	done := false
-	defer func() {
-		if done {
-			oldProb.Close()
-			return
-		}
-		p.Close()
-		c.Mesh, c.Prob, c.PeakDofs = oldMesh, oldProb, oldPeak
-		c.GaussPoints() // the Gauss-point view of the restored problem
-	}()
-	if err := c.install(to, t, false); err != nil {
-		return nil, fmt.Errorf("install transferred state: %w", err)
-	}
-	if err := c.projectVolume(); err != nil {
-		return nil, fmt.Errorf("transferred state: %w", err)
-	}
-	if err := c.reconcilePlasticStrain(to); err != nil {
-		return nil, fmt.Errorf("transferred state: %w", err)
-	}
-	rr.MapWall = time.Since(t0)
-
-	// The reaction right after the transfer, before any iteration.
-	if _, err := c.settleTransferred(); err != nil {
-		return nil, fmt.Errorf("assembly after transfer: %w", err)
-	}
-	c.Prob.AdoptAssembled()
-	if _, rr.ForceTransfer, err = c.Cfg.Measure(c.Prob); err != nil {
+	if err := next.installTransferred(to, c.Prob.TCommitted); err != nil {
+		next.Prob.Close()
 		return nil, err
 	}
-
-	t0 = time.Now()
-	sopt := c.Cfg.Solver
-	sopt.Dt = math.Min(math.Max(c.Dt, sopt.DtMin), sopt.DtMax)
-	s, err := solver.New(c.Prob, sopt)
-	if err != nil {
-		return nil, err
-	}
-	its, err := c.reequilibrate(s, t)
-	rr.Iterations = its
-	if err != nil {
-		return nil, fmt.Errorf("re-equilibration at load factor %g: %w", t, err)
-	}
-	rr.EquilWall = time.Since(t0)
-	if _, rr.ForceAfter, err = c.Cfg.Measure(c.Prob); err != nil {
-		return nil, err
-	}
-	rr.DofsAfter, rr.ElemsAfter = c.Prob.Dofs.N, len(m.Tri)
-	c.Zone = tf.Zone()
-	c.Remeshes++
-	done = true
-	return rr, nil
+	return next, nil
 }
 
-// reequilibrate brings the transferred state into equilibrium at load
-// factor load: one increment to the same load, or — when that fails (a
+// installTransferred puts the transferred fields into the new problem at
+// load factor t and makes them compatible with the transferred
+// displacement.
+func (c *stage) installTransferred(to *transfer.Fields, t float64) error {
+	if err := c.install(to, t, false); err != nil {
+		return fmt.Errorf("install transferred state: %w", err)
+	}
+	if err := c.Prob.ProjectVolume(); err != nil {
+		return fmt.Errorf("transferred state: %w", err)
+	}
+	if err := c.reconcilePlasticStrain(to); err != nil {
+		return fmt.Errorf("transferred state: %w", err)
+	}
+	return nil
+}
+
+// settleOn evaluates the transferred state on the new stage (repairing
+// the points whose update fails on it), records the force right after the
+// transfer, moves the solver onto the new problem and re-establishes
+// equilibrium at the same load.
+func (c *Cycle) settleOn(next *stage, rr *RemeshRecord) error {
+	if _, err := next.settleTransferred(); err != nil {
+		return fmt.Errorf("assembly after transfer: %w", err)
+	}
+	next.Prob.AdoptAssembled()
+	var err error
+	if _, rr.ForceTransfer, err = c.Cfg.Measure(next.Prob); err != nil {
+		return err
+	}
+	t0 := time.Now()
+	if err := c.rebindSolver(next.Prob); err != nil {
+		return err
+	}
+	its, err := next.reequilibrate(c.solver)
+	rr.Iterations = its
+	if err != nil {
+		return fmt.Errorf("re-equilibration at load factor %g: %w", next.Prob.TCommitted, err)
+	}
+	rr.EquilWall = time.Since(t0)
+	_, rr.ForceAfter, err = c.Cfg.Measure(next.Prob)
+	return err
+}
+
+// adopt makes the re-equilibrated new stage the current one.
+func (c *Cycle) adopt(next *stage, field *size.TipField, rr *RemeshRecord) {
+	rr.DofsAfter, rr.ElemsAfter = next.Prob.Dofs.N, len(next.Mesh.Tri)
+	c.Prob.Close()
+	c.stage = *next
+	c.PeakDofs = max(c.PeakDofs, next.Prob.Dofs.N)
+	c.Zone = field.Zone()
+	c.Remeshes++
+}
+
+// reequilibrate brings the transferred state into equilibrium at the
+// committed load factor: one increment to the same load, or — when that fails (a
 // full Newton solve against the whole out-of-balance force inverts
 // elements at a blunted, softening tip) — by relaxing the out-of-balance
 // force r₀ of the transferred state in steps, R(u) = (1 − s)·r₀ for s
 // rising to 1 (common practice: incremental release of the residual
 // forces after a mesh change). It returns the Newton iterations spent.
-func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
-	st, err := s.Increment(load)
+func (c *stage) reequilibrate(s *solver.Solver) (int, error) {
+	st, err := s.Settle()
 	its := st.Iterations
 	if err == nil {
 		return its, nil
@@ -580,7 +471,7 @@ func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
 	for done < 1 {
 		next := math.Min(1, done+ds)
 		p.SetImbalanceScale(1 - next)
-		st, err := s.Increment(load)
+		st, err := s.Settle()
 		its += st.Iterations
 		if err != nil {
 			if ds /= 2; ds < 1.0/256 {
@@ -591,19 +482,4 @@ func (c *Cycle) reequilibrate(s *solver.Solver, load float64) (int, error) {
 		done = next
 	}
 	return its, nil
-}
-
-// localRegularisation sets ā = p and λ = 0 at the corners of element e in
-// the current and committed unknowns.
-func (c *Cycle) localRegularisation(e int, p float64) {
-	pr := c.Prob
-	for k := 0; k < 3; k++ {
-		n := c.Mesh.Tri[e][k]
-		if d := pr.Dofs.Of(n, fem.Abar); d >= 0 {
-			pr.Committed[d], pr.U[d] = p, p
-		}
-		if d := pr.Dofs.Of(n, fem.Lambda); d >= 0 {
-			pr.Committed[d], pr.U[d] = 0, 0
-		}
-	}
 }

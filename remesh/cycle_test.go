@@ -8,7 +8,10 @@ import (
 	"testing"
 
 	"tearline/criteria"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -23,7 +26,7 @@ type recorder struct {
 	stopErr error
 }
 
-func (r *recorder) Step(s *StepRecord, c *Cycle) error {
+func (r *recorder) Step(s *StepRecord, v View) error {
 	r.steps = append(r.steps, *s)
 	if r.stopAt > 0 && s.Step == r.stopAt {
 		return r.stopErr
@@ -31,7 +34,7 @@ func (r *recorder) Step(s *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (r *recorder) Remesh(s *RemeshRecord, c *Cycle) error {
+func (r *recorder) Remesh(s *RemeshRecord, v View) error {
 	r.remesh = append(r.remesh, *s)
 	return nil
 }
@@ -56,7 +59,7 @@ func elasticSSY(t *testing.T, k float64) CycleConfig {
 	so := solver.DefaultOptions()
 	so.Dt, so.DtMax, so.TEnd = 0.5, 0.5, 1
 	return CycleConfig{
-		Domain: d, Size: SizeOptions{HFine: 0.05, HFar: 2, FineRadius: 0.5},
+		Domain: d, Size: size.Options{HFine: 0.05, HFar: 2, FineRadius: 0.5},
 		Material: mat, F0: 0, Fc: 0.02, FBreak: 1, Length: 0.1,
 		BCs: func(m *fem.Mesh) (fem.BCs, error) {
 			return fem.BCs{
@@ -177,11 +180,11 @@ func plasticSSY(t *testing.T, k, fineRadius float64) (CycleConfig, *material.GTN
 		t.Fatal(err)
 	}
 	cfg.Material, cfg.F0, cfg.Fc, cfg.FBreak, cfg.Length = mat, par.F0, par.FC, par.BreakPorosity(), 0.2
-	cfg.Size = SizeOptions{HFine: 0.1, HFar: 2, FineRadius: fineRadius}
+	cfg.Size = size.Options{HFine: 0.1, HFar: 2, FineRadius: fineRadius}
 	cfg.Adapt = true
-	cfg.Trigger = DefaultTriggerOptions(0.2)
-	cfg.Follow = DefaultFollowOptions(0.2, 2)
-	cfg.Carve = DefaultCarveOptions()
+	cfg.Trigger = trigger.DefaultOptions(0.2)
+	cfg.Follow = size.DefaultFollowOptions(0.2, 2)
+	cfg.Carve = carve.DefaultOptions()
 	cfg.Transfer = transfer.DefaultOptions()
 	cfg.Transfer.F0, cfg.Transfer.FBreak = par.F0, par.BreakPorosity()
 	return cfg, mat, par
@@ -211,7 +214,7 @@ func TestRemeshReaction(t *testing.T) {
 		t.Fatalf("no plastic void growth before the remesh (max f %g)", rec.steps[len(rec.steps)-1].MaxPorosity)
 	}
 	c.Cfg.Adapt = true
-	rr, err := c.remesh(Decision{Reason: "test"})
+	rr, err := c.remesh(trigger.Decision{Reason: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

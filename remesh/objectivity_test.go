@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"tearline/remesh/geom"
+	"tearline/remesh/size"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -93,7 +94,7 @@ func notchedBar(bc barCase) (*barRun, error) {
 	so.EasyIter = 5
 	cfg := CycleConfig{
 		Domain:   d,
-		Size:     SizeOptions{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
+		Size:     size.Options{HFine: bc.H, HFar: v10HFar, FineRadius: 2 * bc.Zone, Ahead: 3 * bc.Zone},
 		FE:       fem.Options{Kinematics: fem.Axisymmetric},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: bc.Ell,
 		Solver: so,
@@ -124,7 +125,7 @@ type barObserver struct {
 	peak float64
 }
 
-func (o *barObserver) Step(r *StepRecord, c *Cycle) error {
+func (o *barObserver) Step(r *StepRecord, v View) error {
 	o.run.Elong = append(o.run.Elong, r.Control)
 	o.run.Force = append(o.run.Force, r.Force)
 	o.peak = math.Max(o.peak, r.Force)
@@ -134,7 +135,7 @@ func (o *barObserver) Step(r *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (o *barObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (o *barObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // bandWidth measures the band f ≥ level about the mirror plane y = 0: twice
 // the area of the region within x ≤ col, y ≤ ylim divided by col (its mean
@@ -441,7 +442,7 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 	so.EasyIter = 5
 	cfg := CycleConfig{
 		Domain:   d,
-		Size:     SizeOptions{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
+		Size:     size.Options{HFine: h, HFar: 0.5, FineRadius: 3 * ell, Ahead: W},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
 		Solver: so,
 	}
@@ -479,7 +480,8 @@ type columnObserver struct {
 	w, at                float64
 }
 
-func (o *columnObserver) Step(r *StepRecord, c *Cycle) error {
+func (o *columnObserver) Step(r *StepRecord, v View) error {
+	c := v.c
 	if r.MaxPorosity < o.fBreak {
 		return nil
 	}
@@ -488,7 +490,7 @@ func (o *columnObserver) Step(r *StepRecord, c *Cycle) error {
 	return solver.ErrStop
 }
 
-func (o *columnObserver) Remesh(*RemeshRecord, *Cycle) error { return nil }
+func (o *columnObserver) Remesh(*RemeshRecord, View) error { return nil }
 
 // pulledEdge returns the boundary conditions and the measure of a specimen
 // whose edge label is displaced by uy·t in y (fix says which components

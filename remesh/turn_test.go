@@ -8,7 +8,10 @@ import (
 	"time"
 
 	"tearline/criteria"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -24,7 +27,7 @@ type turnCase struct {
 	StopDa  float64 // crack growth at which the run ends, mm
 	Opening float64 // rate of the controlled opening, mm per unit τ
 	HFar    float64
-	// Ahead, Width, Spread: the follow zone (FollowOptions, in ℓ); Wake
+	// Ahead, Width, Spread: the follow zone (size.FollowOptions, in ℓ); Wake
 	// the wake size in h_fine.
 	Ahead, Width, Spread, Wake float64
 }
@@ -74,7 +77,7 @@ func turnConfig(t testing.TB, tc turnCase) CycleConfig {
 	so.EasyIter = 5
 	cfg := CycleConfig{
 		Domain:   d,
-		Size:     SizeOptions{HFine: hFine, HFar: tc.HFar, FineRadius: 0.15, Grading: 0.3},
+		Size:     size.Options{HFine: hFine, HFar: tc.HFar, FineRadius: 0.15, Grading: 0.3},
 		Material: mat, F0: par.F0, Fc: par.FC, FBreak: par.BreakPorosity(), Length: ell,
 		BCs: func(m *fem.Mesh) (fem.BCs, error) {
 			return fem.BCs{Displacements: []fem.Displacement{{Label: "remote", Fix: [2]bool{true, true},
@@ -95,9 +98,9 @@ func turnConfig(t testing.TB, tc turnCase) CycleConfig {
 		},
 		Solver:   so,
 		Adapt:    true,
-		Trigger:  DefaultTriggerOptions(ell),
-		Follow:   DefaultFollowOptions(ell, tc.HFar),
-		Carve:    DefaultCarveOptions(),
+		Trigger:  trigger.DefaultOptions(ell),
+		Follow:   size.DefaultFollowOptions(ell, tc.HFar),
+		Carve:    carve.DefaultOptions(),
 		Transfer: transfer.DefaultOptions(),
 		StopDa:   tc.StopDa,
 	}
@@ -125,7 +128,8 @@ type turnWatch struct {
 	start           time.Time
 }
 
-func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
+func (w *turnWatch) Step(r *StepRecord, v View) error {
+	c := v.c
 	w.steps = append(w.steps, *r)
 	for _, tp := range c.Tips {
 		dep := c.Zone.Depth(tp.X)
@@ -136,7 +140,7 @@ func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
 	}
 	gp := c.GaussPoints()
 	for e := range c.Mesh.Tri {
-		holds := c.Prob.Broken(e)
+		holds := c.Prob.Released(e)
 		for i := 0; i < gp.PerElement && !holds; i++ {
 			s := &gp.At(e, i).State
 			holds = s.Broken || s.F >= w.fBreak
@@ -144,7 +148,7 @@ func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
 		if !holds {
 			continue
 		}
-		h := LongestEdge(c.Mesh, e) / c.Zone.HFine
+		h := trigger.LongestEdge(c.Mesh, e) / c.Zone.HFine
 		if h > w.worst {
 			w.worst, w.worstStep = h, r.Step
 		}
@@ -157,7 +161,8 @@ func (w *turnWatch) Step(r *StepRecord, c *Cycle) error {
 	return nil
 }
 
-func (w *turnWatch) Remesh(r *RemeshRecord, c *Cycle) error {
+func (w *turnWatch) Remesh(r *RemeshRecord, v View) error {
+	c := v.c
 	w.remeshes = append(w.remeshes, *r)
 	w.remeshTipY = append(w.remeshTipY, c.Tips[0].X[1])
 	w.t.Logf("remesh %d at step %d (Δa %.4f): %s; dofs %d → %d, removed %d, %d iterations; geometry %v mesh %v map %v equilibrium %v",
@@ -175,10 +180,10 @@ func (w *turnWatch) Remesh(r *RemeshRecord, c *Cycle) error {
 //     of its path and its growth direction make at least 10° with the x
 //     axis;
 //   - at every converged step every tip is inside the fine zone
-//     (FineZone.Depth ≥ 0);
+//     (size.FineZone.Depth ≥ 0);
 //   - at every converged step no element holding broken material (a
 //     point with f ≥ f_break, or a broken element) is larger than
-//     1.5·h_fine: the trigger's own size tolerance (DefaultTriggerOptions
+//     1.5·h_fine: the trigger's own size tolerance (trigger.DefaultOptions
 //     SizeTol; the mesher's longest edges where the field asks for h_fine
 //     stay at or below h_fine, so 1.5 leaves room for nothing coarser —
 //     the wake size here is 2·h_fine).

@@ -34,7 +34,7 @@ func BenchmarkNewtonIteration(b *testing.B) {
 	if err := p.Assemble(true); err != nil {
 		b.Fatal(err)
 	}
-	lu := &Equilibrated{Inner: &sparse.LU{}}
+	lu := &sparse.LU{}
 	if err := lu.Analyze(p.K); err != nil {
 		b.Fatal(err)
 	}

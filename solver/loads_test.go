@@ -145,7 +145,7 @@ func TestBrokenElements(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, e := range broken {
-		if !p.Broken(e) {
+		if !p.Released(e) {
 			t.Errorf("element %d not removed", e)
 		}
 	}

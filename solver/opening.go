@@ -44,10 +44,33 @@ func (c *Control) Value(u []float64) float64 {
 // set so that the committed unknowns satisfy the constraint at tau; the
 // previous increment is forgotten.
 func (s *Solver) SetControl(c *Control, tau float64) error {
+	s.pending = nil
 	if c == nil {
 		s.ctl = nil
 		return nil
 	}
+	if err := s.checkControl(c); err != nil {
+		return err
+	}
+	p := s.P
+	if err := p.TrackLoadRate(); err != nil {
+		return err
+	}
+	cc := *c
+	cc.Dofs = append([]int(nil), c.Dofs...)
+	cc.Weights = append([]float64(nil), c.Weights...)
+	cc.Offset = cc.Value(p.Committed) - cc.Rate*tau
+	s.ctl = &cc
+	s.tauC = tau
+	s.dtPrev = 0
+	if s.x2 == nil {
+		s.x2 = make([]float64, p.Dofs.N)
+	}
+	return nil
+}
+
+// checkControl reports what makes c unusable on the solver's problem.
+func (s *Solver) checkControl(c *Control) error {
 	p := s.P
 	if len(c.Dofs) == 0 || len(c.Dofs) != len(c.Weights) {
 		return fmt.Errorf("solver: control has %d unknowns and %d weights; need as many, at least one", len(c.Dofs), len(c.Weights))
@@ -66,29 +89,16 @@ func (s *Solver) SetControl(c *Control, tau float64) error {
 			return fmt.Errorf("solver: control weight %d is %g; must be finite and non-zero", i, w)
 		}
 	}
-	if err := p.TrackLoadRate(); err != nil {
-		return err
-	}
-	cc := *c
-	cc.Dofs = append([]int(nil), c.Dofs...)
-	cc.Weights = append([]float64(nil), c.Weights...)
-	cc.Offset = cc.Value(p.Committed) - cc.Rate*tau
-	s.ctl = &cc
-	s.tauC = tau
-	s.dtPrev = 0
-	if s.x2 == nil {
-		s.x2 = make([]float64, p.Dofs.N)
-	}
 	return nil
 }
 
 // Controlled returns the control in use (nil under load-factor control).
 func (s *Solver) Controlled() *Control { return s.ctl }
 
-// Time is the committed pseudo-time: τ under a Control, else the
-// problem's committed load factor.
+// Time is the committed pseudo-time: τ under a Control (or one waiting to
+// be anchored after a Rebind), else the problem's committed load factor.
 func (s *Solver) Time() float64 {
-	if s.ctl != nil {
+	if s.ctl != nil || s.pending != nil {
 		return s.tauC
 	}
 	return s.P.TCommitted

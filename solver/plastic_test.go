@@ -331,7 +331,7 @@ func TestGTNBreakingRun(t *testing.T) {
 	}
 	broken := 0
 	for e := range p.Mesh.Tri {
-		if p.Broken(e) {
+		if p.Released(e) {
 			broken++
 		}
 	}

@@ -115,8 +115,8 @@ func TestElementRelease(t *testing.T) {
 			}
 			released := c.steps > 0
 			for _, e := range col {
-				if p.Broken(e) != released {
-					t.Errorf("element %d out of the assembly = %v, want %v", e, p.Broken(e), released)
+				if p.Released(e) != released {
+					t.Errorf("element %d out of the assembly = %v, want %v", e, p.Released(e), released)
 				}
 			}
 			// Released elements stay listed (a checkpoint restores them as
@@ -181,7 +181,7 @@ func TestSetReleasesBadInput(t *testing.T) {
 	if err := p.SetReleases([]fem.Release{{Elem: 2, Done: 1}}); err != nil {
 		t.Fatal(err)
 	}
-	if !p.Broken(2) || len(p.Releases()) != 1 {
-		t.Errorf("restored release: element 2 out of the assembly %v, %d releasing", p.Broken(2), len(p.Releases()))
+	if !p.Released(2) || len(p.Releases()) != 1 {
+		t.Errorf("restored release: element 2 out of the assembly %v, %d releasing", p.Released(2), len(p.Releases()))
 	}
 }

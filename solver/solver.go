@@ -72,8 +72,8 @@ type Options struct {
 	// increments) instead of the last converged state; retries after a
 	// failure start from the converged state.
 	Extrapolate bool
-	// Linear is the linear solver; nil means an equilibrated sparse.LU
-	// with its default options.
+	// Linear is the linear solver; nil means a sparse.LU with its default
+	// options (which equilibrates the tangent's rows and columns).
 	Linear LinearSolver
 	// StrainCap, if > 0, limits a Newton correction to at most this
 	// change of strain: where the relative displacement correction of the
@@ -202,9 +202,12 @@ type Solver struct {
 	dtPrev   float64   // and its time increment (0: none usable)
 	dLamPrev float64   // and its load-factor increment (under a Control)
 
-	ctl  *Control  // nil: the pseudo-time is the load factor
-	tauC float64   // committed pseudo-time under a Control
-	x2   []float64 // response to the load rate (bordered solve)
+	ctl *Control // nil: the pseudo-time is the load factor
+	// pending is the control of a problem the solver was rebound to,
+	// anchored once the transferred state is settled (see Rebind).
+	pending *Control
+	tauC    float64   // committed pseudo-time under a Control
+	x2      []float64 // response to the load rate (bordered solve)
 }
 
 // New returns a solver for p.
@@ -217,15 +220,22 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 	}
 	s := &Solver{P: p, Opt: opt, lin: opt.Linear, dt: opt.Dt}
 	if s.lin == nil {
-		s.lin = &Equilibrated{Inner: &sparse.LU{}}
+		s.lin = defaultLinear()
 	}
-	n := p.Dofs.N
+	s.allocate(p.Dofs.N)
+	s.history = make([]float64, 0, opt.MaxIter+1)
+	return s, nil
+}
+
+// defaultLinear is the linear solver used when Options.Linear is nil.
+func defaultLinear() LinearSolver { return &sparse.LU{} }
+
+// allocate sizes the work vectors for n unknowns.
+func (s *Solver) allocate(n int) {
 	s.du = make([]float64, n)
 	s.u0 = make([]float64, n)
 	s.rBase = make([]float64, n)
 	s.dPrev = make([]float64, n)
-	s.history = make([]float64, 0, opt.MaxIter+1)
-	return s, nil
 }
 
 // attemptError is a failed Newton attempt (the solver cuts back).
@@ -440,7 +450,7 @@ func (s *Solver) strainCorrection() float64 {
 	p := s.P
 	var m float64
 	for e, t := range p.Mesh.Tri {
-		if p.Broken(e) {
+		if p.Released(e) {
 			continue
 		}
 		for k := 0; k < 3; k++ {
@@ -548,62 +558,92 @@ func (s *Solver) converged(withCorr bool) bool {
 	return true
 }
 
-// Run advances from the committed time to Opt.TEnd with adaptive
-// increments, calling each (if not nil) after every converged step. It
-// returns a Result with Status Stopped and a Reason when the increment
-// falls below DtMin, MaxSteps is reached, or each returns ErrStop; other
-// errors from each end the run and are returned.
-func (s *Solver) Run(each func(Step) error) (Result, error) {
+// StallError is returned by Next when the increment has been cut back
+// below Opt.DtMin: the problem stays at its last converged state.
+type StallError struct {
+	T, Dt    float64 // committed pseudo-time and the increment last tried
+	DtMin    float64
+	Cutbacks int   // failed attempts of the step
+	Last     error // why the last attempt failed
+}
+
+func (e *StallError) Error() string {
+	return fmt.Sprintf("increment %.3g below the minimum %.3g at t = %g after %d cut-backs; last failure: %v", e.Dt, e.DtMin, e.T, e.Cutbacks, e.Last)
+}
+
+func (e *StallError) Unwrap() error { return e.Last }
+
+// Done reports whether the committed pseudo-time has reached Opt.TEnd.
+func (s *Solver) Done() bool { return s.Time() >= s.Opt.TEnd*(1-1e-12) }
+
+// Next advances by one converged increment: it tries the current increment
+// size (no further than Opt.TEnd), cuts it back by Opt.Cut and retries from
+// the committed state after every failure, and returns a *StallError once
+// it falls below Opt.DtMin. After an easy step (at most Opt.EasyIter
+// iterations, no cut-back) the next increment grows by Opt.Grow, up to
+// Opt.DtMax.
+func (s *Solver) Next() (Step, error) {
+	if err := s.anchor(); err != nil {
+		return Step{}, err
+	}
 	o := s.Opt
-	res := Result{T: s.Time()}
+	start := time.Now()
+	dt := math.Min(s.dt, o.TEnd-s.Time())
 	cuts := 0
-	lastCut := false
 	for {
-		if s.Time() >= o.TEnd*(1-1e-12) {
+		st, err := s.Increment(s.Time() + dt)
+		if err == nil {
+			st.Cutbacks = cuts
+			st.Wall = time.Since(start)
+			if st.Iterations <= o.EasyIter && cuts == 0 {
+				s.dt = math.Min(dt*o.Grow, o.DtMax)
+			} else {
+				s.dt = dt
+			}
+			return st, nil
+		}
+		if o.Failed != nil {
+			o.Failed(s.Time(), dt, err)
+		}
+		cuts++
+		dt *= o.Cut
+		s.dt = dt
+		if dt < o.DtMin {
+			return Step{T: s.Time(), Cutbacks: cuts, Wall: time.Since(start)}, &StallError{T: s.Time(), Dt: dt, DtMin: o.DtMin, Cutbacks: cuts, Last: err}
+		}
+	}
+}
+
+// Run advances from the committed time to Opt.TEnd by Next, calling each
+// (if not nil) after every converged step. It returns a Result with
+// Status Stopped and a Reason when the increment falls below DtMin,
+// MaxSteps is reached, or each returns ErrStop; other errors from each
+// end the run and are returned.
+func (s *Solver) Run(each func(Step) error) (Result, error) {
+	res := Result{T: s.Time()}
+	for {
+		if s.Done() {
 			res.Status = Completed
 			return res, nil
 		}
-		if res.Steps >= o.MaxSteps {
-			res.Status, res.Reason = Stopped, fmt.Sprintf("step limit %d reached at t = %g", o.MaxSteps, s.Time())
+		if res.Steps >= s.Opt.MaxSteps {
+			res.Status, res.Reason = Stopped, fmt.Sprintf("step limit %d reached at t = %g", s.Opt.MaxSteps, s.Time())
 			return res, nil
 		}
-		start := time.Now()
-		dt := math.Min(s.dt, o.TEnd-s.Time())
-		var st Step
-		var err error
-		for {
-			st, err = s.Increment(s.Time() + dt)
-			if err == nil {
-				break
-			}
-			if o.Failed != nil {
-				o.Failed(s.Time(), dt, err)
-			}
-			res.Cutbacks++
-			cuts++
-			lastCut = true
-			dt *= o.Cut
-			s.dt = dt
-			if dt < o.DtMin {
-				res.Status = Stopped
-				res.Reason = fmt.Sprintf("increment %.3g below the minimum %.3g at t = %g after %d cut-backs; last failure: %v", dt, o.DtMin, s.Time(), cuts, err)
-				res.T = s.Time()
-				return res, nil
-			}
+		st, err := s.Next()
+		res.Cutbacks += st.Cutbacks
+		res.T = s.Time()
+		var stall *StallError
+		if errors.As(err, &stall) {
+			res.Status, res.Reason = Stopped, stall.Error()
+			return res, nil
+		}
+		if err != nil {
+			return res, err
 		}
 		res.Steps++
 		res.Iterations += st.Iterations
-		res.T = s.Time()
 		st.Index = res.Steps
-		st.Cutbacks = cuts
-		st.Wall = time.Since(start)
-		cuts = 0
-		if st.Iterations <= o.EasyIter && !lastCut {
-			s.dt = math.Min(dt*o.Grow, o.DtMax)
-		} else {
-			s.dt = dt
-		}
-		lastCut = false
 		if each != nil {
 			if err := each(st); err != nil {
 				if errors.Is(err, ErrStop) {
@@ -614,6 +654,67 @@ func (s *Solver) Run(each func(Step) error) (Result, error) {
 			}
 		}
 	}
+}
+
+// Rebind moves the solver onto problem p — the same run on a new mesh,
+// whose committed state was transferred from the old one — keeping the
+// pseudo-time and the next increment size. The previous increment is
+// forgotten (its unknowns belong to the old mesh) and the new tangent's
+// pattern is analysed at the next factorisation. ctl (nil: load-factor
+// control) is the new mesh's control: it is checked now and anchored at
+// the committed state once that is in equilibrium (see Settle), by the
+// first Next.
+func (s *Solver) Rebind(p *fem.Problem, ctl *Control) error {
+	if p == nil {
+		return errors.New("solver: rebind to a nil problem")
+	}
+	tau := s.Time()
+	s.P = p
+	s.lin = s.Opt.Linear
+	if s.lin == nil {
+		s.lin = defaultLinear()
+	}
+	s.analysed = false
+	s.allocate(p.Dofs.N)
+	s.dtPrev, s.dLamPrev = 0, 0
+	s.ctl, s.x2, s.pending = nil, nil, nil
+	if ctl == nil {
+		return nil
+	}
+	if err := s.checkControl(ctl); err != nil {
+		return err
+	}
+	s.pending, s.tauC = ctl, tau
+	return nil
+}
+
+// anchor puts a control waiting since Rebind into use at the committed
+// state. The tangent is analysed anew for the first increment under it:
+// the LU plans its factorisation from the first matrix after an analysis,
+// and the increments on a new mesh should not depend on the matrices of
+// its re-equilibration.
+func (s *Solver) anchor() error {
+	if s.pending == nil {
+		return nil
+	}
+	s.analysed = false
+	return s.SetControl(s.pending, s.tauC)
+}
+
+// Settle re-establishes equilibrium at the committed load factor after the
+// state was changed from outside (a transfer): one attempt at fixed load
+// under load-factor control, without cut-backs; the pseudo-time does not
+// move. Call it again (relaxing an imposed imbalance, say) until the state
+// is settled; a control waiting since Rebind is anchored by the first Next.
+func (s *Solver) Settle() (Step, error) {
+	if s.ctl != nil {
+		return Step{}, errors.New("solver: Settle is for a rebound solver, before its control is anchored")
+	}
+	pending := s.pending
+	s.pending = nil // the increment is in the load factor
+	st, err := s.Increment(s.P.TCommitted)
+	s.pending = pending
+	return st, err
 }
 
 // NextDt returns the increment the next step will try.

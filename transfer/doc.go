@@ -6,12 +6,14 @@
 // # Location
 //
 // A Locator indexes the old triangles' bounding boxes in an R-tree
-// (github.com/tidwall/rtree). Locate finds the old triangle that contains a
-// point by an exact point-in-triangle test on the corner nodes: the three
-// orientation signs are computed with a floating-point filter and, when the
-// filter cannot decide, exactly — by an error-free split of the products when
-// the coordinate differences are exact, else in rational arithmetic (the
-// adaptive-predicate idea of Shewchuk 1997, Discrete Comput. Geom. 18).
+// (plane.Locator on github.com/tidwall/rtree). Locate finds the old triangle
+// that contains a point by an exact point-in-triangle test on the corner
+// nodes: the three orientation signs come from plane.Orient, a
+// floating-point filter with an exact evaluation when the filter cannot
+// decide (the adaptive predicates of Shewchuk 1997, Discrete Comput.
+// Geom. 18). Among several triangles that contain the point (on a shared
+// edge or vertex) the one in which it lies deepest wins, then the lowest
+// index.
 //
 // Containment is decided on the straight-sided triangle of the corner nodes:
 // a curved boundary element is replaced by its chord. In a curved element (a
@@ -38,9 +40,11 @@
 //
 // # Gauss-point state
 //
-// The plastic strain Ep (4 components), p, f and any extra history arrays are
-// recovered as continuous linear fields on the old corner nodes and evaluated
-// at the new Gauss points. Two recoveries are offered:
+// The plastic strain Ep (4 components), p, f and, when the Fields carry
+// them, the components of the Gauss-point data (GaussData: stress work W,
+// deformation gradient F, first Piola–Kirchhoff stress P, elastic strain
+// Eᵉ) are recovered one by one as continuous linear fields on the old corner
+// nodes and evaluated at the new Gauss points. Two recoveries are offered:
 //
 //   - PatchRecovery (default): for every old corner node a linear polynomial
 //     is fitted by least squares to the Gauss-point values of the old
@@ -69,20 +73,20 @@
 // ḟ = (1−f) tr Ėᵖ implies (Gurson 1977; Tvergaard 1981) — not valid with
 // nucleation, hence off by default. A new point whose nearest old Gauss point
 // (within the old triangle that contains it) is broken stays broken and takes
-// that point's state and history verbatim.
+// that point's state and Gauss-point data verbatim.
 //
 // # Unchanged elements
 //
 // A new triangle whose three corner coordinates equal those of an old
 // triangle exactly, in any rotation of the vertex order, takes that
-// triangle's Gauss-point states and history verbatim: a rotation of the
+// triangle's Gauss-point states and data verbatim: a rotation of the
 // vertices permutes the area coordinates, and the symmetric rule of
 // fem.ElementRule maps onto itself under it, so every new point has an old
 // point with identical area coordinates.
 //
 // # Record
 //
-// Map returns a Record: maximum porosity, ∫p dV and ∫ of every history array
+// Map returns a Record: maximum porosity, ∫p dV and the stress work ∫W dV
 // (area weight, or 2πr dA in axisymmetry) before and after, the counts of
 // verbatim, projected, extrapolated and broken points, the clamps applied,
 // and the wall time of every phase. Reaction forces before and after
@@ -92,7 +96,7 @@
 //
 //	to, rec, err := transfer.Map(oldMesh, &transfer.Fields{
 //		U: u, Linear: [][]float64{theta, pres, abar, lambda},
-//		State: states, History: [][]float64{w},
+//		State: states, Gauss: data,
 //	}, newMesh, opt)
 //
 // Location alone:

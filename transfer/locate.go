@@ -6,22 +6,21 @@ import (
 	"runtime"
 	"sync"
 
-	"github.com/tidwall/rtree"
-
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
 // Locator finds the old triangle that contains a point. It indexes the
-// bounding boxes of the triangles' corner nodes in an R-tree; a mesh
-// change after NewLocator is not seen. Containment is tested on the chords
-// (corner nodes); area coordinates in curved triangles come from the inverse
-// isoparametric map (see the package documentation). Queries are safe for
-// concurrent use.
+// triangles' corner nodes in a plane.Locator (an R-tree of their bounding
+// boxes); a mesh change after NewLocator is not seen. Containment is tested
+// on the chords (corner nodes); area coordinates in curved triangles come
+// from the inverse isoparametric map (see the package documentation).
+// Queries are safe for concurrent use.
 type Locator struct {
-	mesh *fem.Mesh
-	tree rtree.RTreeG[int]
-	tol  float64
-	size []float64 // longest edge of every triangle
+	mesh  *fem.Mesh
+	index *plane.Locator
+	tol   float64
+	size  []float64 // longest edge of every triangle
 	// node maps the coordinates of every old node to its index, or to −1
 	// when several nodes share them (crack faces).
 	node map[[2]uint64]int
@@ -69,12 +68,13 @@ func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
 			lc.node[k] = n
 		}
 	}
+	lc.index = plane.NewLocator(func(e int) [3][2]float64 {
+		t := m.Tri[e]
+		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
+	}, len(m.Tri))
 	for e, t := range m.Tri {
 		a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
-		lo := [2]float64{math.Min(a[0], math.Min(b[0], c[0])), math.Min(a[1], math.Min(b[1], c[1]))}
-		hi := [2]float64{math.Max(a[0], math.Max(b[0], c[0])), math.Max(a[1], math.Max(b[1], c[1]))}
-		lc.tree.Insert(lo, hi, e)
-		lc.size[e] = math.Sqrt(math.Max(dist2(a, b), math.Max(dist2(b, c), dist2(c, a))))
+		lc.size[e] = math.Sqrt(math.Max(plane.DistSq(a, b), math.Max(plane.DistSq(b, c), plane.DistSq(c, a))))
 		for k := 0; k < 3; k++ {
 			p, q, mid := m.X[t[k]], m.X[t[(k+1)%3]], m.X[t[3+k]]
 			if math.Hypot(mid[0]-0.5*(p[0]+q[0]), mid[1]-0.5*(p[1]+q[1])) > 1e-12*lc.size[e] {
@@ -175,53 +175,25 @@ func (lc *Locator) locate(p [2]float64, toward *[2]float64) Hit {
 	if !finite(p[0]) || !finite(p[1]) || len(lc.mesh.Tri) == 0 {
 		return miss
 	}
-	best, bestDepth, bestTie := -1, math.Inf(-1), math.Inf(-1)
-	var bestL [3]float64
-	lc.tree.Search(p, p, func(_, _ [2]float64, e int) bool {
-		if !lc.contains(e, p) {
-			return true
-		}
-		l := lc.bary(e, p)
-		depth := math.Min(l[0], math.Min(l[1], l[2]))
-		tie := 0.0
-		if toward != nil {
-			lt := lc.bary(e, *toward)
-			tie = math.Min(lt[0], math.Min(lt[1], lt[2]))
-			depth, tie = tie, depth
-		}
-		if depth > bestDepth || (depth == bestDepth && (tie > bestTie || (tie == bestTie && e < best))) {
-			best, bestDepth, bestTie, bestL = e, depth, tie, l
-		}
-		return true
-	})
-	if best >= 0 {
-		h := Hit{Elem: best, L: clampL(bestL), Inside: true, Node: -1}
-		if lc.curved[best] {
-			h.L, h.Inside = lc.isoparametric(best, p, h.L, true)
+	var (
+		e  int
+		l  [3]float64
+		ok bool
+	)
+	if toward != nil {
+		e, l, ok = lc.index.FindToward(p, *toward)
+	} else {
+		e, l, ok = lc.index.Find(p)
+	}
+	if ok {
+		h := Hit{Elem: e, L: l, Inside: true, Node: -1}
+		if lc.curved[e] {
+			h.L, h.Inside = lc.isoparametric(e, p, h.L, true)
 		}
 		return h
 	}
-	// Nearest triangle: the R-tree returns items by increasing distance
-	// (box distance as the lower bound for nodes, the exact point–triangle
-	// distance for items).
-	near, nearD2 := -1, math.Inf(1)
-	var nearL [3]float64
-	lc.tree.Nearby(
-		rtree.BoxDist[float64, int](p, p, func(_, _ [2]float64, e int) float64 {
-			d2, _ := lc.nearest(e, p)
-			return d2
-		}),
-		func(_, _ [2]float64, e int, d2 float64) bool {
-			if near >= 0 && d2 > nearD2 {
-				return false
-			}
-			if near < 0 || e < near { // equal distances: lowest index
-				_, l := lc.nearest(e, p)
-				near, nearD2, nearL = e, d2, l
-			}
-			return true
-		})
-	if near < 0 {
+	near, nearD2, nearL, ok := lc.index.Nearest(p)
+	if !ok {
 		return miss
 	}
 	h := Hit{Elem: near, L: nearL, Inside: math.Sqrt(nearD2) <= lc.tol*lc.size[near], Node: -1}
@@ -264,7 +236,7 @@ func (lc *Locator) isoparametric(e int, p [2]float64, l0 [3]float64, inside0 boo
 			// beyond the tolerance (relative to the element size, as for
 			// straight-sided triangles).
 			in := math.Min(l[0], math.Min(l[1], l[2])) >= -lc.tol
-			return clampL(l), in
+			return plane.ClampBary(l), in
 		}
 		det := j00*j11 - j01*j10
 		if !(math.Abs(det) > 0) {
@@ -277,66 +249,6 @@ func (lc *Locator) isoparametric(e int, p [2]float64, l0 [3]float64, inside0 boo
 		}
 	}
 	return l0, inside0
-}
-
-// contains reports whether the closed straight-sided triangle e contains p,
-// by exact orientation signs (vertices are counter-clockwise).
-func (lc *Locator) contains(e int, p [2]float64) bool {
-	t := lc.mesh.Tri[e]
-	a, b, c := lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]]
-	return orient(a, b, p) >= 0 && orient(b, c, p) >= 0 && orient(c, a, p) >= 0
-}
-
-func (lc *Locator) bary(e int, p [2]float64) [3]float64 {
-	t := lc.mesh.Tri[e]
-	return fem.Barycentric(p, lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]])
-}
-
-// nearest returns the squared distance from p to triangle e and the area
-// coordinates of the nearest point of e (p itself when e contains it).
-func (lc *Locator) nearest(e int, p [2]float64) (float64, [3]float64) {
-	if lc.contains(e, p) {
-		return 0, clampL(lc.bary(e, p))
-	}
-	t := lc.mesh.Tri[e]
-	v := [3][2]float64{lc.mesh.X[t[0]], lc.mesh.X[t[1]], lc.mesh.X[t[2]]}
-	bestD2 := math.Inf(1)
-	var bestL [3]float64
-	for k := 0; k < 3; k++ {
-		a, b := v[k], v[(k+1)%3]
-		ab := [2]float64{b[0] - a[0], b[1] - a[1]}
-		s := ((p[0]-a[0])*ab[0] + (p[1]-a[1])*ab[1]) / (ab[0]*ab[0] + ab[1]*ab[1])
-		s = math.Max(0, math.Min(1, s))
-		q := [2]float64{a[0] + s*ab[0], a[1] + s*ab[1]}
-		if d2 := dist2(p, q); d2 < bestD2 {
-			bestD2 = d2
-			bestL = [3]float64{}
-			bestL[k], bestL[(k+1)%3] = 1-s, s
-		}
-	}
-	return bestD2, bestL
-}
-
-// clampL removes round-off negatives from area coordinates and renormalises
-// them to sum to one.
-func clampL(l [3]float64) [3]float64 {
-	if l[0] >= 0 && l[1] >= 0 && l[2] >= 0 {
-		return l
-	}
-	s := 0.0
-	for k := range l {
-		l[k] = math.Max(l[k], 0)
-		s += l[k]
-	}
-	for k := range l {
-		l[k] /= s
-	}
-	return l
-}
-
-func dist2(a, b [2]float64) float64 {
-	dx, dy := a[0]-b[0], a[1]-b[1]
-	return dx*dx + dy*dy
 }
 
 // pointKey is the bit pattern of a position (−0 read as +0).

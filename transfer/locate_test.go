@@ -2,95 +2,19 @@ package transfer
 
 import (
 	"math"
-	"math/rand/v2"
 	"testing"
 
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
-// TestOrientNearDegenerate checks the orientation sign on the classic
-// near-collinear grid of Kettner, Mehlhorn, Pion, Schirra & Yap 2008
-// ("Classroom examples of robustness problems in geometric computations",
-// Comput. Geom. 40): p = (0.5 + i·2⁻⁵³, 0.5 + j·2⁻⁵³), q = (12, 12),
-// r = (24, 24). q and r lie on the line y = x, so p is left of q→r exactly
-// when its y exceeds its x (closed form): sign = sign(j − i).
-func TestOrientNearDegenerate(t *testing.T) {
-	q, r := [2]float64{12, 12}, [2]float64{24, 24}
-	naiveWrong := 0
-	for i := 0; i < 64; i++ {
-		for j := 0; j < 64; j++ {
-			p := [2]float64{0.5 + float64(i)*epsilon, 0.5 + float64(j)*epsilon}
-			// 0.5 + k·2⁻⁵³ is exact (the ulp of 0.5 is 2⁻⁵³); skip any that is not.
-			if p[0]-0.5 != float64(i)*epsilon || p[1]-0.5 != float64(j)*epsilon {
-				continue
-			}
-			want := sign(float64(j - i))
-			if got := sign(orient(p, q, r)); got != want {
-				t.Fatalf("orient(%v, q, r) sign %d, want %d", p, got, want)
-			}
-			naive := (q[0]-p[0])*(r[1]-p[1]) - (q[1]-p[1])*(r[0]-p[0])
-			if sign(naive) != want {
-				naiveWrong++
-			}
-		}
-	}
-	t.Logf("plain floating-point orientation wrong on %d of the grid points; robust one on none", naiveWrong)
-}
-
-// TestOrientAgainstRational compares the orientation sign with exact
-// rational arithmetic (math/big) on near-collinear triples: points on lines
-// through dyadic and non-dyadic coordinates, moved by a few ulps, small
-// integers and huge and tiny magnitudes (exact differences and inexact ones,
-// underflowing products).
-func TestOrientAgainstRational(t *testing.T) {
-	rng := rand.New(rand.NewPCG(4, 4))
-	ulps := func(x float64, k int) float64 {
-		for ; k > 0; k-- {
-			x = math.Nextafter(x, math.Inf(1))
-		}
-		for ; k < 0; k++ {
-			x = math.Nextafter(x, math.Inf(-1))
-		}
-		return x
-	}
-	for _, sc := range []float64{1, 1e-3, 1e8, 1e-160, 1e150} {
-		for i := 0; i < 4000; i++ {
-			a := [2]float64{sc * rng.Float64(), sc * rng.Float64()}
-			if i%3 == 0 {
-				a = [2]float64{sc * float64(rng.IntN(9)) / 8, sc * float64(rng.IntN(9)) / 8}
-			}
-			d := [2]float64{sc * (rng.Float64() - 0.5), sc * (rng.Float64() - 0.5)}
-			s1, s2 := rng.Float64(), 1+rng.Float64()
-			b := [2]float64{a[0] + s1*d[0], a[1] + s1*d[1]}
-			c := [2]float64{a[0] + s2*d[0], a[1] + s2*d[1]}
-			b[rng.IntN(2)] = ulps(b[rng.IntN(2)], rng.IntN(5)-2)
-			if i%5 == 0 {
-				c = b
-			}
-			if got, want := sign(orient(a, b, c)), sign(orientExact(a, b, c)); got != want {
-				t.Fatalf("orient(%v, %v, %v) sign %d, exact %d", a, b, c, got, want)
-			}
-		}
-	}
-}
-
-func sign(x float64) int {
-	switch {
-	case x > 0:
-		return 1
-	case x < 0:
-		return -1
-	}
-	return 0
-}
-
 // bruteContains is the reference point-in-triangle test: exact orientation
-// over every triangle.
+// (plane.Orient, checked against rational arithmetic in its package).
 func bruteContains(m *fem.Mesh, e int, p [2]float64) bool {
 	t := m.Tri[e]
 	a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
-	return orientExact(a, b, p) >= 0 && orientExact(b, c, p) >= 0 && orientExact(c, a, p) >= 0
+	return plane.Orient(a, b, p) >= 0 && plane.Orient(b, c, p) >= 0 && plane.Orient(c, a, p) >= 0
 }
 
 // bruteDistance is the reference distance from p to the mesh: the minimum
@@ -103,7 +27,7 @@ func bruteDistance(m *fem.Mesh, p [2]float64) float64 {
 		}
 		for k := 0; k < 3; k++ {
 			a, b := m.X[t[k]], m.X[t[(k+1)%3]]
-			s := ((p[0]-a[0])*(b[0]-a[0]) + (p[1]-a[1])*(b[1]-a[1])) / dist2(a, b)
+			s := ((p[0]-a[0])*(b[0]-a[0]) + (p[1]-a[1])*(b[1]-a[1])) / plane.DistSq(a, b)
 			s = math.Max(0, math.Min(1, s))
 			d = math.Min(d, math.Hypot(p[0]-a[0]-s*(b[0]-a[0]), p[1]-a[1]-s*(b[1]-a[1])))
 		}
@@ -147,7 +71,7 @@ func checkHit(t *testing.T, m *fem.Mesh, p [2]float64, e int, l [3]float64, insi
 	size := 0.0
 	tr := m.Tri[e]
 	for k := 0; k < 3; k++ {
-		size = math.Max(size, math.Sqrt(dist2(m.X[tr[k]], m.X[tr[(k+1)%3]])))
+		size = math.Max(size, math.Sqrt(plane.DistSq(m.X[tr[k]], m.X[tr[(k+1)%3]])))
 	}
 	if want := d <= tol*size; inside != want {
 		t.Fatalf("Locate(%v): inside %v at distance %g (tolerance %g × %g)", p, inside, d, tol, size)

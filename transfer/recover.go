@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
 // gaussGeometry returns the position and the area weight (rule weight ×
@@ -112,7 +113,7 @@ func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int,
 			h := 0.0
 			for _, e := range patch {
 				for q := 0; q < nq; q++ {
-					h = math.Max(h, dist2(gx[e*nq+q], xn))
+					h = math.Max(h, plane.DistSq(gx[e*nq+q], xn))
 				}
 			}
 			h = math.Sqrt(h)
@@ -146,7 +147,7 @@ func patchRecovery(m *fem.Mesh, nq int, gx [][2]float64, vals []float64, nc int,
 			scale[n] = h
 			// Scaled coordinates lie in [-1, 1]: a determinant this small
 			// relative to cnt³ means the points are (nearly) collinear.
-			if inv, ok := inverse3(A); ok && det3(A) > 1e-10*float64(cnt*cnt*cnt) {
+			if inv, det, ok := plane.Inverse3(A); ok && det > 1e-10*float64(cnt*cnt*cnt) {
 				for r := 0; r < 3; r++ {
 					for c := 0; c < nc; c++ {
 						out[r*nc+c] = inv[r][0]*b[c] + inv[r][1]*b[nc+c] + inv[r][2]*b[2*nc+c]
@@ -234,29 +235,6 @@ func boundaryCorners(m *fem.Mesh) []bool {
 		}
 	}
 	return on
-}
-
-func det3(a [3][3]float64) float64 {
-	return a[0][0]*(a[1][1]*a[2][2]-a[1][2]*a[2][1]) -
-		a[0][1]*(a[1][0]*a[2][2]-a[1][2]*a[2][0]) +
-		a[0][2]*(a[1][0]*a[2][1]-a[1][1]*a[2][0])
-}
-
-// inverse3 inverts a 3×3 matrix by cofactors.
-func inverse3(a [3][3]float64) ([3][3]float64, bool) {
-	d := det3(a)
-	if d == 0 || !finite(d) {
-		return [3][3]float64{}, false
-	}
-	var inv [3][3]float64
-	for i := 0; i < 3; i++ {
-		for j := 0; j < 3; j++ {
-			i1, i2 := (j+1)%3, (j+2)%3
-			j1, j2 := (i+1)%3, (i+2)%3
-			inv[i][j] = (a[i1][j1]*a[i2][j2] - a[i1][j2]*a[i2][j1]) / d
-		}
-	}
-	return inv, true
 }
 
 // l2Projection projects the Gauss-point values onto continuous P1 on the

@@ -7,6 +7,7 @@ import (
 
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
 // Method selects how Gauss-point state is recovered on the old mesh.
@@ -79,6 +80,39 @@ func (o Options) Validate() error {
 	return nil
 }
 
+// GaussData is what a Gauss point carries besides its material state. W,
+// F and P are those of fem.GaussPoint: a checkpoint restores the committed
+// points exactly from them, and a transfer keeps W for the work integral of
+// the Record. Ee is the elastic logarithmic strain the material saw: it is
+// the stress-carrying part of the strain, smooth where the plastic strain
+// is not, so that the caller can rebuild Eᵖ from it and the new
+// displacement.
+type GaussData struct {
+	W  float64      // stress-work density per reference volume
+	F  [5]float64   // deformation gradient (components 11, 12, 21, 22, 33)
+	P  [5]float64   // first Piola–Kirchhoff stress (same layout)
+	Ee material.Sym // elastic logarithmic strain Ẽ − Eᵖ
+}
+
+// gaussComponents is the number of values of a GaussData.
+const gaussComponents = 15
+
+// put stores the values of d in v, in the order W, F, P, Ee.
+func (d *GaussData) put(v []float64) {
+	v[0] = d.W
+	copy(v[1:6], d.F[:])
+	copy(v[6:11], d.P[:])
+	copy(v[11:15], d.Ee[:])
+}
+
+// get sets d from the values of v, in the order of put.
+func (d *GaussData) get(v []float64) {
+	d.W = v[0]
+	copy(d.F[:], v[1:6])
+	copy(d.P[:], v[6:11])
+	copy(d.Ee[:], v[11:15])
+}
+
 // Fields is the mechanical state on a mesh.
 type Fields struct {
 	// U is the displacement of every node.
@@ -90,9 +124,9 @@ type Fields struct {
 	// the number of points of fem.ElementRule (the layout of
 	// fem.GaussPoints).
 	State []material.State
-	// History holds extra per-Gauss-point arrays (stress-work density W,
-	// …), each in the layout of State.
-	History [][]float64
+	// Gauss is the Gauss-point data in the layout of State, or nil
+	// (none carried).
+	Gauss []GaussData
 }
 
 // Check verifies that the field sizes fit mesh m.
@@ -112,10 +146,8 @@ func (f *Fields) Check(m *fem.Mesh) error {
 	if len(f.State) != np {
 		return fmt.Errorf("fields: state has %d points for %d triangles × %d", len(f.State), len(m.Tri), fem.ElementRule().Len())
 	}
-	for k, h := range f.History {
-		if len(h) != np {
-			return fmt.Errorf("fields: history %d has %d points, want %d", k, len(h), np)
-		}
+	if f.Gauss != nil && len(f.Gauss) != np {
+		return fmt.Errorf("fields: Gauss-point data has %d points, want %d", len(f.Gauss), np)
 	}
 	return nil
 }
@@ -126,8 +158,9 @@ type Measures struct {
 	MaxF float64
 	// IntP is ∫ p dV (dV = dA, or 2πr dA in axisymmetry).
 	IntP float64
-	// IntHistory is ∫ h dV of every history array.
-	IntHistory []float64
+	// Work is ∫ W dV of the stress-work density of the Gauss-point data
+	// (0 without it).
+	Work float64
 	// Volume is ∫ dV.
 	Volume float64
 	// Broken counts the broken points.
@@ -193,16 +226,109 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 	}
 	tick(&rec.Wall.Index)
 
-	// Nodal fields.
+	to, err := mapNodes(lc, from, nw, rec, w)
+	if err != nil {
+		return nil, nil, err
+	}
+	tick(&rec.Wall.Nodes)
+
+	// Gauss points: geometry, unchanged triangles, location of the rest.
+	rule := fem.ElementRule()
+	nq := rule.Len()
+	oldX, oldDA := gaussGeometry(old, rule, w)
+	newX, newDA := gaussGeometry(nw, rule, w)
+	same, perm := unchanged(old, nw, rule)
+	ghits, err := locateGauss(lc, nw, newX, same, nq, w)
+	if err != nil {
+		return nil, nil, err
+	}
+	tick(&rec.Wall.Locate)
+
+	rc, nc, err := recoverState(old, from, rule, oldX, oldDA, opt)
+	if err != nil {
+		return nil, nil, err
+	}
+	tick(&rec.Wall.Recover)
+
+	// Evaluation at the new points, bounds, broken points.
+	gauss := from.Gauss != nil
+	to.State = make([]material.State, len(newX))
+	if gauss {
+		to.Gauss = make([]GaussData, len(newX))
+	}
+	fMax := math.Nextafter(opt.FBreak, math.Inf(-1))
+	kind := make([]pointKind, len(newX))
+	clampF := make([]bool, len(newX))
+	clampP := make([]bool, len(newX))
+	parallel(len(nw.Tri), w, func(lo, hi int) {
+		v := make([]float64, nc)
+		for e := lo; e < hi; e++ {
+			if oe := same[e].elem; oe >= 0 {
+				pm := perm[same[e].shift]
+				for q := 0; q < nq; q++ {
+					j := oe*nq + pm[q]
+					to.State[e*nq+q] = from.State[j]
+					if gauss {
+						to.Gauss[e*nq+q] = from.Gauss[j]
+					}
+					kind[e*nq+q] = kVerbatim
+				}
+				continue
+			}
+			for q := 0; q < nq; q++ {
+				i := e*nq + q
+				h := ghits[i]
+				// The nearest old point in the old triangle decides
+				// whether the new point is broken.
+				near, nd := -1, math.Inf(1)
+				for j := h.Elem * nq; j < (h.Elem+1)*nq; j++ {
+					if d := plane.DistSq(oldX[j], newX[i]); d < nd {
+						near, nd = j, d
+					}
+				}
+				if from.State[near].Broken {
+					to.State[i] = from.State[near]
+					if gauss {
+						to.Gauss[i] = from.Gauss[near]
+					}
+					kind[i] = kBroken
+					continue
+				}
+				rc.at(old.Tri[h.Elem], h.L, v)
+				to.State[i], clampF[i], clampP[i] = bounded(v, opt, fMax)
+				if gauss {
+					to.Gauss[i].get(v[6:])
+				}
+				if h.Inside {
+					kind[i] = kProjected
+				} else {
+					kind[i] = kExtrapolated
+				}
+			}
+		}
+	})
+	rec.count(kind, clampF, clampP, same)
+	tick(&rec.Wall.Evaluate)
+
+	rec.Before = measure(from, oldX, oldDA, opt.Axisymmetric)
+	rec.After = measure(to, newX, newDA, opt.Axisymmetric)
+	tick(&rec.Wall.Measure)
+	rec.Wall.Total = time.Since(start)
+	return to, rec, nil
+}
+
+// mapNodes interpolates the nodal fields of from (on the Locator's mesh) at
+// the nodes of nw and counts in rec how each node was found.
+func mapNodes(lc *Locator, from *Fields, nw *fem.Mesh, rec *Record, w int) (*Fields, error) {
 	to := &Fields{U: make([][2]float64, len(nw.X)), Linear: make([][]float64, len(from.Linear))}
 	hits := lc.LocateNodes(nw, w)
 	if err := lc.InterpolateP2(to.U, hits, from.U); err != nil {
-		return nil, nil, err
+		return nil, err
 	}
 	for k, f := range from.Linear {
 		to.Linear[k] = make([]float64, nw.NumCorners)
 		if err := lc.InterpolateP1(to.Linear[k], hits, f); err != nil {
-			return nil, nil, fmt.Errorf("transfer: linear field %d: %w", k, err)
+			return nil, fmt.Errorf("transfer: linear field %d: %w", k, err)
 		}
 	}
 	for _, h := range hits {
@@ -216,14 +342,12 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 			rec.NodesOutside++
 		}
 	}
-	tick(&rec.Wall.Nodes)
+	return to, nil
+}
 
-	// Gauss points: geometry, unchanged triangles, location of the rest.
-	rule := fem.ElementRule()
-	nq := rule.Len()
-	oldX, oldDA := gaussGeometry(old, rule, w)
-	newX, newDA := gaussGeometry(nw, rule, w)
-	same, perm := unchanged(old, nw, rule)
+// locateGauss locates the Gauss points newX (nq per triangle) of the new
+// triangles that no old triangle equals (same[e].elem < 0).
+func locateGauss(lc *Locator, nw *fem.Mesh, newX [][2]float64, same []match, nq, w int) ([]Hit, error) {
 	ghits := make([]Hit, len(newX))
 	parallel(len(nw.Tri), w, func(lo, hi int) {
 		for e := lo; e < hi; e++ {
@@ -237,115 +361,74 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 	})
 	for e := range nw.Tri {
 		if same[e].elem < 0 && ghits[e*nq].Elem < 0 {
-			return nil, nil, fmt.Errorf("transfer: Gauss point 0 of new triangle %d at %v could not be located", e, newX[e*nq])
+			return nil, fmt.Errorf("transfer: Gauss point 0 of new triangle %d at %v could not be located", e, newX[e*nq])
 		}
 	}
-	tick(&rec.Wall.Locate)
+	return ghits, nil
+}
 
-	// Recovery on the old mesh: Ep (4), p, f, history.
-	nh := len(from.History)
-	nc := 6 + nh
+// recoverState recovers the Gauss-point state of from on the old mesh as
+// linear fields on its corner nodes, component by component: Ep (4), p, f,
+// then the Gauss-point data when from carries it. It returns the recovery
+// and its number of components.
+func recoverState(old *fem.Mesh, from *Fields, rule fem.Rule, oldX [][2]float64, oldDA []float64, opt Options) (*recovery, int, error) {
+	nc := 6
+	if from.Gauss != nil {
+		nc += gaussComponents
+	}
 	vals := make([]float64, len(from.State)*nc)
 	use := make([]bool, len(from.State))
 	for i, s := range from.State {
 		v := vals[i*nc : i*nc+nc]
 		copy(v, s.Ep[:])
 		v[4], v[5] = s.P, s.F
-		for k, h := range from.History {
-			v[6+k] = h[i]
+		if from.Gauss != nil {
+			from.Gauss[i].put(v[6:])
 		}
 		use[i] = !s.Broken
 	}
-	var rc *recovery
-	switch opt.Method {
-	case PatchRecovery:
-		rc = patchRecovery(old, nq, oldX, vals, nc, use, w)
-	case L2Projection:
-		rc, err = l2Projection(old, rule, oldDA, vals, nc, opt.CGTol, opt.CGMaxIter, w)
-		if err != nil {
-			return nil, nil, err
-		}
+	if opt.Method == L2Projection {
+		rc, err := l2Projection(old, rule, oldDA, vals, nc, opt.CGTol, opt.CGMaxIter, opt.Workers)
+		return rc, nc, err
 	}
-	tick(&rec.Wall.Recover)
+	return patchRecovery(old, rule.Len(), oldX, vals, nc, use, opt.Workers), nc, nil
+}
 
-	// Evaluation at the new points, bounds, broken points.
-	to.State = make([]material.State, len(newX))
-	to.History = make([][]float64, nh)
-	for k := range to.History {
-		to.History[k] = make([]float64, len(newX))
+// bounded returns the material state of the recovered values v (Ep, p, f)
+// with the physical bounds of opt applied (F0 ≤ f ≤ fMax, p ≥ 0, and on
+// request tr Ep from the porosity), and whether f and p were clamped.
+func bounded(v []float64, opt Options, fMax float64) (s material.State, clampF, clampP bool) {
+	s = material.State{Ep: material.Sym{v[0], v[1], v[2], v[3]}, P: v[4], F: v[5]}
+	if !(s.F >= opt.F0) {
+		s.F, clampF = opt.F0, true
+	} else if s.F > fMax {
+		s.F, clampF = fMax, true
 	}
-	fMax := math.Nextafter(opt.FBreak, math.Inf(-1))
-	kind := make([]uint8, len(newX))
-	const (
-		kVerbatim = iota
-		kBroken
-		kProjected
-		kExtrapolated
-	)
-	clampF := make([]bool, len(newX))
-	clampP := make([]bool, len(newX))
-	parallel(len(nw.Tri), w, func(lo, hi int) {
-		v := make([]float64, nc)
-		for e := lo; e < hi; e++ {
-			if oe := same[e].elem; oe >= 0 {
-				pm := perm[same[e].shift]
-				for q := 0; q < nq; q++ {
-					j := oe*nq + pm[q]
-					to.State[e*nq+q] = from.State[j]
-					for k := range to.History {
-						to.History[k][e*nq+q] = from.History[k][j]
-					}
-					kind[e*nq+q] = kVerbatim
-				}
-				continue
-			}
-			for q := 0; q < nq; q++ {
-				i := e*nq + q
-				h := ghits[i]
-				// The nearest old point in the old triangle decides
-				// whether the new point is broken.
-				near, nd := -1, math.Inf(1)
-				for j := h.Elem * nq; j < (h.Elem+1)*nq; j++ {
-					if d := dist2(oldX[j], newX[i]); d < nd {
-						near, nd = j, d
-					}
-				}
-				if from.State[near].Broken {
-					to.State[i] = from.State[near]
-					for k := range to.History {
-						to.History[k][i] = from.History[k][near]
-					}
-					kind[i] = kBroken
-					continue
-				}
-				rc.at(old.Tri[h.Elem], h.L, v)
-				s := material.State{Ep: material.Sym{v[0], v[1], v[2], v[3]}, P: v[4], F: v[5]}
-				if !(s.F >= opt.F0) {
-					s.F, clampF[i] = opt.F0, true
-				} else if s.F > fMax {
-					s.F, clampF[i] = fMax, true
-				}
-				if !(s.P >= 0) {
-					s.P, clampP[i] = 0, true
-				}
-				if opt.TraceFromPorosity {
-					d := (math.Log((1-opt.F0)/(1-s.F)) - s.Ep.Trace()) / 3
-					s.Ep[0] += d
-					s.Ep[1] += d
-					s.Ep[2] += d
-				}
-				to.State[i] = s
-				for k := range to.History {
-					to.History[k][i] = v[6+k]
-				}
-				if h.Inside {
-					kind[i] = kProjected
-				} else {
-					kind[i] = kExtrapolated
-				}
-			}
-		}
-	})
+	if !(s.P >= 0) {
+		s.P, clampP = 0, true
+	}
+	if opt.TraceFromPorosity {
+		d := (math.Log((1-opt.F0)/(1-s.F)) - s.Ep.Trace()) / 3
+		s.Ep[0] += d
+		s.Ep[1] += d
+		s.Ep[2] += d
+	}
+	return s, clampF, clampP
+}
+
+// pointKind is how a new Gauss point got its state.
+type pointKind uint8
+
+const (
+	kVerbatim pointKind = iota
+	kBroken
+	kProjected
+	kExtrapolated
+)
+
+// count adds to rec the kinds and clamps of the new points and the
+// unchanged triangles.
+func (rec *Record) count(kind []pointKind, clampF, clampP []bool, same []match) {
 	for i, k := range kind {
 		switch k {
 		case kVerbatim:
@@ -369,13 +452,6 @@ func Map(old *fem.Mesh, from *Fields, nw *fem.Mesh, opt Options) (*Fields, *Reco
 			rec.UnchangedElements++
 		}
 	}
-	tick(&rec.Wall.Evaluate)
-
-	rec.Before = measure(from, oldX, oldDA, opt.Axisymmetric)
-	rec.After = measure(to, newX, newDA, opt.Axisymmetric)
-	tick(&rec.Wall.Measure)
-	rec.Wall.Total = time.Since(start)
-	return to, rec, nil
 }
 
 // Measure returns the integral figures of the Gauss-point state f on m.
@@ -391,7 +467,7 @@ func Measure(m *fem.Mesh, f *Fields, axisymmetric bool) (Measures, error) {
 }
 
 func measure(f *Fields, x [][2]float64, da []float64, axisymmetric bool) Measures {
-	ms := Measures{IntHistory: make([]float64, len(f.History))}
+	var ms Measures
 	for i, s := range f.State {
 		dv := da[i]
 		if axisymmetric {
@@ -399,8 +475,8 @@ func measure(f *Fields, x [][2]float64, da []float64, axisymmetric bool) Measure
 		}
 		ms.Volume += dv
 		ms.IntP += s.P * dv
-		for k, h := range f.History {
-			ms.IntHistory[k] += h[i] * dv
+		if f.Gauss != nil {
+			ms.Work += f.Gauss[i].W * dv
 		}
 		if s.Broken {
 			ms.Broken++

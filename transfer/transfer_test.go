@@ -8,13 +8,15 @@ import (
 
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
 // fieldsFrom fills Fields on m: displacement u(x) on every node, the corner
-// fields lin on corner nodes, and the Gauss-point state and history from
-// state(x) and hist(x) at the isoparametric Gauss-point positions.
+// fields lin on corner nodes, and the Gauss-point state and data from
+// state(x) and gauss(x) (nil: no data) at the isoparametric Gauss-point
+// positions.
 func fieldsFrom(m *fem.Mesh, u func([2]float64) [2]float64, lin []func([2]float64) float64,
-	state func([2]float64) material.State, hist []func([2]float64) float64) *Fields {
+	state func([2]float64) material.State, gauss func([2]float64) GaussData) *Fields {
 	f := &Fields{U: make([][2]float64, len(m.X))}
 	for n, p := range m.X {
 		f.U[n] = u(p)
@@ -31,14 +33,31 @@ func fieldsFrom(m *fem.Mesh, u func([2]float64) [2]float64, lin []func([2]float6
 	for i, p := range x {
 		f.State[i] = state(p)
 	}
-	for _, g := range hist {
-		v := make([]float64, len(x))
+	if gauss != nil {
+		f.Gauss = make([]GaussData, len(x))
 		for i, p := range x {
-			v[i] = g(p)
+			f.Gauss[i] = gauss(p)
 		}
-		f.History = append(f.History, v)
 	}
 	return f
+}
+
+// work is Gauss-point data with the stress work w(x) alone.
+func work(w func([2]float64) float64) func([2]float64) GaussData {
+	return func(p [2]float64) GaussData { return GaussData{W: w(p)} }
+}
+
+// linearGauss is Gauss-point data whose every component is a different
+// linear function of the position.
+func linearGauss(p [2]float64) GaussData {
+	var v [gaussComponents]float64
+	for k := range v {
+		c := float64(k + 1)
+		v[k] = linear{0.1 * c, 0.02 * c * c, -0.3 / c}.at(p)
+	}
+	var d GaussData
+	d.get(v[:])
+	return d
 }
 
 // TestLinearFieldsExact: linear displacement, linear corner fields and a
@@ -58,7 +77,6 @@ func TestLinearFieldsExact(t *testing.T) {
 	ep := [4]linear{{0.01, 0.02, -0.01}, {-0.02, 0.01, 0.03}, {0.005, -0.004, 0.002}, {0.001, 0.002, 0.003}}
 	pl := linear{0.1, 0.2, 0.3}
 	fl := linear{0.01, 0.02, 0.015}
-	wl := linear{3, -1, 2}
 	state := func(p [2]float64) material.State {
 		return material.State{Ep: material.Sym{ep[0].at(p), ep[1].at(p), ep[2].at(p), ep[3].at(p)}, P: pl.at(p), F: fl.at(p)}
 	}
@@ -78,14 +96,14 @@ func TestLinearFieldsExact(t *testing.T) {
 			for _, l := range lins {
 				lf = append(lf, l.at)
 			}
-			from := fieldsFrom(tc.old, tc.u, lf, state, []func([2]float64) float64{wl.at})
+			from := fieldsFrom(tc.old, tc.u, lf, state, linearGauss)
 			opt := DefaultOptions()
 			opt.Method = tc.method
 			to, rec, err := Map(tc.old, from, tc.nw, opt)
 			if err != nil {
 				t.Fatal(err)
 			}
-			want := fieldsFrom(tc.nw, tc.u, lf, state, []func([2]float64) float64{wl.at})
+			want := fieldsFrom(tc.nw, tc.u, lf, state, linearGauss)
 			tol := 1e-12
 			if tc.method == L2Projection {
 				tol = 1e-11 // CG stops at a relative residual of 1e-13
@@ -109,7 +127,12 @@ func TestLinearFieldsExact(t *testing.T) {
 					maxErr = math.Max(maxErr, math.Abs(s.Ep[c]-w.Ep[c]))
 				}
 				maxErr = math.Max(maxErr, math.Max(math.Abs(s.P-w.P), math.Abs(s.F-w.F)))
-				maxErr = math.Max(maxErr, math.Abs(to.History[0][i]-want.History[0][i]))
+				var got, wv [gaussComponents]float64
+				to.Gauss[i].put(got[:])
+				want.Gauss[i].put(wv[:])
+				for c := range got {
+					maxErr = math.Max(maxErr, math.Abs(got[c]-wv[c]))
+				}
 			}
 			if maxErr > tol {
 				t.Fatalf("Gauss-point state error %g > %g", maxErr, tol)
@@ -133,7 +156,7 @@ func TestMeasureAxisymmetric(t *testing.T) {
 	m := squareMesh(5, 4, 0.3, 9)
 	pl := linear{0.3, 0.2, -0.1}
 	f := fieldsFrom(m, func([2]float64) [2]float64 { return [2]float64{} }, nil,
-		func(p [2]float64) material.State { return material.State{P: pl.at(p), F: 0.01} }, []func([2]float64) float64{pl.at})
+		func(p [2]float64) material.State { return material.State{P: pl.at(p), F: 0.01} }, work(pl.at))
 	for _, tc := range []struct {
 		axi        bool
 		want, volW float64
@@ -145,8 +168,8 @@ func TestMeasureAxisymmetric(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if math.Abs(ms.IntP-tc.want) > 1e-13 || math.Abs(ms.IntHistory[0]-tc.want) > 1e-13 || math.Abs(ms.Volume-tc.volW) > 1e-13 {
-			t.Errorf("axisymmetric %v: ∫p %.15g ∫h %.15g volume %.15g; want %.15g, %.15g", tc.axi, ms.IntP, ms.IntHistory[0], ms.Volume, tc.want, tc.volW)
+		if math.Abs(ms.IntP-tc.want) > 1e-13 || math.Abs(ms.Work-tc.want) > 1e-13 || math.Abs(ms.Volume-tc.volW) > 1e-13 {
+			t.Errorf("axisymmetric %v: ∫p %.15g ∫W %.15g volume %.15g; want %.15g, %.15g", tc.axi, ms.IntP, ms.Work, ms.Volume, tc.want, tc.volW)
 		}
 		if ms.MaxF != 0.01 {
 			t.Errorf("max f %g, want 0.01", ms.MaxF)
@@ -230,7 +253,7 @@ func TestPorosityBounds(t *testing.T) {
 	// just below FBreak: the boundary nodes' patch fits extrapolate and
 	// overshoot or undershoot (f below F0, p below 0 away from the peaks).
 	c1, c2 := [2]float64{0.52, 0.47}, [2]float64{0, 0.3}
-	peak := func(p, c [2]float64, w float64) float64 { return math.Exp(-dist2(p, c) / (w * w)) }
+	peak := func(p, c [2]float64, w float64) float64 { return math.Exp(-plane.DistSq(p, c) / (w * w)) }
 	state := func(p [2]float64) material.State {
 		f := f0 + 0.25*peak(p, c1, 0.04) + 0.147*peak(p, c2, 0.08)
 		s := material.State{P: 0.8*peak(p, c1, 0.03) + 0.5*peak(p, c2, 0.05), F: f}
@@ -258,7 +281,7 @@ func TestPorosityBounds(t *testing.T) {
 				e, _, _ := lc.Locate(newX[i])
 				near := e * 6
 				for j := e * 6; j < e*6+6; j++ {
-					if dist2(oldX[j], newX[i]) < dist2(oldX[near], newX[i]) {
+					if plane.DistSq(oldX[j], newX[i]) < plane.DistSq(oldX[near], newX[i]) {
 						near = j
 					}
 				}
@@ -328,7 +351,7 @@ func shuffled(m *fem.Mesh, seed uint64) *fem.Mesh {
 }
 
 // TestUnchangedVerbatim: triangles the remesh left unchanged keep their
-// Gauss-point state and history bit for bit (reflect.DeepEqual,
+// Gauss-point state and data bit for bit (reflect.DeepEqual,
 // math.Float64bits), whatever the node numbering, element order and vertex
 // rotation; the re-triangulated part is projected. The old state is random
 // noise, so nothing but a verbatim copy reproduces it.
@@ -343,7 +366,7 @@ func TestUnchangedVerbatim(t *testing.T) {
 		func([2]float64) material.State {
 			return material.State{Ep: material.Sym{rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64()},
 				P: rng.Float64(), F: 0.01 + 0.1*rng.Float64(), Broken: rng.IntN(10) == 0}
-		}, []func([2]float64) float64{func([2]float64) float64 { return rng.NormFloat64() }})
+		}, work(func([2]float64) float64 { return rng.NormFloat64() }))
 	opt := DefaultOptions()
 	to, rec, err := Map(old, from, nw, opt)
 	if err != nil {
@@ -361,17 +384,17 @@ func TestUnchangedVerbatim(t *testing.T) {
 			// Reference: the old point at the same position (brute force).
 			j := 0
 			for k := range oldX {
-				if dist2(oldX[k], newX[i]) < dist2(oldX[j], newX[i]) {
+				if plane.DistSq(oldX[k], newX[i]) < plane.DistSq(oldX[j], newX[i]) {
 					j = k
 				}
 			}
 			if same[e].elem < 0 {
 				continue
 			}
-			if d := math.Sqrt(dist2(oldX[j], newX[i])); d > 1e-14 {
+			if d := math.Sqrt(plane.DistSq(oldX[j], newX[i])); d > 1e-14 {
 				t.Fatalf("new point %d of unchanged triangle %d has no old point at its position (nearest %g away)", q, e, d)
 			}
-			if !reflect.DeepEqual(to.State[i], from.State[j]) || math.Float64bits(to.History[0][i]) != math.Float64bits(from.History[0][j]) {
+			if !reflect.DeepEqual(to.State[i], from.State[j]) || math.Float64bits(to.Gauss[i].W) != math.Float64bits(from.Gauss[j].W) {
 				t.Fatalf("unchanged triangle %d point %d: state %+v, old %+v", e, q, to.State[i], from.State[j])
 			}
 		}
@@ -422,7 +445,7 @@ func TestRulePermutation(t *testing.T) {
 			}
 			a := r.Point(q, nw.X[nw.Tri[0][0]], nw.X[nw.Tri[0][1]], nw.X[nw.Tri[0][2]])
 			b := r.Point(j, old.X[old.Tri[0][0]], old.X[old.Tri[0][1]], old.X[old.Tri[0][2]])
-			if math.Sqrt(dist2(a, b)) > 1e-15 {
+			if math.Sqrt(plane.DistSq(a, b)) > 1e-15 {
 				t.Fatalf("rotation %d: point %d at %v, old point %d at %v", s, q, a, j, b)
 			}
 		}
@@ -533,7 +556,7 @@ func TestMapErrors(t *testing.T) {
 	old, nw := squareMesh(3, 3, 0, 0), squareMesh(4, 4, 0, 0)
 	good := func() *Fields {
 		return fieldsFrom(old, func([2]float64) [2]float64 { return [2]float64{} }, []func([2]float64) float64{func([2]float64) float64 { return 0 }},
-			func([2]float64) material.State { return material.State{} }, []func([2]float64) float64{func([2]float64) float64 { return 0 }})
+			func([2]float64) material.State { return material.State{} }, work(func([2]float64) float64 { return 0 }))
 	}
 	if _, _, err := Map(old, good(), nw, DefaultOptions()); err != nil {
 		t.Fatalf("good input: %v", err)
@@ -554,7 +577,7 @@ func TestMapErrors(t *testing.T) {
 		{"short displacement", old, nw, func(f *Fields) *Fields { f.U = f.U[1:]; return f }, nil},
 		{"short linear field", old, nw, func(f *Fields) *Fields { f.Linear[0] = f.Linear[0][1:]; return f }, nil},
 		{"short state", old, nw, func(f *Fields) *Fields { f.State = f.State[1:]; return f }, nil},
-		{"short history", old, nw, func(f *Fields) *Fields { f.History[0] = f.History[0][1:]; return f }, nil},
+		{"short Gauss-point data", old, nw, func(f *Fields) *Fields { f.Gauss = f.Gauss[1:]; return f }, nil},
 		{"bad options", old, nw, nil, func(o *Options) { o.FBreak = 2 }},
 	} {
 		f := good()
@@ -619,7 +642,7 @@ func TestConcurrentAndDeterministic(t *testing.T) {
 		func(p [2]float64) material.State {
 			return material.State{P: 1 + g(p), F: 0.01, Ep: material.Sym{g(p), 0, 0, 0}}
 		},
-		[]func([2]float64) float64{g})
+		work(g))
 	for _, m := range []Method{PatchRecovery, L2Projection} {
 		var res []*Fields
 		for _, w := range []int{1, 4} {

@@ -5,8 +5,11 @@ import (
 
 	"tearline/criteria"
 	"tearline/remesh"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
 	"tearline/remesh/geom/specimen"
+	"tearline/remesh/size"
+	"tearline/remesh/trigger"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -101,7 +104,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		}
 	}
 	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
-	cfg.Trigger = remesh.DefaultTriggerOptions(unit)
+	cfg.Trigger = trigger.DefaultOptions(unit)
 	cfg.Trigger.Margin = c.Adapt.Margin
 	cfg.Trigger.FrontLevel = 2 * c.Material.Fc
 	cfg.Trigger.PAlert = c.Adapt.AlertP
@@ -109,7 +112,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	if cfg.Trigger.MaxRemesh == 0 {
 		cfg.Trigger.MaxRemesh = 1 << 30
 	}
-	cfg.Follow = remesh.DefaultFollowOptions(unit, c.Mesh.HFar)
+	cfg.Follow = size.DefaultFollowOptions(unit, c.Mesh.HFar)
 	cfg.Follow.Kappa = unit / c.Mesh.HFine
 	cfg.Follow.Ahead = c.Adapt.Ahead
 	cfg.Follow.Wake = c.Adapt.Wake
@@ -122,7 +125,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		// which must be fine along the whole presumed path).
 		cfg.Size.Ahead = cfg.Follow.Ahead * unit
 	}
-	cfg.Carve = remesh.DefaultCarveOptions()
+	cfg.Carve = carve.DefaultOptions()
 	cfg.Carve.Simplify = c.Adapt.Simplify
 	cfg.Transfer = transfer.DefaultOptions()
 	cfg.Transfer.F0, cfg.Transfer.FBreak = c.Material.F0, cfg.FBreak

@@ -12,8 +12,8 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"tearline/remesh"
 	"tearline/remesh/geom/specimen"
+	"tearline/remesh/size"
 )
 
 // caseFile is the whole case file. Only the command line knows this format:
@@ -31,7 +31,7 @@ type caseFile struct {
 
 	// specimen and size are built once by complete and reused by buildRun.
 	specimen *specimen.Specimen
-	size     *remesh.SizeField
+	size     *size.Field
 }
 
 // caseSource remembers where every key of a case came from, so that an

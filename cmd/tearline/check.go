@@ -5,7 +5,8 @@ import (
 	"io"
 	"time"
 
-	"tearline/remesh"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/solver/fem"
 	"tearline/solver/sparse"
 )
@@ -34,12 +35,12 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 		return 2
 	}
 	t0 := time.Now()
-	sf, err := remesh.NewSizeField(rs.domain, rs.cfg.Size)
+	sf, err := size.NewField(rs.domain, rs.cfg.Size)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %s: %v\n", src.where("mesh"), err)
 		return 2
 	}
-	m, rep, err := remesh.MeshDomain(rs.domain, sf.At, rs.cfg.Mesh)
+	m, rep, err := meshing.Mesh(rs.domain, sf.At, rs.cfg.Mesh)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: meshing %s: %v\n", pos[0], err)
 		return 2

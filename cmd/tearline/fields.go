@@ -13,12 +13,9 @@ import (
 
 // writeFields writes the current state as .vtu files (reference and
 // deformed configuration) and updates the two .pvd collections.
-func (ob *observer) writeFields(cyc *remesh.Cycle) error {
-	m, p := cyc.Mesh, cyc.Prob
-	u, err := cyc.Displacement()
-	if err != nil {
-		return err
-	}
+func (ob *observer) writeFields(view remesh.View) error {
+	m := view.Mesh()
+	u := view.Displacement()
 	nn := len(m.X)
 	flat := make([]float64, 0, 2*nn)
 	for _, v := range u {
@@ -26,16 +23,15 @@ func (ob *observer) writeFields(cyc *remesh.Cycle) error {
 	}
 	points := []vtu.Array{{Name: "displacement", Components: 2, Values: flat}}
 	for _, f := range []fem.Field{fem.Theta, fem.Pressure, fem.Abar, fem.Lambda} {
-		if !p.Dofs.Has(f) {
-			continue
-		}
 		v := make([]float64, nn)
-		if err := p.NodalField(f, v); err != nil {
+		if has, err := view.NodalField(f, v); err != nil {
 			return err
+		} else if !has {
+			continue
 		}
 		points = append(points, vtu.Array{Name: f.String(), Components: 1, Values: v})
 	}
-	gp := cyc.GaussPoints()
+	gp := view.GaussPoints()
 	ne := len(m.Tri)
 	nq := gp.PerElement
 	porosity, plastic, broken, mises, mean, work := make([]float64, ne), make([]float64, ne), make([]float64, ne), make([]float64, ne), make([]float64, ne), make([]float64, ne)
@@ -52,7 +48,7 @@ func (ob *observer) writeFields(cyc *remesh.Cycle) error {
 				sig[k] += s[k] / float64(nq)
 			}
 		}
-		if p.Broken(e) {
+		if view.Released(e) {
 			broken[e] = 1
 		}
 		copy(stress[4*e:], sig[:])
@@ -69,9 +65,10 @@ func (ob *observer) writeFields(cyc *remesh.Cycle) error {
 		{Name: "stress_mean", Components: 1, Values: mean},
 		{Name: "stress_work", Components: 1, Values: work},
 	}
-	step := cyc.Steps
-	ref := fmt.Sprintf("step_%06d_mesh%03d.vtu", step, cyc.Remeshes)
-	def := fmt.Sprintf("step_%06d_mesh%03d_deformed.vtu", step, cyc.Remeshes)
+	pr := view.Progress()
+	step := pr.Steps
+	ref := fmt.Sprintf("step_%06d_mesh%03d.vtu", step, pr.Remeshes)
+	def := fmt.Sprintf("step_%06d_mesh%03d_deformed.vtu", step, pr.Remeshes)
 	dir := filepath.Join(ob.dir, "fields")
 	if n := len(ob.pvd); n > 0 && ob.pvd[n-1].File == ref {
 		return nil // already written for this step
@@ -84,10 +81,10 @@ func (ob *observer) writeFields(cyc *remesh.Cycle) error {
 	}); err != nil {
 		return err
 	}
-	if err := vtu.WriteFile(filepath.Join(dir, fmt.Sprintf("boundary_mesh%03d.vtu", cyc.Remeshes)), func(w io.Writer) error { return vtu.WriteBoundary(w, m, nil) }); err != nil {
+	if err := vtu.WriteFile(filepath.Join(dir, fmt.Sprintf("boundary_mesh%03d.vtu", pr.Remeshes)), func(w io.Writer) error { return vtu.WriteBoundary(w, m, nil) }); err != nil {
 		return err
 	}
-	ob.pvd = append(ob.pvd, pvdEntry{T: p.TCommitted, File: ref})
+	ob.pvd = append(ob.pvd, pvdEntry{T: pr.Load, File: ref})
 	var cr, cd vtu.Collection
 	for _, e := range ob.pvd {
 		cr.Add(e.T, e.File)

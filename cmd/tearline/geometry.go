@@ -4,9 +4,10 @@ import (
 	"fmt"
 	"math"
 
-	"tearline/remesh"
 	"tearline/remesh/geom"
 	"tearline/remesh/geom/specimen"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/remesh/tri"
 )
 
@@ -324,7 +325,7 @@ type meshSection struct {
 
 // sizeField fills the defaults of the section and returns the size field.
 // length is material.length (ℓ), which sets the default h_fine = ℓ/2.
-func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64) (*remesh.SizeField, error) {
+func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64) (*size.Field, error) {
 	if m.HFine == 0 {
 		if !(length > 0) {
 			return nil, badInput("%s: missing; it defaults to material.length/2, but material.length is %g (a local model): give mesh.h_fine", src.where("mesh.h_fine"), length)
@@ -335,7 +336,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, err
 	}
 	if m.HFar == 0 {
-		m.HFar = remesh.DefaultFarFactor * m.HFine
+		m.HFar = size.DefaultFarFactor * m.HFine
 		if d != nil {
 			m.HFar = math.Max(m.HFine, math.Min(m.HFar, d.Scale()/20))
 		}
@@ -347,7 +348,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, badInput("%s: %g must be ≥ mesh.h_fine = %g", src.where("mesh.h_far"), m.HFar, m.HFine)
 	}
 	if m.FineRadius == 0 {
-		m.FineRadius = remesh.DefaultFineRadiusFactor * m.HFine
+		m.FineRadius = size.DefaultFineRadiusFactor * m.HFine
 	}
 	if err := positive(m.FineRadius, src, "mesh.fine_radius"); err != nil {
 		return nil, err
@@ -356,7 +357,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 		return nil, err
 	}
 	if m.Grading == 0 {
-		m.Grading = remesh.DefaultGrading
+		m.Grading = size.DefaultGrading
 	}
 	if !(m.Grading > 0 && m.Grading <= 1) {
 		return nil, badInput("%s: %g must lie in (0, 1] (growth of the element size per unit distance)", src.where("mesh.grading"), m.Grading)
@@ -373,7 +374,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 	if m.MaxPoints < 0 {
 		return nil, badInput("%s: %d must be positive", src.where("mesh.max_points"), m.MaxPoints)
 	}
-	s, err := remesh.NewSizeField(d, remesh.SizeOptions{HFine: m.HFine, HFar: m.HFar, FineRadius: m.FineRadius, Ahead: m.Ahead, Grading: m.Grading})
+	s, err := size.NewField(d, size.Options{HFine: m.HFine, HFar: m.HFar, FineRadius: m.FineRadius, Ahead: m.Ahead, Grading: m.Grading})
 	if err != nil {
 		return nil, badInput("%s: %v", src.where("mesh"), err)
 	}
@@ -381,6 +382,6 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 }
 
 // options returns the mesher's options (after sizeField filled defaults).
-func (m *meshSection) options() remesh.MeshOptions {
-	return remesh.MeshOptions{MinAngle: m.MinAngle, MaxPoints: m.MaxPoints}
+func (m *meshSection) options() meshing.Options {
+	return meshing.Options{MinAngle: m.MinAngle, MaxPoints: m.MaxPoints}
 }

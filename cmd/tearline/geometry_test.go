@@ -5,11 +5,10 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"tearline/remesh/meshing"
 	"testing"
 
 	"github.com/BurntSushi/toml"
-
-	"tearline/remesh"
 )
 
 // geoMesh is the part of a case file this file owns.
@@ -86,7 +85,7 @@ func TestCaseGeometries(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", c.file, err)
 		}
-		m, rep, err := remesh.MeshDomain(d, size.At, cf.Mesh.options())
+		m, rep, err := meshing.Mesh(d, size.At, cf.Mesh.options())
 		if err != nil {
 			t.Fatalf("%s: %v", c.file, err)
 		}

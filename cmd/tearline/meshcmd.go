@@ -10,7 +10,7 @@ import (
 	"strings"
 	"time"
 
-	"tearline/remesh"
+	"tearline/remesh/meshing"
 	"tearline/solver/fem"
 	"tearline/solver/fem/vtu"
 )
@@ -126,7 +126,7 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		return fail(2, "%v", err)
 	}
 	t0 := time.Now()
-	m, q, err := remesh.MeshDomain(d, size.At, c.Mesh.options())
+	m, q, err := meshing.Mesh(d, size.At, c.Mesh.options())
 	secs := time.Since(t0).Seconds()
 	if err != nil {
 		if strings.HasPrefix(err.Error(), "geometry:") {

@@ -70,7 +70,8 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: %s: %v\n", dir, err)
 		return 1
 	}
-	fmt.Fprintf(stdout, "tearline: resuming %s at step %d, t = %.5g, Δa = %.4g\n", dir, cyc.Steps, cyc.Tau, cyc.Da)
+	pr := cyc.View().Progress()
+	fmt.Fprintf(stdout, "tearline: resuming %s at step %d, t = %.5g, Δa = %.4g\n", dir, pr.Steps, pr.T, pr.Da)
 	return ob.run(cyc, stderr)
 }
 

@@ -189,6 +189,7 @@ func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.W
 
 // run drives the cycle to its end and writes the summary and plots.
 func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
+	view := cyc.View()
 	sig := make(chan os.Signal, 1)
 	signal.Notify(sig, os.Interrupt, syscall.SIGTERM)
 	defer signal.Stop(sig)
@@ -197,8 +198,8 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 			ob.stopping.Store(true)
 		}
 	}()
-	if cyc.Steps == 0 {
-		if err := ob.writeFields(cyc); err != nil {
+	if view.Progress().Steps == 0 {
+		if err := ob.writeFields(view); err != nil {
 			fmt.Fprintf(stderr, "tearline: fields: %v\n", err)
 		}
 	}
@@ -218,18 +219,19 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	case outc.Status == solver.Completed && reason == "":
 		reason = fmt.Sprintf("reached stop.t = %g", ob.c.Stop.T)
 	}
-	if cerr := ob.checkpoint(cyc); cerr != nil {
+	if cerr := ob.checkpoint(view); cerr != nil {
 		fmt.Fprintf(stderr, "tearline: checkpoint: %v\n", cerr)
 		code = 1
 	}
-	if ferr := ob.writeFields(cyc); ferr != nil {
+	if ferr := ob.writeFields(view); ferr != nil {
 		fmt.Fprintf(stderr, "tearline: fields: %v\n", ferr)
 	}
 	if perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows); perr != nil {
 		fmt.Fprintf(stderr, "tearline: plots: %v\n", perr)
 	}
-	s := summary{Status: status, Reason: reason, Steps: cyc.Steps, Remeshes: cyc.Remeshes, FinalDa: cyc.Da,
-		FinalT: cyc.Tau, PeakDofs: cyc.PeakDofs, PeakRSSMB: peakRSSMB(), WallSeconds: cyc.Wall.Seconds(),
+	pr := view.Progress()
+	s := summary{Status: status, Reason: reason, Steps: pr.Steps, Remeshes: pr.Remeshes, FinalDa: pr.Da,
+		FinalT: pr.T, PeakDofs: pr.PeakDofs, PeakRSSMB: peakRSSMB(), WallSeconds: pr.Wall.Seconds(),
 		CaseSHA256: ob.hash, MedianIters: medianInt(ob.iters)}
 	if n := len(ob.rows); n > 0 && !math.IsNaN(ob.rows[n-1].JDomain) {
 		s.FinalJDomain = ob.rows[n-1].JDomain
@@ -241,7 +243,7 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	ob.history.Close()
 	ob.remeshes.Close()
 	fmt.Fprintf(ob.stdout, "tearline: %s after %d steps, %d remeshes, Δa = %.4g, t = %.4g (%s); results in %s\n",
-		status, cyc.Steps, cyc.Remeshes, cyc.Da, cyc.Tau, reason, ob.dir)
+		status, pr.Steps, pr.Remeshes, pr.Da, pr.T, reason, ob.dir)
 	if status == "stopped" {
 		fmt.Fprintf(stderr, "tearline: stopped: %s\n", reason)
 	}
@@ -251,12 +253,12 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 var errInterrupted = errors.New("interrupted")
 
 // Step records a converged step: history row, fields, checkpoint, progress.
-func (ob *observer) Step(r *remesh.StepRecord, cyc *remesh.Cycle) error {
+func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 	row := historyRow{Step: r.Step, T: r.T, Control: r.Control, Force: r.Force, JFar: r.JFar, JDomain: r.JDomain,
 		Da: r.Da, DaProj: r.DaProj, CTOD: r.CTOD, Dofs: r.Dofs, Elements: r.Elements, Remeshes: r.Remeshes,
 		Iters: r.Iters, Wall: r.CumWall.Seconds(), RSS: peakRSSMB(), JE1820: math.NaN(), Tearing: math.NaN(),
 		MaxPorosity: r.MaxPorosity}
-	if len(cyc.Seeds) == 0 {
+	if !view.Progress().Tracked {
 		row.Da, row.DaProj = math.NaN(), math.NaN()
 	}
 	ob.rows = append(ob.rows, row)
@@ -266,12 +268,12 @@ func (ob *observer) Step(r *remesh.StepRecord, cyc *remesh.Cycle) error {
 		return fmt.Errorf("history.csv: %w", err)
 	}
 	if r.Step%ob.c.Output.FieldsEvery == 0 {
-		if err := ob.writeFields(cyc); err != nil {
+		if err := ob.writeFields(view); err != nil {
 			return err
 		}
 	}
 	if time.Since(ob.lastCP) >= ob.cpEvery {
-		if err := ob.checkpoint(cyc); err != nil {
+		if err := ob.checkpoint(view); err != nil {
 			return err
 		}
 	}
@@ -330,7 +332,7 @@ func (ob *observer) fracture() {
 }
 
 // Remesh records a remesh and checkpoints right after it.
-func (ob *observer) Remesh(r *remesh.RemeshRecord, cyc *remesh.Cycle) error {
+func (ob *observer) Remesh(r *remesh.RemeshRecord, view remesh.View) error {
 	f := func(v float64) string { return fmt.Sprintf("%.10g", v) }
 	s := func(d time.Duration) string { return fmt.Sprintf("%.4f", d.Seconds()) }
 	fields := []string{fmt.Sprint(r.Index), fmt.Sprint(r.Step), f(r.T), f(r.Da), r.Reason,
@@ -345,10 +347,10 @@ func (ob *observer) Remesh(r *remesh.RemeshRecord, cyc *remesh.Cycle) error {
 	ob.nRemesh++
 	ob.logf("remesh %d at step %d (Δa = %.4g): %s; unknowns %d → %d, elements %d → %d, min angle %.1f°",
 		r.Index, r.Step, r.Da, r.Reason, r.DofsBefore, r.DofsAfter, r.ElemsBefore, r.ElemsAfter, r.MinAngle)
-	if err := ob.writeFields(cyc); err != nil {
+	if err := ob.writeFields(view); err != nil {
 		return err
 	}
-	return ob.checkpoint(cyc)
+	return ob.checkpoint(view)
 }
 
 // RemeshFailed logs a remesh that failed and was put off; the run goes on
@@ -359,13 +361,13 @@ func (ob *observer) RemeshFailed(index, step int, err error) error {
 }
 
 // checkpoint writes the committed state atomically.
-func (ob *observer) checkpoint(cyc *remesh.Cycle) error {
+func (ob *observer) checkpoint(view remesh.View) error {
 	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters})
 	if err != nil {
 		return err
 	}
 	path := filepath.Join(ob.dir, "checkpoint", "state.gob")
-	if err := writeFileAtomic(path, func(w io.Writer) error { return cyc.WriteCheckpoint(w, extra) }); err != nil {
+	if err := writeFileAtomic(path, func(w io.Writer) error { return view.WriteCheckpoint(w, extra) }); err != nil {
 		return err
 	}
 	ob.lastCP = time.Now()

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"tearline/solver/plane"
 
 	"github.com/tidwall/rtree"
 )
@@ -140,7 +141,7 @@ func (d *Domain) checkFeatures(size func([2]float64) (float64, error), tol float
 		tr.Search([2]float64{v.x[0] - lim, v.x[1] - lim}, [2]float64{v.x[0] + lim, v.x[1] + lim}, func(_, _ [2]float64, j int) bool {
 			r := refs[j]
 			p := r.p
-			if dist(p.A, v.x) <= tol || dist(p.B, v.x) <= tol {
+			if plane.Dist(p.A, v.x) <= tol || plane.Dist(p.B, v.x) <= tol {
 				return true
 			}
 			if dd := p.Distance(v.x); dd > tol && dd < lim {
@@ -268,12 +269,12 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 				if placed[n] {
 					continue
 				}
-				if dist(x, p.A) <= tol {
+				if plane.Dist(x, p.A) <= tol {
 					out.Named[n] = start
 					placed[n] = true
 					continue
 				}
-				if dist(x, p.B) <= tol {
+				if plane.Dist(x, p.B) <= tol {
 					continue // placed as the next piece's start
 				}
 				if p.Distance(x) <= tol {
@@ -400,7 +401,7 @@ func (d *Domain) crowdedArcs(g *PSLG, owners []int) []int {
 			continue
 		}
 		a, b := g.Points[seg[0]], g.Points[seg[1]]
-		half := 0.5 * dist(a, b)
+		half := 0.5 * plane.Dist(a, b)
 		sag := p.Radius - math.Sqrt(math.Max(0, p.Radius*p.Radius-half*half))
 		if !(sag > 0) {
 			continue
@@ -493,7 +494,7 @@ func crossingSegments(g *PSLG, tol float64) (int, int, bool) {
 					near := false
 					for _, v := range []int{sa[0], sa[1]} {
 						if v == sb[0] || v == sb[1] {
-							if dist(x, g.Points[v]) <= 10*tol {
+							if plane.Dist(x, g.Points[v]) <= 10*tol {
 								near = true
 							}
 						}

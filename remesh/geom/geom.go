@@ -25,6 +25,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"tearline/solver/plane"
 )
 
 // Kind is the kind of a boundary piece.
@@ -439,18 +440,11 @@ func (p *Piece) inArcInterior(ang, tol float64) bool {
 func (p *Piece) Distance(x [2]float64) float64 {
 	if p.Kind == Arc {
 		if p.onArcAngle(angleOf(p.Centre, x), 0) {
-			return math.Abs(math.Hypot(x[0]-p.Centre[0], x[1]-p.Centre[1]) - p.Radius)
+			return math.Abs(plane.Dist(x, p.Centre) - p.Radius)
 		}
-		return math.Min(math.Hypot(x[0]-p.A[0], x[1]-p.A[1]), math.Hypot(x[0]-p.B[0], x[1]-p.B[1]))
+		return math.Min(plane.Dist(x, p.A), plane.Dist(x, p.B))
 	}
-	dx, dy := p.B[0]-p.A[0], p.B[1]-p.A[1]
-	l2 := dx*dx + dy*dy
-	t := 0.0
-	if l2 > 0 {
-		t = ((x[0]-p.A[0])*dx + (x[1]-p.A[1])*dy) / l2
-		t = math.Max(0, math.Min(1, t))
-	}
-	return math.Hypot(x[0]-p.A[0]-t*dx, x[1]-p.A[1]-t*dy)
+	return plane.SegDist(x, p.A, p.B)
 }
 
 // param returns the fraction t ∈ [0, 1] of the piece's length at the point

@@ -3,6 +3,7 @@ package geom
 import (
 	"math"
 	"strings"
+	"tearline/solver/plane"
 	"testing"
 )
 
@@ -110,15 +111,15 @@ func TestDiscretiseConforms(t *testing.T) {
 			// to each piece's length (common practice).
 			if p.Kind == Arc {
 				covered[g.SegmentMarks[s]-1] += math.Abs(p.param(b)-p.param(a)) * p.Length()
-				if ang := 2 * math.Asin(dist(a, b)/(2*p.Radius)); ang > MaxArcChordDeg*math.Pi/180*(1+1e-9) {
+				if ang := 2 * math.Asin(plane.Dist(a, b)/(2*p.Radius)); ang > MaxArcChordDeg*math.Pi/180*(1+1e-9) {
 					t.Errorf("%s: chord subtends %g°", c.name, ang*180/math.Pi)
 				}
 			} else {
-				covered[g.SegmentMarks[s]-1] += dist(a, b)
+				covered[g.SegmentMarks[s]-1] += plane.Dist(a, b)
 			}
 			// Segment sizes follow h: at most h at either end plus the
 			// variation of h along it (h is 1/d.Scale()-Lipschitz here).
-			if L := dist(a, b); L > 1.1*math.Max(size(a[0], a[1]), size(b[0], b[1])) {
+			if L := plane.Dist(a, b); L > 1.1*math.Max(size(a[0], a[1]), size(b[0], b[1])) {
 				t.Errorf("%s: segment of length %g where h ≤ %g", c.name, L, math.Max(size(a[0], a[1]), size(b[0], b[1])))
 			}
 		}
@@ -300,7 +301,7 @@ func TestPolygonOrientsAndSplits(t *testing.T) {
 	// Split puts the point on the arc, halfway in angle.
 	hp := &d.Holes[0][0]
 	m := d.Split(len(d.Outer)+1, hp.A, hp.At(0.5))
-	if r := dist(m, hp.Centre); math.Abs(r-0.25) > 1e-15 || dist(m, hp.At(0.25)) > 1e-15 {
+	if r := plane.Dist(m, hp.Centre); math.Abs(r-0.25) > 1e-15 || plane.Dist(m, hp.At(0.25)) > 1e-15 {
 		t.Errorf("split point %v at radius %.17g, want %v on the arc", m, r, hp.At(0.25))
 	}
 }

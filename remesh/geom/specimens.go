@@ -3,6 +3,7 @@ package geom
 import (
 	"fmt"
 	"math"
+	"tearline/solver/plane"
 )
 
 // Boundary labels used by the built-in specimens.
@@ -43,7 +44,7 @@ func line(a, b [2]float64, label string) Piece {
 }
 
 func arc(c, a, b [2]float64, cw bool, label string) Piece {
-	return Piece{Kind: Arc, A: a, B: b, Centre: c, Radius: dist(a, c), CW: cw, Label: label}
+	return Piece{Kind: Arc, A: a, B: b, Centre: c, Radius: plane.Dist(a, c), CW: cw, Label: label}
 }
 
 func positive(name string, v float64) error {

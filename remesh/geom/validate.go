@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"tearline/solver/plane"
 )
 
 // RelTol is the geometric tolerance relative to the domain's size (the
@@ -18,8 +19,6 @@ const MinCornerDeg = 0.1
 func finite2(p [2]float64) bool {
 	return !math.IsNaN(p[0]) && !math.IsNaN(p[1]) && !math.IsInf(p[0], 0) && !math.IsInf(p[1], 0)
 }
-
-func dist(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
 
 func pieceName(loop, i int, p *Piece) string {
 	return fmt.Sprintf("%s piece %d (%s %q)", loopName(loop), i, p.Kind, p.Label)
@@ -62,7 +61,7 @@ func (d *Domain) Validate() error {
 		}
 		for i := range l {
 			j := (i + 1) % len(l)
-			if dd := dist(l[i].B, l[j].A); dd > tol {
+			if dd := plane.Dist(l[i].B, l[j].A); dd > tol {
 				return fmt.Errorf("geometry: %s ends at (%g, %g) but piece %d starts at (%g, %g), %g away: a loop must be closed, each piece starting where the previous one ends (tolerance %g)",
 					pieceName(k, i, &l[i]), l[i].B[0], l[i].B[1], j, l[j].A[0], l[j].A[1], dd, tol)
 			}
@@ -164,12 +163,12 @@ func checkPiece(k, i int, p *Piece, tol float64) error {
 		if !(p.Radius > tol) {
 			return fmt.Errorf("geometry: %s has radius %g; an arc's radius must be > %g", pieceName(k, i, p), p.Radius, tol)
 		}
-		ra, rb := dist(p.A, p.Centre), dist(p.B, p.Centre)
+		ra, rb := plane.Dist(p.A, p.Centre), plane.Dist(p.B, p.Centre)
 		if math.Abs(ra-p.Radius) > 1e-9*p.Radius+tol || math.Abs(rb-p.Radius) > 1e-9*p.Radius+tol {
 			return fmt.Errorf("geometry: %s has inconsistent radius: radius %g, but its start is %g and its end %g from the centre (%g, %g); both ends must lie on the circle",
 				pieceName(k, i, p), p.Radius, ra, rb, p.Centre[0], p.Centre[1])
 		}
-		if dist(p.A, p.B) <= tol {
+		if plane.Dist(p.A, p.B) <= tol {
 			return fmt.Errorf("geometry: %s starts and ends at the same point (%g, %g); an arc must sweep less than a full turn (give a circle as two arcs)", pieceName(k, i, p), p.A[0], p.A[1])
 		}
 	default:
@@ -241,7 +240,7 @@ func (d *Domain) checkIntersections(tol float64) error {
 			var shared [][2]float64
 			for _, x := range [][2]float64{pa.p.A, pa.p.B} {
 				for _, y := range [][2]float64{pb.p.A, pb.p.B} {
-					if dist(x, y) <= tol {
+					if plane.Dist(x, y) <= tol {
 						shared = append(shared, x)
 					}
 				}
@@ -249,7 +248,7 @@ func (d *Domain) checkIntersections(tol float64) error {
 		pts:
 			for _, x := range pts {
 				for _, s := range shared {
-					if dist(x, s) <= 10*tol {
+					if plane.Dist(x, s) <= 10*tol {
 						continue pts
 					}
 				}
@@ -341,7 +340,7 @@ func segArc(a, b [2]float64, q *Piece, tol float64) [][2]float64 {
 }
 
 func arcArc(p, q *Piece, tol float64) ([][2]float64, bool) {
-	dc := dist(p.Centre, q.Centre)
+	dc := plane.Dist(p.Centre, q.Centre)
 	if dc <= tol && math.Abs(p.Radius-q.Radius) <= tol {
 		// Same circle: overlap when either arc's interior reaches into the other.
 		in := func(a, b *Piece) bool {

@@ -6,6 +6,8 @@ import (
 	"os"
 	"strconv"
 	"testing"
+
+	"tearline/solver/plane"
 )
 
 // circleLoop returns n points on the circle of radius R about c,
@@ -99,7 +101,7 @@ func TestArcSplit(t *testing.T) {
 						t.Fatalf("sub-segment %d end (%g, %g) at radius %.15g, want %g", j, p[0], p[1], r, ci.R)
 					}
 				}
-				th := 2 * math.Asin(dist(a, b)/(2*ci.R))
+				th := 2 * math.Asin(plane.Dist(a, b)/(2*ci.R))
 				segArea += ci.R * ci.R * (th - math.Sin(th)) / 2
 			}
 			area := meshArea(m)
@@ -191,7 +193,7 @@ func TestArcSmallAngle(t *testing.T) {
 	shortest := math.Inf(1)
 	for _, tr := range m.Triangles {
 		for k := 0; k < 3; k++ {
-			shortest = math.Min(shortest, dist(m.Points[tr[k]], m.Points[tr[(k+1)%3]]))
+			shortest = math.Min(shortest, plane.Dist(m.Points[tr[k]], m.Points[tr[(k+1)%3]]))
 		}
 	}
 	if shortest < 1e-4 {
@@ -203,7 +205,7 @@ func TestArcSmallAngle(t *testing.T) {
 			continue
 		}
 		for _, v := range s {
-			if r := dist(m.Points[v], [2]float64{ci[0], ci[1]}); math.Abs(r-ci[2]) > 1e-12 {
+			if r := plane.Dist(m.Points[v], [2]float64{ci[0], ci[1]}); math.Abs(r-ci[2]) > 1e-12 {
 				t.Errorf("arc vertex %d at radius %.15g, want %.15g", v, r, ci[2])
 			}
 		}
@@ -254,10 +256,10 @@ func TestArcHoleNearBoundary(t *testing.T) {
 			if m.SegmentMarks[j] != 1 {
 				continue
 			}
-			if r := dist(a, c); math.Abs(r-R) > 1e-12 {
+			if r := plane.Dist(a, c); math.Abs(r-R) > 1e-12 {
 				t.Errorf("hole vertex (%g, %g) at radius %.15g, want %g", a[0], a[1], r, R)
 			}
-			th := 2 * math.Asin(dist(a, b)/(2*R))
+			th := 2 * math.Asin(plane.Dist(a, b)/(2*R))
 			segArea += R * R * (th - math.Sin(th)) / 2
 		}
 		area := meshArea(m)
@@ -303,7 +305,7 @@ func TestArcInwardPastFlatTriangle(t *testing.T) {
 		green += 0.5 * (a[0]*b[1] - b[0]*a[1])
 		if ar, ok := arcs[m.SegmentMarks[j]]; ok && s[0] >= nIn {
 			total++
-			if math.Abs(dist(a, ar.c)-ar.r) <= 1e-12*ar.r {
+			if math.Abs(plane.Dist(a, ar.c)-ar.r) <= 1e-12*ar.r {
 				onArc++
 			}
 		}

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"tearline/solver/plane"
 )
 
 // coincidentTol is the relative distance (to the diameter of the input's
@@ -66,7 +68,7 @@ func (m *tmesh) build(pts [][2]float64) error {
 				if j == i || j >= int32(n) {
 					continue
 				}
-				if d := dist(m.xy[i], m.xy[j]); d < tol {
+				if d := plane.Dist(m.xy[i], m.xy[j]); d < tol {
 					return fmt.Errorf("tri: points %d and %d are nearly coincident (distance %g, below %g × the input diameter %g)", j, i, d, coincidentTol, diam)
 				}
 			}
@@ -74,8 +76,6 @@ func (m *tmesh) build(pts [][2]float64) error {
 	}
 	return nil
 }
-
-func dist(a, b [2]float64) float64 { return math.Hypot(a[0]-b[0], a[1]-b[1]) }
 
 // newSeg records a constrained sub-segment a→b on edge reference e.
 func (m *tmesh) newSeg(e, a, b int32, mark int, orig int32) {
@@ -135,8 +135,8 @@ func (m *tmesh) crossings(a, b int32) (cross [][2]int32, on, seg int32, err erro
 	for _, t := range m.star(a) {
 		s := m.slot(t, a)
 		x, y := m.tv[3*t+next3(s)], m.tv[3*t+prev3(s)]
-		ox := orient(pa, m.xy[x], pb)
-		oy := orient(pa, m.xy[y], pb)
+		ox := plane.Orient(pa, m.xy[x], pb)
+		oy := plane.Orient(pa, m.xy[y], pb)
 		if ox == 0 && dot(sub(m.xy[x], pa), sub(pb, pa)) > 0 {
 			return nil, x, -1, nil
 		}
@@ -167,7 +167,7 @@ func (m *tmesh) crossings(a, b int32) (cross [][2]int32, on, seg int32, err erro
 		if z == b {
 			return cross, -1, -1, nil
 		}
-		oz := orient(pa, pb, m.xy[z])
+		oz := plane.Orient(pa, pb, m.xy[z])
 		if oz == 0 {
 			return cross, z, -1, nil
 		}
@@ -221,13 +221,13 @@ func (m *tmesh) recoverEdge(a, b int32, cross [][2]int32) ([][2]int32, error) {
 		n := m.tn[e]
 		p0, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
 		q0 := m.tv[n]
-		if !(orient(m.xy[p0], m.xy[p1], m.xy[q0]) > 0 && orient(m.xy[p0], m.xy[q0], m.xy[p2]) > 0) {
+		if !(plane.Orient(m.xy[p0], m.xy[p1], m.xy[q0]) > 0 && plane.Orient(m.xy[p0], m.xy[q0], m.xy[p2]) > 0) {
 			cross = append(cross, xy) // not convex yet: try later
 			continue
 		}
 		m.flip(t, i)
 		if p0 != a && p0 != b && q0 != a && q0 != b &&
-			(orient(pa, pb, m.xy[p0]) > 0) != (orient(pa, pb, m.xy[q0]) > 0) {
+			(plane.Orient(pa, pb, m.xy[p0]) > 0) != (plane.Orient(pa, pb, m.xy[q0]) > 0) {
 			cross = append(cross, [2]int32{p0, q0})
 		} else {
 			made = append(made, [2]int32{p0, q0})
@@ -249,7 +249,7 @@ func (m *tmesh) legalizeEdges(edges [][2]int32) {
 		t, i := e/3, e%3
 		p0, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
 		q0 := m.tv[m.tn[e]]
-		if inCircle(m.xy[p0], m.xy[p1], m.xy[p2], m.xy[q0]) > 0 {
+		if plane.InCircle(m.xy[p0], m.xy[p1], m.xy[p2], m.xy[q0]) > 0 {
 			m.flip(t, i)
 			edges = append(edges, [2]int32{p0, p1}, [2]int32{p1, q0}, [2]int32{q0, p2}, [2]int32{p2, p0})
 		}

@@ -1,6 +1,10 @@
 package tri
 
-import "fmt"
+import (
+	"fmt"
+
+	"tearline/solver/plane"
+)
 
 // Check verifies the structural invariants of a mesh: vertex indices in
 // range, every triangle counter-clockwise with positive area (exact test), no
@@ -19,7 +23,7 @@ func Check(m *Mesh) error {
 				return fmt.Errorf("tri: triangle %d vertex %d index %d outside [0, %d)", i, k, v, np)
 			}
 		}
-		if o := orient(m.Points[t[0]], m.Points[t[1]], m.Points[t[2]]); !(o > 0) {
+		if o := plane.Orient(m.Points[t[0]], m.Points[t[1]], m.Points[t[2]]); !(o > 0) {
 			return fmt.Errorf("tri: triangle %d (%d %d %d) is not counter-clockwise (orientation %g)", i, t[0], t[1], t[2], o)
 		}
 		key := t

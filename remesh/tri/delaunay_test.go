@@ -8,6 +8,8 @@ import (
 	"os/exec"
 	"sort"
 	"testing"
+
+	"tearline/solver/plane"
 )
 
 func randomPoints(r *rand.Rand, n int, grid bool) [][2]float64 {
@@ -39,7 +41,7 @@ func hullCount(p [][2]float64) int {
 			}
 			left, right := false, false
 			for k := range p {
-				switch o := orient(p[i], p[j], p[k]); {
+				switch o := plane.Orient(p[i], p[j], p[k]); {
 				case o > 0:
 					left = true
 				case o < 0:
@@ -48,7 +50,7 @@ func hullCount(p [][2]float64) int {
 			}
 			if !(left && right) { // i–j supports the hull
 				for k := range p {
-					if orient(p[i], p[j], p[k]) == 0 {
+					if plane.Orient(p[i], p[j], p[k]) == 0 {
 						on[k] = true
 					}
 				}
@@ -95,7 +97,7 @@ func TestCDTPointSets(t *testing.T) {
 					if k == tr[0] || k == tr[1] || k == tr[2] {
 						continue
 					}
-					if inCircle(p[tr[0]], p[tr[1]], p[tr[2]], q) > 0 {
+					if plane.InCircle(p[tr[0]], p[tr[1]], p[tr[2]], q) > 0 {
 						t.Fatalf("point %d lies inside the circumcircle of triangle %d %v", k, i, tr)
 					}
 				}
@@ -197,7 +199,7 @@ func TestSmallInputAngles(t *testing.T) {
 			// shortest edge
 			best, bi := math.Inf(1), 0
 			for k := 0; k < 3; k++ {
-				if l := dist(m.Points[tr[k]], m.Points[tr[(k+1)%3]]); l < best {
+				if l := plane.Dist(m.Points[tr[k]], m.Points[tr[(k+1)%3]]); l < best {
 					best, bi = l, k
 				}
 			}

@@ -5,6 +5,8 @@ import (
 	"math/rand"
 	"os"
 	"testing"
+
+	"tearline/solver/plane"
 )
 
 // fuzzPolygon turns fuzz bytes into an input: a star-shaped (hence simple)
@@ -95,7 +97,7 @@ func fuzzDomain(data []byte) (in *Input, simple bool, area float64, opt *Options
 			}
 			c := [2]float64{mid[0] + f*L*nrm[0], mid[1] + f*L*nrm[1]}
 			in.SegmentMarks[k] = 100 + k
-			arcs[100+k] = fuzzArc{c, dist(a, c)}
+			arcs[100+k] = fuzzArc{c, plane.Dist(a, c)}
 		}
 		opt.Split = func(mark int, a, b [2]float64) [2]float64 {
 			m := [2]float64{(a[0] + b[0]) / 2, (a[1] + b[1]) / 2}
@@ -142,7 +144,7 @@ func FuzzTriangulate(f *testing.F) {
 			if ar, ok := arcs[m.SegmentMarks[j]]; ok {
 				for _, p := range [2][2]float64{a, b} {
 					// points off the arc only where the mesher had to split on the chord
-					if r := dist(p, ar.c); math.Abs(r-ar.r) > 0.5*ar.r {
+					if r := plane.Dist(p, ar.c); math.Abs(r-ar.r) > 0.5*ar.r {
 						t.Fatalf("arc point %v at radius %g, arc radius %g", p, r, ar.r)
 					}
 				}

@@ -1,6 +1,10 @@
 package tri
 
-import "math"
+import (
+	"math"
+
+	"tearline/solver/plane"
+)
 
 // Report summarises the quality of a mesh.
 type Report struct {
@@ -24,7 +28,7 @@ func Quality(m *Mesh, size func(x, y float64) float64) Report {
 		var l [3]float64 // l[k]: length of the edge opposite vertex k
 		for k := 0; k < 3; k++ {
 			used[t[k]] = true
-			l[k] = dist(p[(k+1)%3], p[(k+2)%3])
+			l[k] = plane.Dist(p[(k+1)%3], p[(k+2)%3])
 		}
 		for k := 0; k < 3; k++ {
 			a, b, c := l[k], l[(k+1)%3], l[(k+2)%3]

@@ -3,6 +3,8 @@ package tri
 import (
 	"fmt"
 	"math"
+
+	"tearline/solver/plane"
 )
 
 // refiner carries out Delaunay refinement (Ruppert 1995, J. Algorithms 18;
@@ -276,7 +278,7 @@ func (r *refiner) splitPoint(a, b int32) [2]float64 {
 		if ib {
 			w, o = pb, pa
 		}
-		L := dist(pa, pb)
+		L := plane.Dist(pa, pb)
 		d := math.Exp2(math.Ceil(math.Log2(L / 3)))
 		if f := d / L; f > 0.3 && f < 0.7 {
 			return [2]float64{w[0] + f*(o[0]-w[0]), w[1] + f*(o[1]-w[1])}
@@ -289,7 +291,7 @@ func (r *refiner) splitPoint(a, b int32) [2]float64 {
 func (r *refiner) splitSeg(s int32) error {
 	m := r.m
 	a, b := m.sa[s], m.sb[s]
-	if dist(m.xy[a], m.xy[b]) < r.minLen {
+	if plane.Dist(m.xy[a], m.xy[b]) < r.minLen {
 		return nil
 	}
 	e := m.findEdge(a, b)
@@ -309,7 +311,7 @@ func (r *refiner) splitSeg(s int32) error {
 		}
 		t, i := f/3, f%3
 		p0, p1, p2 := m.xy[m.tv[f]], m.xy[m.tv[3*t+next3(i)]], m.xy[m.tv[3*t+prev3(i)]]
-		if !(orient(p, p2, p0) > 0 && orient(p, p0, p1) > 0) {
+		if !(plane.Orient(p, p2, p0) > 0 && plane.Orient(p, p0, p1) > 0) {
 			return fmt.Errorf("tri: splitting the sub-segment (%g, %g)–(%g, %g) of segment %d would invert a triangle (features too close for float64)", m.xy[a][0], m.xy[a][1], m.xy[b][0], m.xy[b][1], m.sorig[s])
 		}
 	}
@@ -342,18 +344,18 @@ func (r *refiner) curvedPoint(s int32) ([2]float64, bool) {
 	if ib {
 		w, o = x2, x1
 	}
-	L := dist(x1, x2)
+	L := plane.Dist(x1, x2)
 	d := math.Exp2(math.Ceil(math.Log2(L / 3)))
 	if f := d / L; !(f > 0.3 && f < 0.7) {
 		return p, true
 	}
 	lo, hi := w, o // points on the curve with |lo−w| < d ≤ |hi−w|
-	for it := 0; it < 60 && dist(lo, hi) > 1e-14*L; it++ {
+	for it := 0; it < 60 && plane.Dist(lo, hi) > 1e-14*L; it++ {
 		q := r.split(m.smark[s], lo, hi)
-		if !r.curvedOK(q, lo, hi) && dist(lo, hi) > 1e-6*L {
+		if !r.curvedOK(q, lo, hi) && plane.Dist(lo, hi) > 1e-6*L {
 			return p, true // Split misbehaves on short pieces: keep its midpoint
 		}
-		if dist(q, w) < d {
+		if plane.Dist(q, w) < d {
 			lo = q
 		} else {
 			hi = q
@@ -390,7 +392,7 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 	t, i := e/3, e%3
 	c, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
 	x1, x2 := m.xy[p1], m.xy[p2]
-	o := orient(x1, x2, p)
+	o := plane.Orient(x1, x2, p)
 	var v int32
 	switch {
 	case o < 0: // outside the domain: add triangle [v p2 p1]
@@ -406,7 +408,7 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 		m.legalize()
 	case o > 0: // inside: t = [c p1 p2] becomes [v p2 c] and [v c p1]
 		xc := m.xy[c]
-		if !(orient(x2, xc, p) > 0 && orient(xc, x1, p) > 0) {
+		if !(plane.Orient(x2, xc, p) > 0 && plane.Orient(xc, x1, p) > 0) {
 			return r.splitInward(s, e, p)
 		}
 		r.nCurvedIn++
@@ -436,11 +438,11 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 // edges and the segment's line; exact).
 func crossesOpenTri(u, w, a, b, c [2]float64) bool {
 	for _, e := range [3][2][2]float64{{a, b}, {b, c}, {c, a}} {
-		if orient(e[0], e[1], u) <= 0 && orient(e[0], e[1], w) <= 0 {
+		if plane.Orient(e[0], e[1], u) <= 0 && plane.Orient(e[0], e[1], w) <= 0 {
 			return false
 		}
 	}
-	oa, ob, oc := orient(u, w, a), orient(u, w, b), orient(u, w, c)
+	oa, ob, oc := plane.Orient(u, w, a), plane.Orient(u, w, b), plane.Orient(u, w, c)
 	if (oa >= 0 && ob >= 0 && oc >= 0) || (oa <= 0 && ob <= 0 && oc <= 0) {
 		return false
 	}
@@ -471,7 +473,7 @@ func (r *refiner) splitInward(s, e int32, p [2]float64) bool {
 		}
 		for k := int32(0); k < 3; k++ {
 			q := m.xy[m.tv[3*u+k]]
-			if orient(x1, x2, q) > 0 && orient(x2, p, q) >= 0 && orient(p, x1, q) >= 0 {
+			if plane.Orient(x1, x2, q) > 0 && plane.Orient(x2, p, q) >= 0 && plane.Orient(p, x1, q) >= 0 {
 				m.stack = st
 				return false // a vertex in the lens (or on its new sides)
 			}
@@ -584,7 +586,7 @@ func (r *refiner) splitTri(t int32) {
 	kind, ref := m.locate(c, t, true)
 	switch kind {
 	case locSeg:
-		if s := m.ts[ref]; dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+		if s := m.ts[ref]; plane.Dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
 			r.pushSeg(s)
 			r.pushTri(t)
 		}
@@ -624,7 +626,7 @@ func (r *refiner) splitTri(t int32) {
 				continue
 			}
 			w := n / 3
-			if inCircle(m.xy[m.tv[3*w]], m.xy[m.tv[3*w+1]], m.xy[m.tv[3*w+2]], c) > 0 {
+			if plane.InCircle(m.xy[m.tv[3*w]], m.xy[m.tv[3*w+1]], m.xy[m.tv[3*w+2]], c) > 0 {
 				m.stamp[w] = m.epoch
 				st = append(st, w)
 			}
@@ -634,7 +636,7 @@ func (r *refiner) splitTri(t int32) {
 	if len(r.enc) > 0 {
 		pushed := false
 		for _, s := range r.enc {
-			if dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+			if plane.Dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
 				r.pushSeg(s)
 				pushed = true
 			}

@@ -1,6 +1,10 @@
 package tri
 
-import "fmt"
+import (
+	"fmt"
+
+	"tearline/solver/plane"
+)
 
 // tmesh is the working triangulation: flat int32 arrays for topology.
 //
@@ -141,7 +145,7 @@ func (m *tmesh) legalize() {
 			continue
 		}
 		q := m.tv[n]
-		if inCircle(m.xy[m.tv[e]], m.xy[m.tv[e+1]], m.xy[m.tv[e+2]], m.xy[q]) > 0 {
+		if plane.InCircle(m.xy[m.tv[e]], m.xy[m.tv[e+1]], m.xy[m.tv[e+2]], m.xy[q]) > 0 {
 			u := m.flip(t, 0)
 			m.stack = append(m.stack, t, u)
 		}
@@ -321,7 +325,7 @@ func (m *tmesh) locate(p [2]float64, t int32, stopSeg bool) (kind int, ref int32
 		for kk := int32(0); kk < 3; kk++ {
 			i := (off + kk) % 3
 			e := 3*t + i
-			o := orient(m.xy[m.tv[3*t+next3(i)]], m.xy[m.tv[3*t+prev3(i)]], p)
+			o := plane.Orient(m.xy[m.tv[3*t+next3(i)]], m.xy[m.tv[3*t+prev3(i)]], p)
 			if o < 0 {
 				if stopSeg && m.ts[e] >= 0 {
 					return locSeg, e

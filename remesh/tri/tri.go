@@ -21,8 +21,8 @@
 // encroached sub-segments first (at concentric power-of-two shells around
 // input vertices, so refinement terminates near small input angles), then
 // triangles that are too large or have a too small angle at their
-// circumcentre. Orientation and in-circle tests are exact (Shewchuk 1997,
-// Discrete Comput. Geom. 18).
+// circumcentre. Orientation and in-circle tests are exact (solver/plane,
+// after Shewchuk 1997, Discrete Comput. Geom. 18).
 //
 // The size of a triangle is its longest edge. Refinement splits every
 // triangle whose size exceeds h at its centroid, so every triangle of the
@@ -46,6 +46,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"tearline/solver/plane"
 )
 
 // Input is a planar straight-line graph to triangulate.
@@ -235,7 +237,7 @@ func hull(p [][2]float64) [][2]int {
 	for pass := 0; pass < 2; pass++ {
 		start := len(h)
 		for _, i := range idx {
-			for len(h) >= start+2 && orient(p[h[len(h)-2]], p[h[len(h)-1]], p[i]) <= 0 {
+			for len(h) >= start+2 && plane.Orient(p[h[len(h)-2]], p[h[len(h)-1]], p[i]) <= 0 {
 				h = h[:len(h)-1]
 			}
 			h = append(h, i)

@@ -4,6 +4,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"tearline/solver/plane"
 )
 
 // loop returns segments joining points first…first+n-1 in a closed loop.
@@ -291,7 +293,7 @@ func checkLocallyDelaunay(t *testing.T, m *Mesh) {
 		if !ok || seg[e] {
 			continue
 		}
-		if inCircle(m.Points[e.a], m.Points[e.b], m.Points[c], m.Points[d]) > 0 {
+		if plane.InCircle(m.Points[e.a], m.Points[e.b], m.Points[c], m.Points[d]) > 0 {
 			bad++
 		}
 	}

@@ -211,7 +211,7 @@ func TestCrackPlaneSymmetry(t *testing.T) {
 		}
 		touched := make([]bool, len(m.X))
 		for e, tri := range m.Tri {
-			if !p.Broken(e) {
+			if !p.Released(e) {
 				for _, n := range tri {
 					touched[n] = true
 				}

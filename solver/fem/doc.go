@@ -32,6 +32,14 @@
 // material state for the crack-growth criteria, NodalField the nodal
 // fields for output, Reaction and PinForce the forces.
 //
+// After a state transfer onto a new mesh (committed.go), MaterialStrain
+// gives the strain the material sees in the committed unknowns, so that
+// the caller can make the transferred plastic strain consistent with the
+// transferred displacement; ProjectVolume, Straighten and
+// ResetRegularisation repair what interpolation breaks (θ out of step with
+// the displacement, inverted curved elements, a multiplier field that
+// leaves no elastic range) before the first assembly.
+//
 // Structured builds simple structured meshes (rectangles, annular sectors)
 // for verification.
 package fem

@@ -136,3 +136,15 @@ func (p *Problem) DeformationGradient(e int, l [3]float64, u []float64) ([5]floa
 	}
 	return F, nil
 }
+
+// Elements returns the number of elements the Gauss-point data covers, or
+// an error when it is missing or its points do not fill whole elements.
+func (g *GaussPoints) Elements() (int, error) {
+	if g == nil || g.PerElement <= 0 {
+		return 0, fmt.Errorf("Gauss-point data missing or with no points per element")
+	}
+	if len(g.Points)%g.PerElement != 0 {
+		return 0, fmt.Errorf("%d Gauss points do not fill elements of %d points", len(g.Points), g.PerElement)
+	}
+	return len(g.Points) / g.PerElement, nil
+}

@@ -439,10 +439,10 @@ func (p *Problem) releaseSymmetry() {
 	}
 }
 
-// Broken reports whether element e has left the assembly: all its points
+// Released reports whether element e has left the assembly: all its points
 // are broken, or it is releasing its force (Options.ReleaseSteps) or has
 // released it.
-func (p *Problem) Broken(e int) bool { return !p.active[e] }
+func (p *Problem) Released(e int) bool { return !p.active[e] }
 
 // State returns the committed material state, [element][point of
 // ElementRule]. The slices belong to the problem; SetState copies.

@@ -1,5 +1,7 @@
 package fem
 
+import "tearline/solver/plane"
+
 // ShapeP2 returns the 6-node (quadratic) triangle's shape functions at the
 // area coordinates l: vertices 0, 1, 2, then the midside nodes of edges 0–1,
 // 1–2 and 2–0 (standard serendipity-free quadratic Lagrange triangle).
@@ -28,10 +30,6 @@ func ShapeP1(l [3]float64) [3]float64 { return l }
 
 // Barycentric returns the area coordinates of p in the straight-sided
 // triangle a, b, c (any orientation; degenerate triangles give Inf/NaN,
-// callers check the area first).
-func Barycentric(p, a, b, c [2]float64) [3]float64 {
-	det := (b[0]-a[0])*(c[1]-a[1]) - (c[0]-a[0])*(b[1]-a[1])
-	l1 := ((b[0]-p[0])*(c[1]-p[1]) - (c[0]-p[0])*(b[1]-p[1])) / det
-	l2 := ((c[0]-p[0])*(a[1]-p[1]) - (a[0]-p[0])*(c[1]-p[1])) / det
-	return [3]float64{l1, l2, 1 - l1 - l2}
-}
+// callers check the area first). It is plane.Barycentric, the one
+// evaluation that element location shares.
+func Barycentric(p, a, b, c [2]float64) [3]float64 { return plane.Barycentric(p, a, b, c) }

@@ -19,7 +19,8 @@
 // it is von Mises plasticity. Hardening laws: PowerLaw, Voce, Tabulated,
 // PerfectlyPlastic. Every parameter set has Validate; models are immutable
 // and safe for concurrent Update calls on different points; Update does not
-// allocate.
+// allocate. A model with a yield surface implements Plastic, which lets a
+// caller bring a state mapped from another mesh back onto the surface.
 //
 // # Conventions
 //

@@ -29,9 +29,11 @@
 // Duff 1996, SIAM J. Matrix Anal. Appl. 17). Before ordering, every
 // variable with a zero or absent diagonal (a multiplier of a saddle-point
 // system) is paired with a neighbour and the pair is ordered as one node,
-// so both land in the same front. The matrix is equilibrated (Ruiz 2001)
-// so that the pivot threshold compares like with like across fields with
-// different units. Each front is a dense matrix factored with blocked
+// so both land in the same front. The matrix is equilibrated in two stages
+// — the one-pass row-then-column scaling of LAPACK's dgeequ, then the
+// iteration of Ruiz 2001 — so that the pivot threshold compares like with
+// like across fields with different units; the caller's matrix is not
+// changed. Each front is a dense matrix factored with blocked
 // kernels (gonum's blas64); pivots are chosen by threshold partial pivoting
 // inside the fully summed block, and a column that fails the threshold is
 // delayed to the parent front. Independent subtrees of the assembly tree

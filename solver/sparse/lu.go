@@ -99,7 +99,8 @@ func (e *SingularError) Error() string {
 // ErrNotFactorized is returned by Solve before a successful Factorize.
 var ErrNotFactorized = errors.New("sparse: LU not factorized")
 
-// LU is a sparse LU factorisation P·A·Q = L·U of a square matrix. The zero
+// LU is a sparse LU factorisation P·A·Q = L·U of a square matrix, of the
+// matrix equilibrated by row and column scaling (see equilibrate). The zero
 // value is ready to use with DefaultOptions; NewLU sets other options.
 //
 // Analyze computes the ordering and symbolic analysis for a pattern;
@@ -114,13 +115,14 @@ type LU struct {
 	num numeric
 	ok  bool // numeric factors valid
 
-	a *CSR // matrix last factorized (for refinement)
-
-	// Equilibration D_r·A·D_c and the scaled values.
+	// Equilibration in two stages: R = diag(r1), C = diag(c1) and the
+	// values of R·A·C (the system Solve refines); then D_r = diag(rs),
+	// D_c = diag(cs) and the values of D_r·R·A·C·D_c (the matrix factored).
+	r1, c1, val1 []float64
 	rs, cs, sval []float64
 
 	// Solve work space.
-	w, x, r, d, t []float64
+	w, x, r, d, t, rb []float64
 }
 
 // NewLU returns an LU that uses the given options.
@@ -194,12 +196,14 @@ func (lu *LU) Factorize(a *CSR) error {
 			return fmt.Errorf("sparse: matrix holds a non-finite value %g", v)
 		}
 	}
-	amax := lu.equilibrate(a)
+	amax, err := lu.equilibrate(a)
+	if err != nil {
+		return err
+	}
 	o := lu.options()
 	if err := lu.num.factor(lu.sym, lu.sval, o.PivotThreshold, o.SingularTol*amax, o.Workers); err != nil {
 		return err
 	}
-	lu.a = a
 	lu.ok = true
 	n := a.Rows
 	if len(lu.w) != n {
@@ -208,6 +212,7 @@ func (lu *LU) Factorize(a *CSR) error {
 		lu.r = make([]float64, n)
 		lu.d = make([]float64, n)
 		lu.t = make([]float64, n)
+		lu.rb = make([]float64, n)
 	}
 	return nil
 }
@@ -224,9 +229,9 @@ func (lu *LU) NNZ() int {
 // Solve solves A·x = b for x, stored in dst, using the last factorisation,
 // followed by up to Options.RefineSteps steps of iterative refinement
 // (Wilkinson; see Higham 2002, Accuracy and Stability of Numerical
-// Algorithms, ch. 12). dst and b may be the same slice. The matrix used for
-// refinement is the one passed to Factorize; its values must not have
-// changed since.
+// Algorithms, ch. 12). dst and b may be the same slice. Solve works on the
+// system of the first equilibration stage, (R·A·C)·y = R·b, refines y
+// against R·A·C, and returns x = C·y; it does not allocate.
 func (lu *LU) Solve(dst, b []float64) error {
 	if !lu.ok {
 		return ErrNotFactorized
@@ -235,21 +240,26 @@ func (lu *LU) Solve(dst, b []float64) error {
 	if len(dst) != n || len(b) != n {
 		return fmt.Errorf("sparse: Solve with len(dst)=%d, len(b)=%d for a %d×%d factorisation", len(dst), len(b), n, n)
 	}
-	lu.apply(lu.x, b)
+	rb := lu.rb
+	for i, v := range b {
+		rb[i] = lu.r1[i] * v
+	}
+	lu.apply(lu.x, rb)
 	steps := lu.options().RefineSteps
 	if steps > 0 {
 		// Refine while the componentwise backward error (Oettli & Prager
 		// 1964, Numer. Math. 6) is above a few units of roundoff; stopping
 		// rule after Arioli, Demmel & Duff 1989, SIAM J. Matrix Anal. Appl.
 		// 10, "Solving sparse linear systems with sparse backward error".
-		rnorm := lu.residual(lu.d, lu.x, b)
+		rnorm := lu.residual(lu.d, lu.x, rb)
 		for k := 0; k < steps && rnorm > 4*epsilon; k++ {
-			// d holds r = b − A·x; solve A·e = r and try x + e.
+			// d holds r = R·b − R·A·C·y; solve for the correction e and
+			// try y + e.
 			lu.apply(lu.r, lu.d)
 			for i := range lu.r {
 				lu.r[i] += lu.x[i]
 			}
-			rn := lu.residual(lu.d, lu.r, b)
+			rn := lu.residual(lu.d, lu.r, rb)
 			if !(rn < rnorm) {
 				break
 			}
@@ -257,11 +267,14 @@ func (lu *LU) Solve(dst, b []float64) error {
 			rnorm = rn
 		}
 	}
-	copy(dst, lu.x)
+	for j := range dst {
+		dst[j] = lu.x[j] * lu.c1[j]
+	}
 	return nil
 }
 
-// apply sets x = A⁻¹·b from the factors of D_r·A·D_c; b is not changed.
+// apply sets x = (R·A·C)⁻¹·b from the factors of D_r·R·A·C·D_c; b is not
+// changed.
 func (lu *LU) apply(x, b []float64) {
 	for i, v := range b {
 		lu.t[i] = v * lu.rs[i]
@@ -272,22 +285,84 @@ func (lu *LU) apply(x, b []float64) {
 	}
 }
 
-// equilibrate computes row and column scalings that bring the largest
-// magnitude of every row and column of D_r·A·D_c close to 1, by the
-// iteration of Ruiz 2001 ("A scaling algorithm to equilibrate both rows and
-// columns norms in matrices", Rutherford Appleton Laboratory
-// RAL-TR-2001-034), and stores the scaled values. It returns the largest
-// scaled magnitude. Scaling makes the pivot threshold compare like with
-// like in systems whose fields have different units.
-func (lu *LU) equilibrate(a *CSR) float64 {
+// equilibrate scales A in two stages and stores the scaled values: every
+// row and column of D_r·R·A·C·D_c has largest magnitude close to 1, so that
+// the pivot threshold compares like with like in systems whose fields have
+// different units (displacement, volume and multiplier rows of a mixed
+// element differ by powers of the element size and the moduli). It returns
+// the largest magnitude of the matrix factored, and an error if the
+// scaling overflows (a row or column whose largest magnitude is
+// subnormal).
+//
+// The first stage, scaleByMax, brings each row and then each column to
+// largest magnitude exactly 1 in one pass; the second, the iteration of
+// Ruiz, balances rows and columns together.
+func (lu *LU) equilibrate(a *CSR) (float64, error) {
 	n := a.Rows
 	if len(lu.rs) != n || len(lu.sval) != len(a.Val) {
+		lu.r1 = make([]float64, n)
+		lu.c1 = make([]float64, n)
+		lu.val1 = make([]float64, len(a.Val))
 		lu.rs = make([]float64, n)
 		lu.cs = make([]float64, n)
 		lu.sval = make([]float64, len(a.Val))
 		lu.d = make([]float64, n)
 		lu.t = make([]float64, n)
 	}
+	lu.scaleByMax(a)
+	for i := 0; i < n; i++ {
+		for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
+			if v := lu.val1[p]; math.IsNaN(v) || math.IsInf(v, 0) {
+				return 0, fmt.Errorf("sparse: entry (%d, %d) = %g cannot be equilibrated: its row or column scale overflows", i, a.ColInd[p], a.Val[p])
+			}
+		}
+	}
+	return lu.ruiz(a), nil
+}
+
+// scaleByMax is the first stage of equilibrate, the two-pass scaling of
+// LAPACK's dgeequ (Anderson et al., LAPACK Users' Guide, 3rd ed., SIAM
+// 1999): r_i = 1/max_j |a_ij|, then c_j = 1/max_i |r_i a_ij|, with 1 for
+// an empty row or column. It stores R·A·C, scaled by r_i and then by c_j.
+func (lu *LU) scaleByMax(a *CSR) {
+	r, c, v := lu.r1, lu.c1, lu.val1
+	clear(c)
+	for i := 0; i < a.Rows; i++ {
+		m := 0.0
+		for q := a.RowPtr[i]; q < a.RowPtr[i+1]; q++ {
+			m = math.Max(m, math.Abs(a.Val[q]))
+		}
+		r[i] = 1
+		if m > 0 {
+			r[i] = 1 / m
+		}
+		for q := a.RowPtr[i]; q < a.RowPtr[i+1]; q++ {
+			v[q] = a.Val[q] * r[i]
+			j := a.ColInd[q]
+			c[j] = math.Max(c[j], math.Abs(v[q]))
+		}
+	}
+	for j, m := range c {
+		if m > 0 {
+			c[j] = 1 / m
+		} else {
+			c[j] = 1
+		}
+	}
+	for q, j := range a.ColInd {
+		v[q] *= c[j]
+	}
+}
+
+// ruiz is the second stage of equilibrate: row and column scalings D_r,
+// D_c of R·A·C by the iteration of Ruiz 2001 ("A scaling algorithm to
+// equilibrate both rows and columns norms in matrices", Rutherford Appleton
+// Laboratory RAL-TR-2001-034), which divides every row and column by the
+// square root of its largest magnitude until all are within 1% of 1 (at
+// most 20 sweeps). It
+// stores D_r·R·A·C·D_c and returns its largest magnitude.
+func (lu *LU) ruiz(a *CSR) float64 {
+	n := a.Rows
 	rs, cs := lu.rs, lu.cs
 	rmax, cmax := lu.d, lu.t // scratch
 	for i := range rs {
@@ -299,7 +374,7 @@ func (lu *LU) equilibrate(a *CSR) float64 {
 		for i := 0; i < n; i++ {
 			for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
 				j := a.ColInd[p]
-				v := math.Abs(a.Val[p]) * rs[i] * cs[j]
+				v := math.Abs(lu.val1[p]) * rs[i] * cs[j]
 				rmax[i] = max(rmax[i], v)
 				cmax[j] = max(cmax[j], v)
 			}
@@ -322,7 +397,7 @@ func (lu *LU) equilibrate(a *CSR) float64 {
 	amax := 0.0
 	for i := 0; i < n; i++ {
 		for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
-			v := a.Val[p] * rs[i] * cs[a.ColInd[p]]
+			v := lu.val1[p] * rs[i] * cs[a.ColInd[p]]
 			lu.sval[p] = v
 			amax = max(amax, math.Abs(v))
 		}
@@ -332,15 +407,16 @@ func (lu *LU) equilibrate(a *CSR) float64 {
 
 const epsilon = 0x1p-52
 
-// residual sets r = b − A·x and returns the componentwise backward error
-// max_i |r_i| / (|A|·|x| + |b|)_i.
+// residual sets r = b − M·x for M = R·A·C, the matrix of the first
+// equilibration stage, and returns the componentwise backward error
+// max_i |r_i| / (|M|·|x| + |b|)_i.
 func (lu *LU) residual(r, x, b []float64) float64 {
-	a := lu.a
+	rowPtr, colInd := lu.sym.rowPtr, lu.sym.colInd
 	var w float64
-	for i := 0; i < a.Rows; i++ {
+	for i := 0; i < lu.sym.n; i++ {
 		s, d := b[i], math.Abs(b[i])
-		for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
-			t := a.Val[p] * x[a.ColInd[p]]
+		for p := rowPtr[i]; p < rowPtr[i+1]; p++ {
+			t := lu.val1[p] * x[colInd[p]]
 			s -= t
 			d += math.Abs(t)
 		}

@@ -280,3 +280,89 @@ func TestLUWorkers(t *testing.T) {
 		}
 	}
 }
+
+// TestLUEquilibration: rows and columns scaled over many orders of
+// magnitude leave the solution unchanged but for the column scale,
+// (D_r·A·D_c)·(D_c⁻¹x) = D_r·b (closed form), with x = 1 for the right-hand
+// side A·1. After the first stage (dgeequ's scaling, LAPACK Users' Guide)
+// every column of R·A·C has largest magnitude 1 and no entry exceeds 1,
+// to rounding; Factorize leaves the caller's matrix as it was.
+func TestLUEquilibration(t *testing.T) {
+	for _, c := range []struct {
+		name   string
+		o      feOptions
+		orders float64 // row and column scales 10^k, |k| ≤ orders
+	}{
+		{"mixed-saddle, unscaled", feOptions{nc: 8, mixed: true, seed: 6}, 0},
+		{"mixed-saddle, 10^±6", feOptions{nc: 8, mixed: true, seed: 6}, 6},
+		{"mixed-gradient, 10^±8", feOptions{nc: 8, mixed: true, gradient: true, seed: 7}, 8},
+	} {
+		a := feSystem(c.o)
+		rng := rand.New(rand.NewPCG(7, 7))
+		dr, dc := make([]float64, a.Rows), make([]float64, a.Cols)
+		for i := range dr {
+			dr[i] = math.Pow(10, math.Round(c.orders*(2*rng.Float64()-1)))
+			dc[i] = math.Pow(10, math.Round(c.orders*(2*rng.Float64()-1)))
+		}
+		b := onesRHS(a)
+		for i := 0; i < a.Rows; i++ {
+			b[i] *= dr[i]
+			for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
+				a.Val[p] *= dr[i] * dc[a.ColInd[p]]
+			}
+		}
+		orig := append([]float64(nil), a.Val...)
+		var lu LU
+		if err := lu.Factorize(a); err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		for p := range orig {
+			if math.Float64bits(a.Val[p]) != math.Float64bits(orig[p]) {
+				t.Fatalf("%s: Factorize changed entry %d of the caller's matrix", c.name, p)
+			}
+		}
+		colMax := make([]float64, a.Cols)
+		for p, j := range a.ColInd {
+			v := math.Abs(lu.val1[p])
+			colMax[j] = max(colMax[j], v)
+			if v > 1+4*epsilon {
+				t.Errorf("%s: |(R·A·C)[%d]| = %v > 1", c.name, p, v)
+			}
+		}
+		for j, m := range colMax {
+			if math.Abs(m-1) > 4*epsilon {
+				t.Errorf("%s: column %d of R·A·C has largest magnitude %v, want 1", c.name, j, m)
+			}
+		}
+		y := make([]float64, a.Rows)
+		if err := lu.Solve(y, b); err != nil {
+			t.Fatal(err)
+		}
+		for j, v := range y {
+			if x := v * dc[j]; math.Abs(x-1) > 1e-6 {
+				t.Errorf("%s: x[%d] = %g, want 1", c.name, j, x)
+				break
+			}
+		}
+	}
+}
+
+// TestLUSolveDoesNotAllocate: a Newton iteration solves once or more per
+// factorisation; Solve works in the LU's own storage (DEVELOPERS.md: no
+// allocation in the Newton loop's hot path).
+func TestLUSolveDoesNotAllocate(t *testing.T) {
+	a := feSystem(feOptions{nc: 8, mixed: true, gradient: true, seed: 8})
+	var lu LU
+	if err := lu.Factorize(a); err != nil {
+		t.Fatal(err)
+	}
+	b := onesRHS(a)
+	x := make([]float64, a.Rows)
+	if allocs := testing.AllocsPerRun(10, func() {
+		if err := lu.Solve(x, b); err != nil {
+			t.Fatal(err)
+		}
+	}); allocs != 0 {
+		t.Errorf("Solve allocates %v objects", allocs)
+	}
+}

@@ -1,4 +1,4 @@
-package remesh
+package size
 
 import (
 	"fmt"
@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"tearline/criteria"
 	"tearline/remesh/geom"
 )
 
@@ -54,7 +55,7 @@ func TestTipFieldSizes(t *testing.T) {
 	o := DefaultFollowOptions(ell, 2)
 	o.Ahead, o.Behind, o.Width, o.Spread = 6, 2, 2, 4
 	hf, hw := o.HFine(), o.HWake()
-	tips := []Tip{
+	tips := []criteria.Tip{
 		{Name: "right", X: [2]float64{3, 0}, Dir: [2]float64{1, 0}},
 		{Name: "left", X: [2]float64{-3, 0}, Dir: [2]float64{-1, 0}},
 		{Name: "turning", X: [2]float64{0, 4}, Dir: [2]float64{1, 1}},
@@ -126,7 +127,7 @@ func TestTipFieldGradation(t *testing.T) {
 	for _, g := range []float64{0.2, 0.3} {
 		o := DefaultFollowOptions(0.1, 1)
 		o.Grade = g
-		tips := []Tip{
+		tips := []criteria.Tip{
 			{X: [2]float64{0, 0}, Dir: [2]float64{1, 0.3}},
 			{X: [2]float64{1, 1}, Dir: [2]float64{-1, 0}},
 		}
@@ -173,29 +174,6 @@ func TestTipFieldGradation(t *testing.T) {
 	}
 }
 
-func TestKDPointsNearest(t *testing.T) {
-	// against brute force
-	rng := rand.New(rand.NewPCG(5, 6))
-	pts := make([][2]float64, 500)
-	for i := range pts {
-		pts[i] = [2]float64{rng.Float64(), rng.Float64()}
-	}
-	kd := newKDPoints(pts)
-	for k := 0; k < 2000; k++ {
-		x := [2]float64{rng.Float64()*3 - 1, rng.Float64()*3 - 1}
-		want := math.Inf(1)
-		for _, p := range pts {
-			want = math.Min(want, math.Hypot(p[0]-x[0], p[1]-x[1]))
-		}
-		if got := kd.nearest(x, math.Inf(1)); math.Abs(got-want) > 1e-15*want {
-			t.Fatalf("nearest to %v: %g, brute force %g", x, got, want)
-		}
-		if got := kd.nearest(x, 0.5*want); got < 0.5*want {
-			t.Fatalf("cut-off query returned %g below the cut-off %g", got, 0.5*want)
-		}
-	}
-}
-
 func TestFollowValidate(t *testing.T) {
 	for _, c := range []struct {
 		name string
@@ -227,7 +205,7 @@ func TestFollowValidate(t *testing.T) {
 	if err := o.Validate(); err != nil {
 		t.Fatalf("defaults rejected: %v", err)
 	}
-	if _, err := NewTipField([]Tip{{X: [2]float64{0, 0}}}, nil, nil, o); err == nil || !strings.Contains(err.Error(), "direction") {
+	if _, err := NewTipField([]criteria.Tip{{X: [2]float64{0, 0}}}, nil, nil, o); err == nil || !strings.Contains(err.Error(), "direction") {
 		t.Fatalf("zero tip direction: error %v", err)
 	}
 	if _, err := NewTipField(nil, [][2]float64{{math.NaN(), 0}}, nil, o); err == nil || !strings.Contains(err.Error(), "damaged point") {
@@ -238,7 +216,7 @@ func TestFollowValidate(t *testing.T) {
 func TestInitialZone(t *testing.T) {
 	// The zone of the initial SizeField: h = h_fine exactly where the
 	// description says "inside" (both from the same capsule definition).
-	s := &SizeField{Options: SizeOptions{HFine: 0.1, HFar: 5, FineRadius: 1, Grading: 0.25},
+	s := &Field{Options: Options{HFine: 0.1, HFar: 5, FineRadius: 1, Grading: 0.25},
 		Zones: []Zone{{From: [2]float64{0, 0}, To: [2]float64{3, 0}}}}
 	z := InitialZone(s, 0.4)
 	if z.HFine != 0.1 || z.HWake != 0.4 || len(z.Pieces) != 1 {
@@ -266,7 +244,7 @@ func TestInitialZone(t *testing.T) {
 func ExampleTipField() {
 	opt := DefaultFollowOptions(0.2, 2)
 	opt.Ahead, opt.Behind, opt.Width, opt.Spread = 6, 2, 2, 4
-	f, err := NewTipField([]Tip{{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}}, nil, nil, opt)
+	f, err := NewTipField([]criteria.Tip{{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}}, nil, nil, opt)
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -312,7 +290,7 @@ func TestFeatureSizes(t *testing.T) {
 			t.Errorf("feature size at %v: %g, want %g", x, got, want)
 		}
 	}
-	f, err := NewTipField([]Tip{{X: d.Points["tip"].X, Dir: d.Points["tip"].Dir}}, nil, feat, DefaultFollowOptions(0.2, 5))
+	f, err := NewTipField([]criteria.Tip{{X: d.Points["tip"].X, Dir: d.Points["tip"].Dir}}, nil, feat, DefaultFollowOptions(0.2, 5))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -344,7 +322,7 @@ func BenchmarkTipFieldAt(b *testing.B) {
 		s := float64(i) / 5000
 		dmg = append(dmg, [2]float64{-10 * s, 0.3 * math.Sin(20*s)})
 	}
-	f, err := NewTipField([]Tip{{X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}, {X: [2]float64{-10, 0}, Dir: [2]float64{-1, 0}}}, dmg, nil, DefaultFollowOptions(0.2, 2))
+	f, err := NewTipField([]criteria.Tip{{X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}, {X: [2]float64{-10, 0}, Dir: [2]float64{-1, 0}}}, dmg, nil, DefaultFollowOptions(0.2, 2))
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -5,9 +5,9 @@
 // Meshing a built-in specimen:
 //
 //	d, _ := geom.DefaultCT().Domain()
-//	h, _ := remesh.NewSizeField(d, remesh.SizeOptions{HFine: 0.05, HFar: 2})
-//	m, rep, err := remesh.MeshDomain(d, h.At, remesh.MeshOptions{})
-package remesh
+//	h, _ := size.NewField(d, size.Options{HFine: 0.05, HFar: 2})
+//	m, rep, err := meshing.Mesh(d, h.At, meshing.Options{})
+package meshing
 
 import (
 	"fmt"
@@ -18,8 +18,8 @@ import (
 	"tearline/solver/fem"
 )
 
-// MeshOptions control MeshDomain.
-type MeshOptions struct {
+// Options control Mesh.
+type Options struct {
 	// MinAngle is the minimum-angle bound in degrees (0 = the
 	// triangulator's default, tri.DefaultMinAngle); at most tri.MaxMinAngle.
 	MinAngle float64
@@ -29,7 +29,7 @@ type MeshOptions struct {
 }
 
 // Validate checks the options.
-func (o MeshOptions) Validate() error {
+func (o Options) Validate() error {
 	if !(o.MinAngle >= 0 && o.MinAngle <= tri.MaxMinAngle) {
 		return fmt.Errorf("mesh: minimum angle %g° must lie in [0, %d] (0 = default %d°)", o.MinAngle, tri.MaxMinAngle, tri.DefaultMinAngle)
 	}
@@ -39,7 +39,7 @@ func (o MeshOptions) Validate() error {
 	return nil
 }
 
-// MeshDomain meshes the domain to the size function and returns the 6-node
+// Mesh meshes the domain to the size function and returns the 6-node
 // mesh with its quality report (measured on the corner-node triangles).
 //
 // The mesh follows the fem.Mesh contract: corner nodes first, counter-
@@ -48,7 +48,7 @@ func (o MeshOptions) Validate() error {
 // every boundary edge carries the label of the piece it lies on, oriented
 // with the domain on its left; every named point that is not a reference
 // point is a corner node, in Points under its name.
-func MeshDomain(d *geom.Domain, size func(x, y float64) float64, opt MeshOptions) (*fem.Mesh, tri.Report, error) {
+func Mesh(d *geom.Domain, size func(x, y float64) float64, opt Options) (*fem.Mesh, tri.Report, error) {
 	if d == nil {
 		return nil, tri.Report{}, fmt.Errorf("mesh: no domain")
 	}

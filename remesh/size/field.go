@@ -1,14 +1,15 @@
-package remesh
+package size
 
 import (
 	"fmt"
 	"math"
 
 	"tearline/remesh/geom"
+	"tearline/solver/plane"
 )
 
-// SizeOptions set up a SizeField.
-type SizeOptions struct {
+// Options set up a Field.
+type Options struct {
 	// HFine is the target size in the fine zone around each crack tip
 	// (the case default is ℓ/2, DESIGN.md §1). Required, > 0.
 	HFine float64
@@ -29,7 +30,7 @@ type SizeOptions struct {
 	Grading float64
 }
 
-// Defaults of SizeOptions.
+// Defaults of Options.
 const (
 	DefaultFarFactor        = 100  // HFar = 100·HFine
 	DefaultFineRadiusFactor = 10   // FineRadius = 10·HFine
@@ -37,7 +38,7 @@ const (
 )
 
 // WithDefaults returns the options with zero fields set to their defaults.
-func (o SizeOptions) WithDefaults() SizeOptions {
+func (o Options) WithDefaults() Options {
 	if o.HFar == 0 {
 		o.HFar = DefaultFarFactor * o.HFine
 	}
@@ -53,7 +54,7 @@ func (o SizeOptions) WithDefaults() SizeOptions {
 func finitePos(v float64) bool { return v > 0 && !math.IsInf(v, 0) }
 
 // Validate checks options with defaults already filled in (WithDefaults).
-func (o SizeOptions) Validate() error {
+func (o Options) Validate() error {
 	switch {
 	case !finitePos(o.HFine):
 		return fmt.Errorf("size field: h_fine = %g must be a positive finite length", o.HFine)
@@ -75,22 +76,22 @@ type Zone struct {
 	From, To [2]float64
 }
 
-// SizeField is the target element size h(x, y): HFine within FineRadius of
+// Field is the target element size h(x, y): HFine within FineRadius of
 // every zone, growing linearly at rate Grading with the distance beyond it,
 // up to HFar. It is safe for concurrent use.
-type SizeField struct {
-	Options SizeOptions
+type Field struct {
+	Options Options
 	Zones   []Zone
 }
 
-// NewSizeField returns the size field with a fine zone around every crack
+// NewField returns the size field with a fine zone around every crack
 // tip of d (none: h = HFar everywhere). Zero options take their defaults.
-func NewSizeField(d *geom.Domain, opt SizeOptions) (*SizeField, error) {
+func NewField(d *geom.Domain, opt Options) (*Field, error) {
 	opt = opt.WithDefaults()
 	if err := opt.Validate(); err != nil {
 		return nil, err
 	}
-	s := &SizeField{Options: opt}
+	s := &Field{Options: opt}
 	if d != nil {
 		for _, n := range d.Tips() {
 			p := d.Points[n]
@@ -100,30 +101,12 @@ func NewSizeField(d *geom.Domain, opt SizeOptions) (*SizeField, error) {
 	return s, nil
 }
 
-// segDist returns the distance from (x, y) to the segment a–b.
-func segDist(x, y float64, a, b [2]float64) float64 {
-	dx, dy := b[0]-a[0], b[1]-a[1]
-	px, py := x-a[0], y-a[1]
-	l2 := dx*dx + dy*dy
-	if l2 > 0 {
-		t := (px*dx + py*dy) / l2
-		if t > 1 {
-			t = 1
-		} else if t < 0 {
-			t = 0
-		}
-		px -= t * dx
-		py -= t * dy
-	}
-	return math.Hypot(px, py)
-}
-
 // At returns h at (x, y).
-func (s *SizeField) At(x, y float64) float64 {
+func (s *Field) At(x, y float64) float64 {
 	o := &s.Options
 	h := o.HFar
 	for i := range s.Zones {
-		d := segDist(x, y, s.Zones[i].From, s.Zones[i].To) - o.FineRadius
+		d := plane.SegDist([2]float64{x, y}, s.Zones[i].From, s.Zones[i].To) - o.FineRadius
 		v := o.HFine
 		if d > 0 {
 			v += o.Grading * d

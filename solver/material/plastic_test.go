@@ -1,46 +1,41 @@
-package remesh
+package material
 
 import (
 	"math"
 	"testing"
-
-	"tearline/solver/material"
 )
 
-// TestAdmissibleElastic: a transferred point whose elastic strain gives a
+// TestScaleToYield: a transferred point whose elastic strain gives a
 // trial stress outside the GTN yield surface (Gurson 1977 with Tvergaard's
 // q₁, q₂, 1981) is scaled back onto it, σ*(τ) = R(p) to 1e-9, keeping the
 // total strain (Eᵖ takes up the difference); a point inside is left alone.
-func TestAdmissibleElastic(t *testing.T) {
-	par := material.DefaultGTN()
-	m, err := material.NewGTN(par)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sigmaStar := func(ee material.Sym, f float64) float64 {
+func TestScaleToYield(t *testing.T) {
+	par := DefaultGTN()
+	m := mustGTN(t, par)
+	sigmaStar := func(ee Sym, f float64) float64 {
 		s, err := m.EffectiveStress(par.Elastic.Stress(ee), f)
 		if err != nil {
 			t.Fatal(err)
 		}
 		return s
 	}
-	E := material.Sym{0.05, -0.01, 0.02, 0.03}
+	E := Sym{0.05, -0.01, 0.02, 0.03}
 	for _, c := range []struct {
 		name   string
-		ee     material.Sym // elastic strain before
+		ee     Sym // elastic strain before
 		change bool
 	}{
-		{"far outside (mean stress ~ 13 GPa)", material.Sym{0.03, 0.03, 0.02, 0.001}, true},
-		{"outside in shear", material.Sym{0.001, -0.001, 0, 0.01}, true},
-		{"inside", material.Sym{0.0005, 0.0002, 0.0001, 0.0001}, false},
+		{"far outside (mean stress ~ 13 GPa)", Sym{0.03, 0.03, 0.02, 0.001}, true},
+		{"outside in shear", Sym{0.001, -0.001, 0, 0.01}, true},
+		{"inside", Sym{0.0005, 0.0002, 0.0001, 0.0001}, false},
 	} {
-		s := material.State{F: 0.03, P: 0.3}
+		s := State{F: 0.03, P: 0.3}
 		for k := 0; k < 4; k++ {
 			s.Ep[k] = E[k] - c.ee[k]
 		}
 		before := s.Ep
 		r, _ := par.Hardening.Flow(s.P)
-		changed, err := admissibleElastic(m, &s, E, r)
+		changed, err := m.ScaleToYield(&s, E, r)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -48,7 +43,7 @@ func TestAdmissibleElastic(t *testing.T) {
 			t.Errorf("%s: changed = %v, want %v", c.name, changed, c.change)
 			continue
 		}
-		var ee material.Sym
+		var ee Sym
 		for k := 0; k < 4; k++ {
 			ee[k] = E[k] - s.Ep[k]
 		}

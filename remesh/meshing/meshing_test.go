@@ -1,4 +1,4 @@
-package remesh
+package meshing
 
 import (
 	"fmt"
@@ -9,13 +9,14 @@ import (
 	"testing"
 
 	"tearline/remesh/geom"
+	"tearline/remesh/size"
 	"tearline/solver/fem"
 )
 
 type meshCase struct {
 	name string
 	d    func() (*geom.Domain, error)
-	opt  SizeOptions
+	opt  size.Options
 }
 
 func meshCases() []meshCase {
@@ -67,17 +68,17 @@ func meshCases() []meshCase {
 		return d, err
 	}
 	return []meshCase{
-		{"ssy half", geom.DefaultSSY().Domain, SizeOptions{HFine: 0.01, HFar: 5, FineRadius: 0.2}},
-		{"ssy full", ssyF.Domain, SizeOptions{HFine: 0.02, HFar: 4, FineRadius: 0.3, Ahead: 0.3}},
-		{"ssy tiny tip radius", tiny.Domain, SizeOptions{HFine: 0.1, HFar: 2}},
-		{"ct half sharp", geom.DefaultCT().Domain, SizeOptions{HFine: 0.1, HFar: 4}},
-		{"ct half blunt", ctB.Domain, SizeOptions{HFine: 0.05, HFar: 4}},
-		{"ct full", ctF.Domain, SizeOptions{HFine: 0.05, HFar: 4}},
-		{"notched bar half", geom.DefaultNotchedBar().Domain, SizeOptions{HFine: 0.05, HFar: 1, FineRadius: 1}},
-		{"notched bar full", nbF.Domain, SizeOptions{HFine: 0.1, HFar: 1}},
-		{"dent", geom.DefaultDENT().Domain, SizeOptions{HFine: 0.05, HFar: 4, Ahead: 1}},
-		{"collinear run", collinear, SizeOptions{HFine: 0.02, HFar: 0.3}},
-		{"polygon", poly, SizeOptions{HFine: 0.1, HFar: 2}},
+		{"ssy half", geom.DefaultSSY().Domain, size.Options{HFine: 0.01, HFar: 5, FineRadius: 0.2}},
+		{"ssy full", ssyF.Domain, size.Options{HFine: 0.02, HFar: 4, FineRadius: 0.3, Ahead: 0.3}},
+		{"ssy tiny tip radius", tiny.Domain, size.Options{HFine: 0.1, HFar: 2}},
+		{"ct half sharp", geom.DefaultCT().Domain, size.Options{HFine: 0.1, HFar: 4}},
+		{"ct half blunt", ctB.Domain, size.Options{HFine: 0.05, HFar: 4}},
+		{"ct full", ctF.Domain, size.Options{HFine: 0.05, HFar: 4}},
+		{"notched bar half", geom.DefaultNotchedBar().Domain, size.Options{HFine: 0.05, HFar: 1, FineRadius: 1}},
+		{"notched bar full", nbF.Domain, size.Options{HFine: 0.1, HFar: 1}},
+		{"dent", geom.DefaultDENT().Domain, size.Options{HFine: 0.05, HFar: 4, Ahead: 1}},
+		{"collinear run", collinear, size.Options{HFine: 0.02, HFar: 0.3}},
+		{"polygon", poly, size.Options{HFine: 0.1, HFar: 2}},
 	}
 }
 
@@ -230,11 +231,11 @@ func TestMeshSpecimens(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", c.name, err)
 		}
-		h, err := NewSizeField(d, c.opt)
+		h, err := size.NewField(d, c.opt)
 		if err != nil {
 			t.Fatalf("%s: %v", c.name, err)
 		}
-		m, rep, err := MeshDomain(d, h.At, MeshOptions{})
+		m, rep, err := Mesh(d, h.At, Options{})
 		if err != nil {
 			t.Errorf("%s: %v", c.name, err)
 			continue
@@ -257,7 +258,7 @@ func TestSizeField(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := NewSizeField(d, SizeOptions{HFine: 0.1, HFar: 2, FineRadius: 1, Grading: 0.5, Ahead: 1})
+	s, err := size.NewField(d, size.Options{HFine: 0.1, HFar: 2, FineRadius: 1, Grading: 0.5, Ahead: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -278,9 +279,9 @@ func TestSizeField(t *testing.T) {
 			t.Fatalf("grading exceeded between (%g, %g) and (%g, %g)", px, py, qx, qy)
 		}
 	}
-	bad := []SizeOptions{{HFine: 0}, {HFine: 1, HFar: 0.5}, {HFine: 1, Grading: 2}, {HFine: 1, Ahead: -1}, {HFine: math.NaN()}}
+	bad := []size.Options{{HFine: 0}, {HFine: 1, HFar: 0.5}, {HFine: 1, Grading: 2}, {HFine: 1, Ahead: -1}, {HFine: math.NaN()}}
 	for _, o := range bad {
-		if _, err := NewSizeField(d, o); err == nil {
+		if _, err := size.NewField(d, o); err == nil {
 			t.Errorf("options %+v accepted", o)
 		}
 	}
@@ -299,21 +300,21 @@ func TestMeshDegenerate(t *testing.T) {
 	}
 	h := func(x, y float64) float64 { return 0.1 }
 	// Nearly coincident vertices: a clear error, no mesh (common practice).
-	if _, _, err := MeshDomain(sq(1e-7), h, MeshOptions{}); err == nil || !strings.Contains(err.Error(), "smaller than") {
+	if _, _, err := Mesh(sq(1e-7), h, Options{}); err == nil || !strings.Contains(err.Error(), "smaller than") {
 		t.Errorf("nearly coincident vertices: error %v", err)
 	}
-	if _, _, err := MeshDomain(sq(1e-13), h, MeshOptions{}); err == nil || !strings.Contains(err.Error(), "zero length") {
+	if _, _, err := Mesh(sq(1e-13), h, Options{}); err == nil || !strings.Contains(err.Error(), "zero length") {
 		t.Errorf("coincident vertices: error %v", err)
 	}
-	if _, _, err := MeshDomain(nil, h, MeshOptions{}); err == nil {
+	if _, _, err := Mesh(nil, h, Options{}); err == nil {
 		t.Errorf("nil domain accepted")
 	}
-	if _, _, err := MeshDomain(sq(0.01), h, MeshOptions{MinAngle: 50}); err == nil || !strings.Contains(err.Error(), "minimum angle") {
+	if _, _, err := Mesh(sq(0.01), h, Options{MinAngle: 50}); err == nil || !strings.Contains(err.Error(), "minimum angle") {
 		t.Errorf("min angle 50: error %v", err)
 	}
 	// A mesh that would need too many points stops with an error.
 	d, _ := geom.DefaultSSY().Domain()
-	if _, _, err := MeshDomain(d, func(x, y float64) float64 { return 0.05 }, MeshOptions{MaxPoints: 1000}); err == nil {
+	if _, _, err := Mesh(d, func(x, y float64) float64 { return 0.05 }, Options{MaxPoints: 1000}); err == nil {
 		t.Errorf("point limit not enforced")
 	}
 }
@@ -384,7 +385,7 @@ func FuzzDomain(f *testing.F) {
 		hv := 0.02 + 0.3*float64(hk)/255
 		size := func(x, y float64) float64 { return hv * (1 + math.Abs(x)) }
 		d.Orient()
-		m, _, err := MeshDomain(d, size, MeshOptions{MaxPoints: 200_000})
+		m, _, err := Mesh(d, size, Options{MaxPoints: 200_000})
 		if err != nil {
 			if !strings.Contains(err.Error(), "geometry:") && !strings.Contains(err.Error(), "mesh:") {
 				t.Fatalf("error without context: %v", err)
@@ -410,14 +411,14 @@ func BenchmarkMeshDomain(b *testing.B) {
 	}
 	for _, hf := range []float64{0.012, 0.006, 0.003} {
 		b.Run(fmt.Sprintf("h_fine=%g", hf), func(b *testing.B) {
-			s, err := NewSizeField(d, SizeOptions{HFine: hf, HFar: 2, FineRadius: 0.45, Grading: 0.25})
+			s, err := size.NewField(d, size.Options{HFine: hf, HFar: 2, FineRadius: 0.45, Grading: 0.25})
 			if err != nil {
 				b.Fatal(err)
 			}
 			b.ReportAllocs()
 			var tris int
 			for i := 0; i < b.N; i++ {
-				m, _, err := MeshDomain(d, s.At, MeshOptions{})
+				m, _, err := Mesh(d, s.At, Options{})
 				if err != nil {
 					b.Fatal(err)
 				}
@@ -436,16 +437,16 @@ func TestMeshDeterministic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	h, err := NewSizeField(d, SizeOptions{HFine: 0.1, HFar: 4})
+	h, err := size.NewField(d, size.Options{HFine: 0.1, HFar: 4})
 	if err != nil {
 		t.Fatal(err)
 	}
-	a, _, err := MeshDomain(d, h.At, MeshOptions{})
+	a, _, err := Mesh(d, h.At, Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	for i := 0; i < 3; i++ {
-		b, _, err := MeshDomain(d, h.At, MeshOptions{})
+		b, _, err := Mesh(d, h.At, Options{})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,29 +1,31 @@
-// The adaptive cycle (DESIGN.md §4): when to remesh (NeedRemesh), the
+// The adaptive cycle (DESIGN.md §4): when to remesh (Check), the
 // tip-following size field (TipField), and the new geometry with broken
 // material removed (Carve), which MeshDomain meshes. One cycle, in outline:
 //
-//	dec, err := remesh.NeedRemesh(m, gp, tips, zone, count, trig)
+//	dec, err := trigger.Check(m, gp, tips, zone, count, trig)
 //	if dec.Remesh {
-//		broken := remesh.BrokenElements(gp)
-//		dmg, _ := remesh.DamagedPoints(gp, broken, trig.FAlert, trig.PAlert)
-//		field, _ := remesh.NewTipField(tips, dmg, features, follow)
-//		c, _ := remesh.Carve(m, broken, original, tips, field.At, carve)
-//		m2, rep, err := remesh.MeshDomain(c.Domain, field.At, meshOpt)
+//		broken := carve.BrokenElements(gp)
+//		dmg, _ := size.DamagedPoints(gp, broken, trig.FAlert, trig.PAlert)
+//		field, _ := size.NewTipField(tips, dmg, features, follow)
+//		c, _ := carve.Domain(m, broken, original, tips, field.At, carve)
+//		m2, rep, err := meshing.Mesh(c.Domain, field.At, meshOpt)
 //		zone = field.Zone()
 //	}
 
-package remesh
+package trigger
 
 import (
 	"fmt"
 	"math"
 
+	"tearline/criteria"
+	"tearline/remesh/size"
 	"tearline/solver/fem"
 )
 
-// TriggerOptions sets when NeedRemesh asks for a new mesh. Distances are in
+// Options sets when Check asks for a new mesh. Distances are in
 // units of the internal length ℓ (Length).
-type TriggerOptions struct {
+type Options struct {
 	// Length is the internal length ℓ (> 0).
 	Length float64
 	// Margin: remesh when a tip or a front point comes within Margin·ℓ of
@@ -52,17 +54,17 @@ type TriggerOptions struct {
 	MaxRemesh int
 }
 
-// DefaultTriggerOptions returns the defaults for internal length ell:
+// DefaultOptions returns the defaults for internal length ell:
 // margin 1.5ℓ, front level 0.3, wake 1ℓ, alert levels f ≥ 0.02 and p ≥ 0.1
 // (common practice: well above f₀ and the elastic range, well below the
 // front), size tolerance 1.5, at most 200 remeshes.
-func DefaultTriggerOptions(ell float64) TriggerOptions {
-	return TriggerOptions{Length: ell, Margin: 1.5, FrontLevel: 0.3, Wake: 1,
+func DefaultOptions(ell float64) Options {
+	return Options{Length: ell, Margin: 1.5, FrontLevel: 0.3, Wake: 1,
 		FAlert: 0.02, PAlert: 0.1, SizeTol: 1.5, MaxRemesh: 200}
 }
 
 // Validate checks the options and says which one is wrong and what is allowed.
-func (o *TriggerOptions) Validate() error {
+func (o *Options) Validate() error {
 	for _, c := range []struct {
 		n string
 		v float64
@@ -89,7 +91,7 @@ func (o *TriggerOptions) Validate() error {
 	return nil
 }
 
-// Cause says why NeedRemesh decided as it did.
+// Cause says why Check decided as it did.
 type Cause int
 
 const (
@@ -121,7 +123,7 @@ func (c Cause) String() string {
 	return fmt.Sprintf("cause(%d)", int(c))
 }
 
-// Decision is NeedRemesh's answer.
+// Decision is Check's answer.
 type Decision struct {
 	Remesh  bool
 	Cause   Cause
@@ -142,7 +144,7 @@ func LongestEdge(m *fem.Mesh, e int) float64 {
 	return h
 }
 
-// NeedRemesh decides whether the mesh m with Gauss-point data gp needs
+// Check decides whether the mesh m with Gauss-point data gp needs
 // replacing (DESIGN.md §4). tips are the current crack tips, zone the fine
 // zone of the size field the mesh was built with, remeshes the number done
 // so far. It answers yes when
@@ -159,7 +161,7 @@ func LongestEdge(m *fem.Mesh, e int) float64 {
 // waits for about (Ahead − Margin)·ℓ of growth: remeshes are rare by
 // construction. When a remesh is due but remeshes ≥ MaxRemesh, the
 // decision is no, with cause LimitReached.
-func NeedRemesh(m *fem.Mesh, gp *fem.GaussPoints, tips []Tip, zone *FineZone, remeshes int, opt TriggerOptions) (Decision, error) {
+func Check(m *fem.Mesh, gp *fem.GaussPoints, tips []criteria.Tip, zone *size.FineZone, remeshes int, opt Options) (Decision, error) {
 	quiet := Decision{Cause: Quiet, Reason: "no remesh needed", Element: -1}
 	if err := opt.Validate(); err != nil {
 		return quiet, err
@@ -167,15 +169,15 @@ func NeedRemesh(m *fem.Mesh, gp *fem.GaussPoints, tips []Tip, zone *FineZone, re
 	if m == nil || zone == nil {
 		return quiet, fmt.Errorf("remesh: trigger: mesh and fine zone must be given")
 	}
-	if gp == nil || gp.PerElement <= 0 || len(gp.Points) != gp.PerElement*len(m.Tri) {
-		return quiet, fmt.Errorf("remesh: trigger: %d Gauss points at %d per element do not fit %d elements", lenPoints(gp), perElement(gp), len(m.Tri))
+	if ne, err := gp.Elements(); err != nil || ne != len(m.Tri) {
+		return quiet, fmt.Errorf("remesh: trigger: Gauss points do not fit the %d elements of the mesh (%v)", len(m.Tri), err)
 	}
 	if !(zone.HFine > 0) || !(zone.HWake >= zone.HFine) {
 		return quiet, fmt.Errorf("remesh: trigger: fine zone sizes h_fine = %g, h_wake = %g must satisfy 0 < h_fine ≤ h_wake", zone.HFine, zone.HWake)
 	}
 	dirs := make([][2]float64, len(tips))
 	for i, t := range tips {
-		d, ok := t.unitDir()
+		d, ok := t.UnitDir()
 		if !ok {
 			return quiet, fmt.Errorf("remesh: trigger: tip %d %q direction (%g, %g) must be finite and non-zero", i, t.Name, t.Dir[0], t.Dir[1])
 		}
@@ -218,7 +220,7 @@ func NeedRemesh(m *fem.Mesh, gp *fem.GaussPoints, tips []Tip, zone *FineZone, re
 			var h float64 = -1
 			for i := 0; i < gp.PerElement; i++ {
 				g := gp.At(e, i)
-				if !aboveAlert(g, opt.FAlert, opt.PAlert) {
+				if !size.AboveAlert(g, opt.FAlert, opt.PAlert) {
 					continue
 				}
 				if h < 0 {
@@ -243,16 +245,9 @@ func NeedRemesh(m *fem.Mesh, gp *fem.GaussPoints, tips []Tip, zone *FineZone, re
 	return dec, nil
 }
 
-func lenPoints(gp *fem.GaussPoints) int {
-	if gp == nil {
-		return 0
-	}
-	return len(gp.Points)
-}
-
 // behindAll reports whether x lies more than wake behind the nearest tip
 // (along that tip's direction). With no tips nothing is behind.
-func behindAll(x [2]float64, tips []Tip, dirs [][2]float64, wake float64) bool {
+func behindAll(x [2]float64, tips []criteria.Tip, dirs [][2]float64, wake float64) bool {
 	best, bi := math.Inf(1), -1
 	for i, t := range tips {
 		if d := math.Hypot(x[0]-t.X[0], x[1]-t.X[1]); d < best {

@@ -1,23 +1,24 @@
-package remesh_test
+package meshing_test
 
 import (
 	"fmt"
 	"log"
 
-	"tearline/remesh"
 	"tearline/remesh/geom"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 )
 
-func ExampleMeshDomain() {
+func ExampleMesh() {
 	d, err := geom.DefaultSSY().Domain() // half boundary-layer disk, R = 50 mm
 	if err != nil {
 		log.Fatal(err)
 	}
-	h, err := remesh.NewSizeField(d, remesh.SizeOptions{HFine: 0.02, HFar: 5, FineRadius: 0.2})
+	h, err := size.NewField(d, size.Options{HFine: 0.02, HFar: 5, FineRadius: 0.2})
 	if err != nil {
 		log.Fatal(err)
 	}
-	m, rep, err := remesh.MeshDomain(d, h.At, remesh.MeshOptions{})
+	m, rep, err := meshing.Mesh(d, h.At, meshing.Options{})
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package remesh
+package carve
 
 import (
 	"fmt"
@@ -7,17 +7,19 @@ import (
 
 	"github.com/tidwall/rtree"
 
+	"tearline/criteria"
 	"tearline/remesh/geom"
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 )
 
 // CrackLabel is the boundary label of crack faces created by removing
 // broken material (DEVELOPERS.md, shared contracts).
 const CrackLabel = geom.LabelCrack
 
-// CarveOptions sets how Carve builds the new geometry.
-type CarveOptions struct {
+// Options sets how Domain builds the new geometry.
+type Options struct {
 	// Simplify: crack-face polylines are simplified (Douglas & Peucker
 	// 1973, Cartographica 10) so that every dropped vertex x lies within
 	// Simplify·h(x) of the simplified line, h the new size field (≥ 0;
@@ -36,16 +38,16 @@ type CarveOptions struct {
 	MatchTol float64
 }
 
-// DefaultCarveOptions returns Simplify = 0.5 (half the local size: the
+// DefaultOptions returns Simplify = 0.5 (half the local size: the
 // zigzag of a crack face cut from a triangulation is below one element),
 // MinCorner = 40° (above the mesher's default angle bound of 28° with a
 // margin) and MatchTol = 1e-8.
-func DefaultCarveOptions() CarveOptions {
-	return CarveOptions{Simplify: 0.5, MinCorner: 40, MatchTol: 1e-8}
+func DefaultOptions() Options {
+	return Options{Simplify: 0.5, MinCorner: 40, MatchTol: 1e-8}
 }
 
 // Validate checks the options.
-func (o *CarveOptions) Validate() error {
+func (o *Options) Validate() error {
 	if !(o.Simplify >= 0) || math.IsInf(o.Simplify, 0) {
 		return fmt.Errorf("remesh: carve option Simplify = %g must be finite and ≥ 0", o.Simplify)
 	}
@@ -58,12 +60,12 @@ func (o *CarveOptions) Validate() error {
 	return nil
 }
 
-// Carved is the new geometry Carve builds.
-type Carved struct {
+// Result is the new geometry Domain builds.
+type Result struct {
 	// Domain is the material that is left, ready for MeshDomain.
 	Domain *geom.Domain
 	// Removed marks the old elements outside the new geometry: the broken
-	// ones and the unbroken ones dropped with slivers (see Carve).
+	// ones and the unbroken ones dropped with slivers (see Domain).
 	Removed []bool
 	// Slivers counts the unbroken elements dropped.
 	Slivers int
@@ -82,10 +84,10 @@ type Carved struct {
 // Gauss points broken); they leave the geometry at the next remesh
 // (DESIGN.md §3).
 func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
-	if gp == nil || gp.PerElement <= 0 || len(gp.Points)%gp.PerElement != 0 {
-		return nil, fmt.Errorf("remesh: broken elements: %d Gauss points do not fill elements of %d points", lenPoints(gp), perElement(gp))
+	ne, err := gp.Elements()
+	if err != nil {
+		return nil, fmt.Errorf("broken elements: %w", err)
 	}
-	ne := len(gp.Points) / gp.PerElement
 	out := make([]bool, ne)
 	st := make([]material.State, gp.PerElement)
 	for e := range out {
@@ -97,7 +99,7 @@ func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 	return out, nil
 }
 
-// Carve builds the geometry of the material that is left when the elements
+// Domain builds the geometry of the material that is left when the elements
 // marked in broken are removed from m:
 //
 //   - The kept triangles are cleaned first. Material held only at a vertex
@@ -128,11 +130,11 @@ func BrokenElements(gp *fem.GaussPoints) ([]bool, error) {
 //     of a current tip moves to the tip (snapped to the nearest boundary
 //     vertex when the tip lies outside the material or within the
 //     simplification tolerance of its boundary); others are dropped and
-//     listed in Carved.Dropped.
+//     listed in Result.Dropped.
 //
 // orig may be nil (every run is then a polyline); size is the new size
 // field (it may be nil when Simplify is 0).
-func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(x, y float64) float64, opt CarveOptions) (*Carved, error) {
+func Domain(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []criteria.Tip, size func(x, y float64) float64, opt Options) (*Result, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, err
 	}
@@ -149,7 +151,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 		return nil, fmt.Errorf("remesh: carve: a size function is needed to simplify crack faces (Simplify = %g)", opt.Simplify)
 	}
 	for i, t := range tips {
-		if _, ok := t.unitDir(); !ok {
+		if _, ok := t.UnitDir(); !ok {
 			return nil, fmt.Errorf("remesh: carve: tip %d %q direction (%g, %g) must be finite and non-zero", i, t.Name, t.Dir[0], t.Dir[1])
 		}
 	}
@@ -158,7 +160,7 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	c.nbr = c.m.EdgeNeighbours()
 	c.dropPinches()
 	c.keepLargestPart()
-	out := &Carved{Removed: c.removed}
+	out := &Result{Removed: c.removed}
 	for e := range c.removed {
 		if c.removed[e] && !broken[e] {
 			out.Slivers++
@@ -198,10 +200,10 @@ func Carve(m *fem.Mesh, broken []bool, orig *geom.Domain, tips []Tip, size func(
 	return out, nil
 }
 
-// carver holds the working state of Carve.
+// carver holds the working state of Domain.
 type carver struct {
 	m       *fem.Mesh
-	opt     CarveOptions
+	opt     Options
 	orig    *geom.Domain
 	size    func(x, y float64) float64
 	removed []bool
@@ -213,6 +215,8 @@ type carver struct {
 	fixed map[int]bool // boundary nodes that must stay vertices
 	// interior named points that simplification must not cross
 	guards [][2]float64
+	// kept indexes the triangles that are not removed (see containing)
+	kept *plane.Locator
 }
 
 // cLoop is one boundary loop: nodes v, label lab[k] and original piece
@@ -515,7 +519,7 @@ func (c *carver) matchPieces() {
 
 // namedPoints carries the named points over and fixes the boundary nodes
 // they sit on.
-func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error) {
+func (c *carver) namedPoints(tips []criteria.Tip) (map[string]geom.Point, []string, error) {
 	m := c.m
 	c.fixed = map[int]bool{}
 	onBoundary := map[int]bool{}
@@ -532,7 +536,7 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 			}
 		}
 	}
-	tipOf := map[string]Tip{}
+	tipOf := map[string]criteria.Tip{}
 	for _, t := range tips {
 		if t.Name != "" {
 			tipOf[t.Name] = t
@@ -575,7 +579,7 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 		s := all[n]
 		p := s.p
 		if t, ok := tipOf[n]; ok {
-			d, _ := t.unitDir()
+			d, _ := t.UnitDir()
 			p.Tip, p.Ref, p.Dir = true, false, d
 			node, at, err := c.placeTip(t.X, inMaterial)
 			if err != nil {
@@ -597,7 +601,7 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 		if s.node < 0 {
 			// a point of orig without a mesh node: keep it when it lies in
 			// the kept material
-			if e := c.containing(p.X); e < 0 {
+			if !c.containing(p.X) {
 				dropped = append(dropped, n)
 				continue
 			}
@@ -619,19 +623,24 @@ func (c *carver) namedPoints(tips []Tip) (map[string]geom.Point, []string, error
 	return out, dropped, nil
 }
 
-// containing returns a kept triangle that contains x (closed), or −1.
-func (c *carver) containing(x [2]float64) int {
-	for e, t := range c.m.Tri {
-		if c.removed[e] {
-			continue
+// containing reports whether a kept triangle contains x (closed, within
+// round-off: area coordinates ≥ −10⁻¹²). The kept triangles are indexed on
+// the first call; the removed set does not change after keepLargestPart.
+func (c *carver) containing(x [2]float64) bool {
+	if c.kept == nil {
+		var idx []int
+		for e := range c.m.Tri {
+			if !c.removed[e] {
+				idx = append(idx, e)
+			}
 		}
-		a, b, d := c.m.X[t[0]], c.m.X[t[1]], c.m.X[t[2]]
-		l := fem.Barycentric(x, a, b, d)
-		if l[0] >= -1e-12 && l[1] >= -1e-12 && l[2] >= -1e-12 {
-			return e
-		}
+		c.kept = plane.NewLocator(func(i int) [3][2]float64 {
+			t := c.m.Tri[idx[i]]
+			return [3][2]float64{c.m.X[t[0]], c.m.X[t[1]], c.m.X[t[2]]}
+		}, len(idx))
 	}
-	return -1
+	_, _, ok := c.kept.FindFirst(x, 1e-12)
+	return ok
 }
 
 // placeTip returns where the tip point goes: a boundary node (≥ 0) when
@@ -647,7 +656,7 @@ func (c *carver) placeTip(x [2]float64, inMaterial []bool) (int, [2]float64, err
 				best, bn = d, n
 			}
 			q := c.m.X[l.v[(k+1)%len(l.v)]]
-			bd = math.Min(bd, segDistance(x, p, q))
+			bd = math.Min(bd, plane.SegDist(x, p, q))
 		}
 	}
 	if bn < 0 {
@@ -657,21 +666,10 @@ func (c *carver) placeTip(x [2]float64, inMaterial []bool) (int, [2]float64, err
 	if c.size != nil {
 		tol = c.opt.Simplify * c.size(x[0], x[1])
 	}
-	if c.containing(x) < 0 || bd <= tol+1e-9*best {
+	if !c.containing(x) || bd <= tol+1e-9*best {
 		return bn, c.m.X[bn], nil
 	}
 	return -1, x, nil
-}
-
-// segDistance returns the distance from x to the segment a–b.
-func segDistance(x, a, b [2]float64) float64 {
-	dx, dy := b[0]-a[0], b[1]-a[1]
-	l2 := dx*dx + dy*dy
-	t := 0.0
-	if l2 > 0 {
-		t = math.Max(0, math.Min(1, ((x[0]-a[0])*dx+(x[1]-a[1])*dy)/l2))
-	}
-	return math.Hypot(x[0]-a[0]-t*dx, x[1]-a[1]-t*dy)
 }
 
 // span is a run of a loop between two kept vertices i and j (indices into
@@ -690,7 +688,6 @@ func (c *carver) simplify() error {
 		}
 	}
 	collinear := 1e-12 * math.Max(scale, 1e-300)
-	var work []span
 	for li := range c.loops {
 		l := &c.loops[li]
 		n := len(l.v)
@@ -729,7 +726,7 @@ func (c *carver) simplify() error {
 			if l.lab[k] == CrackLabel && c.opt.Simplify > 0 {
 				tolf = func(x [2]float64) float64 { return math.Max(collinear, c.opt.Simplify*c.size(x[0], x[1])) }
 			}
-			c.douglasPeucker(li, k, j, tolf, collinear, &work)
+			plane.DouglasPeucker(l.keep, k, j, c.oneSided(l, tolf, collinear), 1)
 		}
 	}
 	// every loop keeps at least three vertices
@@ -765,40 +762,24 @@ func (l *cLoop) interior(i, j int) []int {
 	return out
 }
 
-// douglasPeucker keeps, between kept vertices i and j of loop li, the
-// vertices needed for every dropped vertex x to lie within tol(x) of the
-// chord (Douglas & Peucker 1973, Cartographica 10), splitting at the vertex
-// of largest distance/tolerance ratio. The test is one-sided: a vertex on
-// the material side of the chord (its left, as the loops run) must lie
-// within strict of it, because a chord past it would bring removed material
-// back into the domain — broken elements whose displacement is no longer
-// resisted and may be inverted, and whose state would be copied into the
-// new elements there. A chord may cut off intact material within tol(x);
-// its state is lost like that of removed elements, and re-equilibration
-// relaxes the force it held.
-func (c *carver) douglasPeucker(li, i, j int, tol func([2]float64) float64, strict float64, work *[]span) {
-	l := &c.loops[li]
-	*work = append((*work)[:0], span{li, i, j})
-	for len(*work) > 0 {
-		s := (*work)[len(*work)-1]
-		*work = (*work)[:len(*work)-1]
-		a, b := c.m.X[l.v[s.i]], c.m.X[l.v[s.j]]
-		worst, wk := 1.0, -1
-		for _, k := range l.interior(s.i, s.j) {
-			x := c.m.X[l.v[k]]
-			t := tol(x)
-			if (b[0]-a[0])*(x[1]-a[1])-(b[1]-a[1])*(x[0]-a[0]) > 0 {
-				t = math.Min(t, strict)
-			}
-			if r := segDistance(x, a, b) / t; r > worst {
-				worst, wk = r, k
-			}
+// oneSided returns the excess of the chords of loop l for
+// plane.DouglasPeucker (limit 1): the distance of a dropped vertex x from
+// the chord over tol(x) (Douglas & Peucker 1973, Cartographica 10). The
+// test is one-sided: a vertex on the material side of the chord (its left,
+// as the loops run) must lie within strict of it, because a chord past it
+// would bring removed material back into the domain — broken elements
+// whose displacement is no longer resisted and may be inverted, and whose
+// state would be copied into the new elements there. A chord may cut off
+// intact material within tol(x); its state is lost like that of removed
+// elements, and re-equilibration relaxes the force it held.
+func (c *carver) oneSided(l *cLoop, tol func([2]float64) float64, strict float64) func(i, j, k int) float64 {
+	return func(i, j, k int) float64 {
+		a, b, x := c.m.X[l.v[i]], c.m.X[l.v[j]], c.m.X[l.v[k]]
+		t := tol(x)
+		if (b[0]-a[0])*(x[1]-a[1])-(b[1]-a[1])*(x[0]-a[0]) > 0 {
+			t = math.Min(t, strict)
 		}
-		if wk < 0 {
-			continue
-		}
-		l.keep[wk] = true
-		*work = append(*work, span{li, s.i, wk}, span{li, wk, s.j})
+		return plane.SegDist(x, a, b) / t
 	}
 }
 
@@ -858,7 +839,7 @@ func (c *carver) farthest(s span) (int, float64) {
 	a, b := c.m.X[l.v[s.i]], c.m.X[l.v[s.j]]
 	best, bk := -1.0, -1
 	for _, k := range l.interior(s.i, s.j) {
-		if d := segDistance(c.m.X[l.v[k]], a, b); d > best {
+		if d := plane.SegDist(c.m.X[l.v[k]], a, b); d > best {
 			best, bk = d, k
 		}
 	}
@@ -926,7 +907,7 @@ func (c *carver) badSpans() []span {
 				if id == sg.a || id == sg.b {
 					return true
 				}
-				if segDistance(x, pa, pb) < 4*geom.MinFeature*c.size(x[0], x[1]) {
+				if plane.SegDist(x, pa, pb) < 4*geom.MinFeature*c.size(x[0], x[1]) {
 					isBad = true
 					return false
 				}
@@ -949,7 +930,7 @@ func (c *carver) badSpans() []span {
 				if id == sg.a || id == sg.b {
 					return true
 				}
-				if pointInPolygon(x, poly) {
+				if plane.InPolygon(x, poly) {
 					isBad = true
 					return false
 				}
@@ -1046,8 +1027,8 @@ func segmentsClash(p1, p2, q1, q2 [2]float64, a1, a2, b1, b2 int) bool {
 	if a2 == b1 || a2 == b2 {
 		shared++
 	}
-	o1, o2 := orient(p1, p2, q1), orient(p1, p2, q2)
-	o3, o4 := orient(q1, q2, p1), orient(q1, q2, p2)
+	o1, o2 := turnSign(p1, p2, q1), turnSign(p1, p2, q2)
+	o3, o4 := turnSign(q1, q2, p1), turnSign(q1, q2, p2)
 	if shared == 2 {
 		return true // two chords between the same nodes: a collapsed loop
 	}
@@ -1078,8 +1059,11 @@ func overlap1D(p1, p2, q1, q2 [2]float64) bool {
 	return math.Min(phi, qhi) > math.Max(plo, qlo)
 }
 
-// orient returns the sign of the orientation of a, b, c.
-func orient(a, b, c [2]float64) int {
+// turnSign returns the sign of the orientation determinant of a, b, c
+// evaluated in plain floating point. It is not the exact plane.Orient: near
+// collinear points can get another sign, and the chords that simplify
+// keeps depend on these signs, so switching would change carved domains.
+func turnSign(a, b, c [2]float64) int {
 	d := (b[0]-a[0])*(c[1]-a[1]) - (b[1]-a[1])*(c[0]-a[0])
 	switch {
 	case d > 0:
@@ -1088,25 +1072,6 @@ func orient(a, b, c [2]float64) int {
 		return -1
 	}
 	return 0
-}
-
-// pointInPolygon reports whether x lies strictly inside the closed polygon
-// (even–odd rule; points on its edges count as outside).
-func pointInPolygon(x [2]float64, poly [][2]float64) bool {
-	in := false
-	n := len(poly)
-	for i := 0; i < n; i++ {
-		a, b := poly[i], poly[(i+1)%n]
-		if segDistance(x, a, b) == 0 {
-			return false
-		}
-		if (a[1] > x[1]) != (b[1] > x[1]) {
-			if t := (x[1] - a[1]) / (b[1] - a[1]); a[0]+t*(b[0]-a[0]) > x[0] {
-				in = !in
-			}
-		}
-	}
-	return in
 }
 
 // domain assembles the geom.Domain.

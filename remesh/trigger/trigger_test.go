@@ -1,4 +1,4 @@
-package remesh
+package trigger
 
 import (
 	"math"
@@ -6,82 +6,15 @@ import (
 	"strings"
 	"testing"
 
+	"tearline/criteria"
+	"tearline/remesh/carve"
 	"tearline/remesh/geom"
+	"tearline/remesh/internal/testmesh"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/remesh/tri"
 	"tearline/solver/fem"
-	"tearline/solver/material"
 )
-
-// structMesh builds a structured 6-node triangulation of the rectangle
-// [x0, x1] × [y0, y1] with nx × ny cells, each cut along its diagonal into
-// two counter-clockwise triangles; boundary labels "bottom", "right",
-// "top", "left"; corner nodes first. Named points: "origin" at (x0, y0).
-func structMesh(x0, y0, x1, y1 float64, nx, ny int) *fem.Mesh {
-	m := &fem.Mesh{Labels: []string{"bottom", "right", "top", "left"}, Points: map[string]int{}}
-	id := func(i, j int) int { return j*(nx+1) + i }
-	for j := 0; j <= ny; j++ {
-		for i := 0; i <= nx; i++ {
-			m.X = append(m.X, [2]float64{x0 + (x1-x0)*float64(i)/float64(nx), y0 + (y1-y0)*float64(j)/float64(ny)})
-		}
-	}
-	m.NumCorners = len(m.X)
-	mid := map[[2]int]int{}
-	midOf := func(a, b int) int {
-		k := [2]int{min(a, b), max(a, b)}
-		if n, ok := mid[k]; ok {
-			return n
-		}
-		pa, pb := m.X[a], m.X[b]
-		m.X = append(m.X, [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])})
-		mid[k] = len(m.X) - 1
-		return len(m.X) - 1
-	}
-	add := func(a, b, c int) {
-		m.Tri = append(m.Tri, [6]int{a, b, c, midOf(a, b), midOf(b, c), midOf(c, a)})
-	}
-	for j := 0; j < ny; j++ {
-		for i := 0; i < nx; i++ {
-			a, b, c, d := id(i, j), id(i+1, j), id(i+1, j+1), id(i, j+1)
-			add(a, b, c)
-			add(a, c, d)
-		}
-	}
-	// boundary edges: find each triangle edge on the rectangle's sides
-	for e, t := range m.Tri {
-		for k := 0; k < 3; k++ {
-			a, b := t[k], t[(k+1)%3]
-			pa, pb := m.X[a], m.X[b]
-			lab := -1
-			switch {
-			case pa[1] == y0 && pb[1] == y0:
-				lab = 0
-			case pa[0] == x1 && pb[0] == x1:
-				lab = 1
-			case pa[1] == y1 && pb[1] == y1:
-				lab = 2
-			case pa[0] == x0 && pb[0] == x0:
-				lab = 3
-			}
-			if lab >= 0 {
-				m.Boundary = append(m.Boundary, fem.Edge{A: a, B: b, Mid: t[3+k], Label: lab, Tri: e})
-			}
-		}
-	}
-	m.Points["origin"] = id(0, 0)
-	return m
-}
-
-// gaussPoints lays out ElementRule points on m with the virgin state f = f0.
-func gaussPoints(m *fem.Mesh, f0 float64) *fem.GaussPoints {
-	r := fem.ElementRule()
-	gp := &fem.GaussPoints{PerElement: r.Len()}
-	for _, t := range m.Tri {
-		for i := 0; i < r.Len(); i++ {
-			gp.Points = append(gp.Points, fem.GaussPoint{X: r.Point(i, m.X[t[0]], m.X[t[1]], m.X[t[2]]), State: material.State{F: f0}})
-		}
-	}
-	return gp
-}
 
 // nearestGP returns the index of the Gauss point nearest to x.
 func nearestGP(gp *fem.GaussPoints, x [2]float64) int {
@@ -108,16 +41,16 @@ func TestNeedRemeshFront(t *testing.T) {
 	// 0.707); tip at (10, 0) growing in +x; a capsule zone (Width = Spread
 	// = 3) from 8 to 16: its end is at x = 19, so with margin 2 the trigger
 	// line on the axis is x = 17 (capsule geometry, by definition).
-	m := structMesh(0, -10, 40, 10, 80, 40)
-	fo := DefaultFollowOptions(1, 4)
+	m := testmesh.Rectangle(0, -10, 40, 10, 80, 40)
+	fo := size.DefaultFollowOptions(1, 4)
 	fo.Ahead, fo.Behind, fo.Width, fo.Spread = 6, 2, 3, 3
-	tip := Tip{Name: "tip", X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
-	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	tip := criteria.Tip{Name: "tip", X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
+	field, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultTriggerOptions(1)
+	to := DefaultOptions(1)
 	to.Margin = 2
 	to.FAlert, to.PAlert = 0, 0 // this test checks the front alone
 	a, b := zone.Pieces[0].A, zone.Pieces[0].B
@@ -135,7 +68,7 @@ func TestNeedRemeshFront(t *testing.T) {
 		{"flank behind tip ignored", [2]float64{7, 2.8}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			gp := gaussPoints(m, 0.001)
+			gp := testmesh.GaussPoints(m, 0.001)
 			k := nearestGP(gp, c.front)
 			gp.Points[k].State.F = 0.4
 			x := gp.Points[k].X
@@ -143,7 +76,7 @@ func TestNeedRemeshFront(t *testing.T) {
 			if (x[0] - tip.X[0]) < -to.Wake { // more than Wake·ℓ behind the tip: flank
 				want = false
 			}
-			dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, 0, to)
+			dec, err := Check(m, gp, []criteria.Tip{tip}, &zone, 0, to)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -160,9 +93,9 @@ func TestNeedRemeshFront(t *testing.T) {
 		x    float64
 		want bool
 	}{{12, false}, {16.9, false}, {17.1, true}, {25, true}} {
-		gp := gaussPoints(m, 0.001)
-		cur := Tip{Name: "tip", X: [2]float64{c.x, 0}, Dir: [2]float64{1, 0}}
-		dec, err := NeedRemesh(m, gp, []Tip{cur}, &zone, 0, to)
+		gp := testmesh.GaussPoints(m, 0.001)
+		cur := criteria.Tip{Name: "tip", X: [2]float64{c.x, 0}, Dir: [2]float64{1, 0}}
+		dec, err := Check(m, gp, []criteria.Tip{cur}, &zone, 0, to)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -176,16 +109,16 @@ func TestNeedRemeshCoarseDamage(t *testing.T) {
 	// Element sizes (longest edge) of two structured meshes: 0.5·√2 and
 	// 4·√2 (by construction). Zone: h_fine = 0.5, h_wake = 2, so with the
 	// tolerance 1.5 the limits are 0.75 in the zone and 3 outside.
-	fine := structMesh(0, 0, 20, 12, 40, 24)
-	coarse := structMesh(0, 0, 20, 12, 5, 3)
-	fo := DefaultFollowOptions(1, 4)
-	tip := Tip{X: [2]float64{5, 5}, Dir: [2]float64{1, 0}}
-	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	fine := testmesh.Rectangle(0, 0, 20, 12, 40, 24)
+	coarse := testmesh.Rectangle(0, 0, 20, 12, 5, 3)
+	fo := size.DefaultFollowOptions(1, 4)
+	tip := criteria.Tip{X: [2]float64{5, 5}, Dir: [2]float64{1, 0}}
+	field, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultTriggerOptions(1)
+	to := DefaultOptions(1)
 	for _, c := range []struct {
 		name  string
 		m     *fem.Mesh
@@ -203,7 +136,7 @@ func TestNeedRemeshCoarseDamage(t *testing.T) {
 		{"damage inside zone, coarse mesh", coarse, [2]float64{6, 5}, 0.05, 0, false, true},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			gp := gaussPoints(c.m, 0.001)
+			gp := testmesh.GaussPoints(c.m, 0.001)
 			k := nearestGP(gp, c.at)
 			gp.Points[k].State.F, gp.Points[k].State.P, gp.Points[k].State.Broken = c.f, c.p, c.broke
 			// the size test uses the mesher's convention, the longest edge
@@ -213,7 +146,7 @@ func TestNeedRemeshCoarseDamage(t *testing.T) {
 			if math.Abs(h-math.Sqrt2*dx) > 1e-12 { // diagonal of a square cell
 				t.Fatalf("longest edge %g, want %g", h, math.Sqrt2*dx)
 			}
-			dec, err := NeedRemesh(c.m, gp, []Tip{tip}, &zone, 3, to)
+			dec, err := Check(c.m, gp, []criteria.Tip{tip}, &zone, 3, to)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -226,10 +159,10 @@ func TestNeedRemeshCoarseDamage(t *testing.T) {
 		})
 	}
 	// the limit turns a due remesh into a refusal with its own cause
-	gp := gaussPoints(coarse, 0.001)
+	gp := testmesh.GaussPoints(coarse, 0.001)
 	gp.Points[nearestGP(gp, [2]float64{15, 9})].State.F = 0.05
 	to.MaxRemesh = 3
-	dec, err := NeedRemesh(coarse, gp, []Tip{tip}, &zone, 3, to)
+	dec, err := Check(coarse, gp, []criteria.Tip{tip}, &zone, 3, to)
 	if err != nil || dec.Remesh || dec.Cause != LimitReached {
 		t.Fatalf("at the limit: %+v, %v; want no remesh with cause %v", dec, err, LimitReached)
 	}
@@ -239,20 +172,20 @@ func TestNeedRemeshRareAfterRemesh(t *testing.T) {
 	// Right after a remesh (tip where the zone was built) the trigger is
 	// quiet, and it stays quiet while the tip grows by less than
 	// (Ahead + Spread − Margin)ℓ: remeshes are rare (DESIGN.md §4).
-	m := structMesh(0, -10, 40, 10, 80, 40)
-	fo := DefaultFollowOptions(1, 4)
-	tip := Tip{X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
-	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	m := testmesh.Rectangle(0, -10, 40, 10, 80, 40)
+	fo := size.DefaultFollowOptions(1, 4)
+	tip := criteria.Tip{X: [2]float64{10, 0}, Dir: [2]float64{1, 0}}
+	field, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultTriggerOptions(1)
+	to := DefaultOptions(1)
 	grown := 0.0
-	gp := gaussPoints(m, 0.001)
+	gp := testmesh.GaussPoints(m, 0.001)
 	for da := 0.0; da < 20; da += 0.25 {
-		cur := Tip{X: [2]float64{10 + da, 0}, Dir: [2]float64{1, 0}}
-		dec, err := NeedRemesh(m, gp, []Tip{cur}, &zone, 0, to)
+		cur := criteria.Tip{X: [2]float64{10 + da, 0}, Dir: [2]float64{1, 0}}
+		dec, err := Check(m, gp, []criteria.Tip{cur}, &zone, 0, to)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -270,28 +203,28 @@ func TestNeedRemeshRareAfterRemesh(t *testing.T) {
 }
 
 func TestTriggerValidate(t *testing.T) {
-	m := structMesh(0, 0, 1, 1, 2, 2)
-	gp := gaussPoints(m, 0.001)
-	zone := FineZone{HFine: 0.1, HWake: 0.4}
+	m := testmesh.Rectangle(0, 0, 1, 1, 2, 2)
+	gp := testmesh.GaussPoints(m, 0.001)
+	zone := size.FineZone{HFine: 0.1, HWake: 0.4}
 	for _, c := range []struct {
 		name string
-		mod  func(*TriggerOptions)
+		mod  func(*Options)
 		gp   *fem.GaussPoints
-		tips []Tip
+		tips []criteria.Tip
 		want string
 	}{
-		{"zero length", func(o *TriggerOptions) { o.Length = 0 }, gp, nil, "Length"},
-		{"negative margin", func(o *TriggerOptions) { o.Margin = -1 }, gp, nil, "Margin"},
-		{"front level 1", func(o *TriggerOptions) { o.FrontLevel = 1 }, gp, nil, "FrontLevel"},
-		{"size tol < 1", func(o *TriggerOptions) { o.SizeTol = 0.5 }, gp, nil, "SizeTol"},
-		{"negative max", func(o *TriggerOptions) { o.MaxRemesh = -1 }, gp, nil, "MaxRemesh"},
-		{"gauss points mismatch", func(o *TriggerOptions) {}, &fem.GaussPoints{PerElement: 6, Points: gp.Points[:6]}, nil, "Gauss points"},
-		{"zero tip direction", func(o *TriggerOptions) {}, gp, []Tip{{Name: "t"}}, "direction"},
+		{"zero length", func(o *Options) { o.Length = 0 }, gp, nil, "Length"},
+		{"negative margin", func(o *Options) { o.Margin = -1 }, gp, nil, "Margin"},
+		{"front level 1", func(o *Options) { o.FrontLevel = 1 }, gp, nil, "FrontLevel"},
+		{"size tol < 1", func(o *Options) { o.SizeTol = 0.5 }, gp, nil, "SizeTol"},
+		{"negative max", func(o *Options) { o.MaxRemesh = -1 }, gp, nil, "MaxRemesh"},
+		{"gauss points mismatch", func(o *Options) {}, &fem.GaussPoints{PerElement: 6, Points: gp.Points[:6]}, nil, "Gauss points"},
+		{"zero tip direction", func(o *Options) {}, gp, []criteria.Tip{{Name: "t"}}, "direction"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			o := DefaultTriggerOptions(1)
+			o := DefaultOptions(1)
 			c.mod(&o)
-			_, err := NeedRemesh(m, c.gp, c.tips, &zone, 0, o)
+			_, err := Check(m, c.gp, c.tips, &zone, 0, o)
 			if err == nil || !strings.Contains(err.Error(), c.want) {
 				t.Fatalf("error %v, want one naming %q", err, c.want)
 			}
@@ -302,18 +235,18 @@ func TestTriggerValidate(t *testing.T) {
 func TestNeedRemeshSeveralTips(t *testing.T) {
 	// Two tips growing apart (a two-sided crack): each zone is checked on
 	// its own; the trigger fires as soon as either tip nears its zone's end.
-	m := structMesh(-30, -10, 30, 10, 60, 20)
-	fo := DefaultFollowOptions(1, 4)
+	m := testmesh.Rectangle(-30, -10, 30, 10, 60, 20)
+	fo := size.DefaultFollowOptions(1, 4)
 	fo.Ahead, fo.Behind, fo.Width, fo.Spread = 6, 2, 3, 3
-	t0 := []Tip{{Name: "right", X: [2]float64{2, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{-2, 0}, Dir: [2]float64{-1, 0}}}
-	field, err := NewTipField(t0, nil, nil, fo)
+	t0 := []criteria.Tip{{Name: "right", X: [2]float64{2, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{-2, 0}, Dir: [2]float64{-1, 0}}}
+	field, err := size.NewTipField(t0, nil, nil, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultTriggerOptions(1)
+	to := DefaultOptions(1)
 	to.Margin = 2
-	gp := gaussPoints(m, 0.001)
+	gp := testmesh.GaussPoints(m, 0.001)
 	// zone ends at ±(2 + 6 + 3) = ±11; with margin 2 a tip fires beyond ±9
 	for _, c := range []struct {
 		right, left float64
@@ -325,8 +258,8 @@ func TestNeedRemeshSeveralTips(t *testing.T) {
 		{9.5, -5, true, "right"},
 		{5, -9.5, true, "left"},
 	} {
-		tips := []Tip{{Name: "right", X: [2]float64{c.right, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{c.left, 0}, Dir: [2]float64{-1, 0}}}
-		dec, err := NeedRemesh(m, gp, tips, &zone, 0, to)
+		tips := []criteria.Tip{{Name: "right", X: [2]float64{c.right, 0}, Dir: [2]float64{1, 0}}, {Name: "left", X: [2]float64{c.left, 0}, Dir: [2]float64{-1, 0}}}
+		dec, err := Check(m, gp, tips, &zone, 0, to)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -349,14 +282,14 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	fo := DefaultFollowOptions(ell, 1)
-	to := DefaultTriggerOptions(ell)
-	tip := Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
-	f, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	fo := size.DefaultFollowOptions(ell, 1)
+	to := DefaultOptions(ell)
+	tip := criteria.Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
+	f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		tb.Fatal(err)
 	}
-	m, _, err := MeshDomain(d, f.At, MeshOptions{})
+	m, _, err := meshing.Mesh(d, f.At, meshing.Options{})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -365,7 +298,7 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 	remeshes := 0
 	for a := ell / 4; a <= da*ell+1e-9; a += ell / 4 {
 		tip.X = [2]float64{a, 0}
-		gp := gaussPoints(m, 0.001)
+		gp := testmesh.GaussPoints(m, 0.001)
 		for i := range gp.Points {
 			g := &gp.Points[i]
 			x := g.X
@@ -378,7 +311,7 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 				g.State.F = 0.05
 			}
 		}
-		dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, remeshes, to)
+		dec, err := Check(m, gp, []criteria.Tip{tip}, &zone, remeshes, to)
 		if err != nil {
 			tb.Fatal(err)
 		}
@@ -388,23 +321,23 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 		if testing.Verbose() {
 			tb.Logf("Δa = %.2fℓ: %s", a/ell, dec.Reason)
 		}
-		broken, err := BrokenElements(gp)
+		broken, err := carve.BrokenElements(gp)
 		if err != nil {
 			tb.Fatal(err)
 		}
-		dmg, err := DamagedPoints(gp, broken, to.FAlert, to.PAlert)
+		dmg, err := size.DamagedPoints(gp, broken, to.FAlert, to.PAlert)
 		if err != nil {
 			tb.Fatal(err)
 		}
-		f, err = NewTipField([]Tip{tip}, dmg, nil, fo)
+		f, err = size.NewTipField([]criteria.Tip{tip}, dmg, nil, fo)
 		if err != nil {
 			tb.Fatal(err)
 		}
-		c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+		c, err := carve.Domain(m, broken, d, []criteria.Tip{tip}, f.At, carve.DefaultOptions())
 		if err != nil {
 			tb.Fatalf("Δa = %gℓ: %v", a/ell, err)
 		}
-		m, _, err = MeshDomain(c.Domain, f.At, MeshOptions{})
+		m, _, err = meshing.Mesh(c.Domain, f.At, meshing.Options{})
 		if err != nil {
 			tb.Fatalf("Δa = %gℓ: %v", a/ell, err)
 		}
@@ -412,14 +345,14 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 		remeshes++
 		at, tris = append(at, a/ell), append(tris, len(m.Tri))
 		// right after a remesh the trigger is quiet (DESIGN.md §4: rare)
-		gp2 := gaussPoints(m, 0.001)
+		gp2 := testmesh.GaussPoints(m, 0.001)
 		for i := range gp2.Points {
 			x := gp2.Points[i].X
 			if x[0] < a+ell && x[1] < band+ell && x[0] > -ell {
 				gp2.Points[i].State.F = 0.05
 			}
 		}
-		if dec, err := NeedRemesh(m, gp2, []Tip{tip}, &zone, remeshes, to); err != nil || dec.Remesh {
+		if dec, err := Check(m, gp2, []criteria.Tip{tip}, &zone, remeshes, to); err != nil || dec.Remesh {
 			tb.Fatalf("Δa = %gℓ: trigger fires right after the remesh: %s (%v)", a/ell, dec.Reason, err)
 		}
 	}
@@ -485,21 +418,21 @@ func TestGrowthTurningPath(t *testing.T) {
 		x = [2]float64{x[0] + 0.02*math.Cos(ang), x[1] + 0.02*math.Sin(ang)}
 		ang += rate * 0.02
 	}
-	fo := DefaultFollowOptions(ell, 1)
-	to := DefaultTriggerOptions(ell)
-	tip := Tip{Name: "tip", X: path[0], Dir: tang[0]}
-	f, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	fo := size.DefaultFollowOptions(ell, 1)
+	to := DefaultOptions(ell)
+	tip := criteria.Tip{Name: "tip", X: path[0], Dir: tang[0]}
+	f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		t.Fatal(err)
 	}
-	m, _, err := MeshDomain(d, f.At, MeshOptions{})
+	m, _, err := meshing.Mesh(d, f.At, meshing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	zone := f.Zone()
 	var ds, ss []float64
 	locate := func() {
-		gp := gaussPoints(m, 0.001)
+		gp := testmesh.GaussPoints(m, 0.001)
 		ds, ss = make([]float64, len(gp.Points)), make([]float64, len(gp.Points))
 		for i := range gp.Points {
 			ds[i], ss[i] = pathDistance(gp.Points[i].X, path)
@@ -509,8 +442,8 @@ func TestGrowthTurningPath(t *testing.T) {
 	remeshes := 0
 	for a := ell / 4; a <= 15*ell+1e-9; a += ell / 4 {
 		k := int(math.Round(a / 0.02))
-		tip = Tip{Name: "tip", X: path[k], Dir: tang[k]}
-		gp := gaussPoints(m, 0.001)
+		tip = criteria.Tip{Name: "tip", X: path[k], Dir: tang[k]}
+		gp := testmesh.GaussPoints(m, 0.001)
 		for i := range gp.Points {
 			g := &gp.Points[i]
 			switch {
@@ -522,7 +455,7 @@ func TestGrowthTurningPath(t *testing.T) {
 				g.State.F = 0.05
 			}
 		}
-		dec, err := NeedRemesh(m, gp, []Tip{tip}, &zone, remeshes, to)
+		dec, err := Check(m, gp, []criteria.Tip{tip}, &zone, remeshes, to)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -532,17 +465,17 @@ func TestGrowthTurningPath(t *testing.T) {
 		if dec.Cause != FrontNearEdge && dec.Cause != TipNearEdge {
 			t.Fatalf("Δa = %gℓ: remesh called by %v: %s", a/ell, dec.Cause, dec.Reason)
 		}
-		broken, _ := BrokenElements(gp)
-		dmg, _ := DamagedPoints(gp, broken, to.FAlert, to.PAlert)
-		if f, err = NewTipField([]Tip{tip}, dmg, nil, fo); err != nil {
+		broken, _ := carve.BrokenElements(gp)
+		dmg, _ := size.DamagedPoints(gp, broken, to.FAlert, to.PAlert)
+		if f, err = size.NewTipField([]criteria.Tip{tip}, dmg, nil, fo); err != nil {
 			t.Fatal(err)
 		}
-		c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+		c, err := carve.Domain(m, broken, d, []criteria.Tip{tip}, f.At, carve.DefaultOptions())
 		if err != nil {
 			t.Fatalf("Δa = %gℓ: %v", a/ell, err)
 		}
 		var rep tri.Report
-		if m, rep, err = MeshDomain(c.Domain, f.At, MeshOptions{}); err != nil {
+		if m, rep, err = meshing.Mesh(c.Domain, f.At, meshing.Options{}); err != nil {
 			t.Fatalf("Δa = %gℓ: %v", a/ell, err)
 		}
 		if rep.MinAngleDeg < 20 {
@@ -561,24 +494,24 @@ func TestGrowthTurningPath(t *testing.T) {
 // BenchmarkNeedRemesh times the trigger (called after every converged
 // step) on a structured mesh of 2·10⁴ triangles with a damaged band.
 func BenchmarkNeedRemesh(b *testing.B) {
-	m := structMesh(0, -10, 40, 10, 200, 50)
-	gp := gaussPoints(m, 0.001)
+	m := testmesh.Rectangle(0, -10, 40, 10, 200, 50)
+	gp := testmesh.GaussPoints(m, 0.001)
 	for i := range gp.Points {
 		if x := gp.Points[i].X; x[0] < 12 && math.Abs(x[1]) < 0.5 {
 			gp.Points[i].State.F = 0.05
 		}
 	}
-	fo := DefaultFollowOptions(1, 4)
-	tip := Tip{X: [2]float64{12, 0}, Dir: [2]float64{1, 0}}
-	field, err := NewTipField([]Tip{tip}, nil, nil, fo)
+	fo := size.DefaultFollowOptions(1, 4)
+	tip := criteria.Tip{X: [2]float64{12, 0}, Dir: [2]float64{1, 0}}
+	field, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
 		b.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultTriggerOptions(1)
+	to := DefaultOptions(1)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := NeedRemesh(m, gp, []Tip{tip}, &zone, 0, to); err != nil {
+		if _, err := Check(m, gp, []criteria.Tip{tip}, &zone, 0, to); err != nil {
 			b.Fatal(err)
 		}
 	}

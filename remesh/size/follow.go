@@ -1,30 +1,13 @@
-package remesh
+package size
 
 import (
 	"fmt"
 	"math"
 
+	"tearline/criteria"
 	"tearline/remesh/geom"
+	"tearline/solver/plane"
 )
-
-// Tip is a crack tip as the adaptive cycle sees it: where it is now and
-// which way it is growing. Name is the named point the tip carries in the
-// domain ("tip", "tip_left", …; empty when it carries none).
-type Tip struct {
-	Name string
-	X    [2]float64 // position, reference configuration
-	Dir  [2]float64 // growth direction; any non-zero length, normalised on use
-}
-
-// unitDir returns the tip's direction normalised, and false when it is zero
-// or not finite.
-func (t Tip) unitDir() ([2]float64, bool) {
-	n := math.Hypot(t.Dir[0], t.Dir[1])
-	if !(n > 0) || math.IsInf(n, 0) {
-		return [2]float64{}, false
-	}
-	return [2]float64{t.Dir[0] / n, t.Dir[1] / n}, true
-}
 
 // FollowOptions sets up the tip-following size field. Lengths other than
 // Length and HFar are in units of the internal length ℓ (Length), sizes in
@@ -118,7 +101,7 @@ func (o *FollowOptions) Validate() error {
 // centres run along the segment A→B and whose radii vary linearly from RA
 // at A to RB at B (a tapered capsule, the convex hull of the two end discs).
 type ZonePiece struct {
-	Tip    Tip
+	Tip    criteria.Tip
 	A, B   [2]float64
 	RA, RB float64
 }
@@ -168,8 +151,8 @@ func (z *FineZone) Distance(x [2]float64) float64 {
 func (z *FineZone) Depth(x [2]float64) float64 { return -z.Distance(x) }
 
 // ZoneFor returns the zone piece that FollowOptions opt puts around tip t.
-func ZoneFor(t Tip, opt *FollowOptions) (ZonePiece, error) {
-	d, ok := t.unitDir()
+func ZoneFor(t criteria.Tip, opt *FollowOptions) (ZonePiece, error) {
+	d, ok := t.UnitDir()
 	if !ok {
 		return ZonePiece{}, fmt.Errorf("remesh: tip %q at (%g, %g): direction (%g, %g) must be finite and non-zero", t.Name, t.X[0], t.X[1], t.Dir[0], t.Dir[1])
 	}
@@ -204,7 +187,7 @@ func ZoneFor(t Tip, opt *FollowOptions) (ZonePiece, error) {
 type TipField struct {
 	opt     FollowOptions
 	zone    FineZone
-	wake    *kdPoints
+	wake    *plane.Points
 	feature func(x, y float64) float64
 	// reach is the distance beyond which a term exceeds h_far.
 	zoneReach, wakeReach float64
@@ -214,7 +197,7 @@ type TipField struct {
 // NewTipField builds the size field for the given tips (several at once),
 // damaged points (see DamagedPoints) and an optional feature size function
 // (nil for none; it returns +Inf where it sets nothing).
-func NewTipField(tips []Tip, damaged [][2]float64, feature func(x, y float64) float64, opt FollowOptions) (*TipField, error) {
+func NewTipField(tips []criteria.Tip, damaged [][2]float64, feature func(x, y float64) float64, opt FollowOptions) (*TipField, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, err
 	}
@@ -239,7 +222,7 @@ func NewTipField(tips []Tip, damaged [][2]float64, feature func(x, y float64) fl
 	// field stays g-Lipschitz, and a query visits far fewer points.
 	delta := 0.1 * f.zone.HWake / g
 	f.wakeBase = f.zone.HWake - g*delta
-	f.wake = newKDPoints(thinPoints(damaged, delta/math.Sqrt2))
+	f.wake = plane.NewPoints(thinPoints(damaged, delta/math.Sqrt2))
 	f.zoneReach = (opt.HFar - f.zone.HFine) / g
 	f.wakeReach = (opt.HFar - f.wakeBase) / g
 	return f, nil
@@ -253,7 +236,7 @@ func (f *TipField) At(x, y float64) float64 {
 	if d := f.zone.Distance(p); d < f.zoneReach {
 		h = math.Min(h, f.zone.HFine+o.Grade*math.Max(0, d))
 	}
-	if d := f.wake.nearest(p, f.wakeReach); d < f.wakeReach {
+	if d := f.wake.Dist(p, f.wakeReach); d < f.wakeReach {
 		h = math.Min(h, f.wakeBase+o.Grade*d)
 	}
 	if f.feature != nil {
@@ -288,15 +271,15 @@ func (f *TipField) Zone() FineZone {
 // Options returns the options the field was built with.
 func (f *TipField) Options() FollowOptions { return f.opt }
 
-// InitialZone describes the fine zone of the initial mesh's SizeField (the
+// InitialZone describes the fine zone of the initial mesh's Field (the
 // capsules of radius FineRadius around its zones) for the trigger; hWake is
 // the size damaged points may have outside it (FollowOptions.HWake).
-func InitialZone(s *SizeField, hWake float64) FineZone {
+func InitialZone(s *Field, hWake float64) FineZone {
 	z := FineZone{HFine: s.Options.HFine, HWake: math.Max(hWake, s.Options.HFine)}
 	r := s.Options.FineRadius
 	for _, q := range s.Zones {
 		z.Pieces = append(z.Pieces, ZonePiece{
-			Tip: Tip{X: q.From, Dir: [2]float64{q.To[0] - q.From[0], q.To[1] - q.From[1]}},
+			Tip: criteria.Tip{X: q.From, Dir: [2]float64{q.To[0] - q.From[0], q.To[1] - q.From[1]}},
 			A:   q.From, B: q.To, RA: r, RB: r,
 		})
 	}

@@ -1,4 +1,4 @@
-package remesh
+package carve
 
 import (
 	"math"
@@ -8,12 +8,17 @@ import (
 	"strings"
 	"testing"
 
+	"tearline/criteria"
 	"tearline/remesh/geom"
+	"tearline/remesh/internal/testmesh"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/remesh/tri"
 	"tearline/solver/fem"
+	"tearline/solver/plane"
 )
 
-// squareDomain is the original domain of structMesh(0, 0, a, a, …): four
+// squareDomain is the original domain of testmesh.Rectangle(0, 0, a, a, …): four
 // line pieces with the mesh's labels.
 func squareDomain(a float64) *geom.Domain {
 	c := [][2]float64{{0, 0}, {a, 0}, {a, a}, {0, a}}
@@ -25,7 +30,7 @@ func squareDomain(a float64) *geom.Domain {
 	return d
 }
 
-// cellTris returns the two triangles of cell (i, j) of structMesh with nx
+// cellTris returns the two triangles of cell (i, j) of testmesh.Rectangle with nx
 // cells per row.
 func cellTris(i, j, nx int) [2]int { return [2]int{2 * (j*nx + i), 2*(j*nx+i) + 1} }
 
@@ -61,7 +66,7 @@ func TestCarveStrip(t *testing.T) {
 	// geometry): area 100 − 8 × 0.25, crack faces 4 + 4 + 0.5 long, the
 	// left side 10 − 0.5.
 	const nx = 20
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	m.Points["load"] = 20*(nx+1) + 20 // corner (10, 10)
 	m.Points["mid"] = 4*(nx+1) + 16   // interior node (8, 2)
 	m.Points["face"] = 10*(nx+1) + 3  // node (1.5, 5): on the new crack face
@@ -78,8 +83,8 @@ func TestCarveStrip(t *testing.T) {
 	for e := range m.Tri {
 		meshArea += triArea(m, e)
 	}
-	tips := []Tip{{Name: "tip", X: [2]float64{4.1, 5.3}, Dir: [2]float64{2, 0}}}
-	c, err := Carve(m, broken, orig, tips, constSize(0.5), DefaultCarveOptions())
+	tips := []criteria.Tip{{Name: "tip", X: [2]float64{4.1, 5.3}, Dir: [2]float64{2, 0}}}
+	c, err := Domain(m, broken, orig, tips, constSize(0.5), DefaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -182,7 +187,7 @@ func TestCarveStrip(t *testing.T) {
 // dropped.
 func TestCarveSplitBody(t *testing.T) {
 	const nx = 20
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	m.Points["load"] = 20*(nx+1) + 20 // (10, 10), in the upper part
 	broken := make([]bool, len(m.Tri))
 	for i := 0; i < nx; i++ {
@@ -192,7 +197,7 @@ func TestCarveSplitBody(t *testing.T) {
 	}
 	// the row y ∈ [5, 5.5] is removed: the body splits into a lower part
 	// (area 50) and an upper part (45); the larger is kept
-	c, err := Carve(m, broken, squareDomain(10), nil, constSize(0.5), DefaultCarveOptions())
+	c, err := Domain(m, broken, squareDomain(10), nil, constSize(0.5), DefaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -216,7 +221,7 @@ func TestCarvePinch(t *testing.T) {
 	// touches the upper body only at a vertex): T4 is dropped (smaller
 	// fan), T1 and T3 stay. Area 100 − 32 × 0.25 + 2 × 0.125.
 	const nx = 20
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	broken := make([]bool, len(m.Tri))
 	for j := 10; j <= 11; j++ {
 		for i := 0; i < 16; i++ {
@@ -227,9 +232,9 @@ func TestCarvePinch(t *testing.T) {
 	}
 	t1, t3, t4 := cellTris(9, 10, nx)[0], cellTris(10, 10, nx)[1], cellTris(9, 11, nx)[0]
 	broken[t1], broken[t3], broken[t4] = false, false, false
-	opt := DefaultCarveOptions()
+	opt := DefaultOptions()
 	opt.Simplify = 0 // keep the staircase: the area is then exact
-	c, err := Carve(m, broken, squareDomain(10), nil, nil, opt)
+	c, err := Domain(m, broken, squareDomain(10), nil, nil, opt)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -281,7 +286,7 @@ func TestCarveSimplify(t *testing.T) {
 	// Cartographica 10), keep the tip and label changes, and give a valid
 	// domain.
 	const nx = 40
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	broken := breakWhere(m, func(x, y float64) bool { return x < 7 && math.Abs(y-5-0.8*math.Sin(x)) < 0.45 })
 	base := -1 // vertices dropped without simplification (collinear ones)
 	for _, sc := range []struct {
@@ -295,10 +300,10 @@ func TestCarveSimplify(t *testing.T) {
 		{"graded size", 0.5, func(x, y float64) float64 { return 0.05 + 0.1*math.Abs(x-7) }},
 	} {
 		t.Run(sc.name, func(t *testing.T) {
-			opt := DefaultCarveOptions()
+			opt := DefaultOptions()
 			opt.Simplify = sc.simplify
-			tips := []Tip{{Name: "tip", X: [2]float64{7, 5 + 0.8*math.Sin(7)}, Dir: [2]float64{1, 0}}}
-			c, err := Carve(m, broken, squareDomain(10), tips, sc.size, opt)
+			tips := []criteria.Tip{{Name: "tip", X: [2]float64{7, 5 + 0.8*math.Sin(7)}, Dir: [2]float64{1, 0}}}
+			c, err := Domain(m, broken, squareDomain(10), tips, sc.size, opt)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -323,7 +328,7 @@ func TestCarveSimplify(t *testing.T) {
 				}
 			}
 			// One-sided: the simplified boundary never brings removed
-			// material back (our rule, see CarveOptions.Simplify), so no
+			// material back (our rule, see Options.Simplify), so no
 			// removed triangle's centroid is inside and the area does not
 			// exceed that of the kept triangles.
 			for e, r := range c.Removed {
@@ -360,11 +365,11 @@ func TestCarveTwoFacesClose(t *testing.T) {
 	// slit width): simplification alone would let the faces cross; the
 	// topology check keeps them apart and the domain stays valid.
 	const nx = 40
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	broken := breakWhere(m, func(x, y float64) bool { return x < 8 && math.Abs(y-5-1.5*math.Sin(0.9*x)) < 0.15 })
-	opt := DefaultCarveOptions()
+	opt := DefaultOptions()
 	opt.Simplify = 2
-	c, err := Carve(m, broken, squareDomain(10), nil, constSize(0.25), opt)
+	c, err := Domain(m, broken, squareDomain(10), nil, constSize(0.25), opt)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -462,7 +467,7 @@ func TestCarveArcs(t *testing.T) {
 			broken[2*(j*nr)+k] = true // the inner-most cell's two triangles
 		}
 	}
-	c, err := Carve(m, broken, orig, nil, constSize(0.1), DefaultCarveOptions())
+	c, err := Domain(m, broken, orig, nil, constSize(0.1), DefaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -488,7 +493,7 @@ func TestCarveArcs(t *testing.T) {
 }
 
 func TestCarveErrors(t *testing.T) {
-	m := structMesh(0, 0, 1, 1, 2, 2)
+	m := testmesh.Rectangle(0, 0, 1, 1, 2, 2)
 	all := make([]bool, len(m.Tri))
 	for i := range all {
 		all[i] = true
@@ -497,22 +502,22 @@ func TestCarveErrors(t *testing.T) {
 		name   string
 		broken []bool
 		size   func(x, y float64) float64
-		opt    func(*CarveOptions)
-		tips   []Tip
+		opt    func(*Options)
+		tips   []criteria.Tip
 		want   string
 	}{
 		{"flags mismatch", make([]bool, 3), constSize(1), nil, nil, "broken flags"},
 		{"all broken", all, constSize(1), nil, nil, "no material"},
 		{"no size", make([]bool, len(m.Tri)), nil, nil, nil, "size function"},
-		{"negative simplify", make([]bool, len(m.Tri)), constSize(1), func(o *CarveOptions) { o.Simplify = -1 }, nil, "Simplify"},
-		{"bad tip", make([]bool, len(m.Tri)), constSize(1), nil, []Tip{{Name: "tip"}}, "direction"},
+		{"negative simplify", make([]bool, len(m.Tri)), constSize(1), func(o *Options) { o.Simplify = -1 }, nil, "Simplify"},
+		{"bad tip", make([]bool, len(m.Tri)), constSize(1), nil, []criteria.Tip{{Name: "tip"}}, "direction"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			o := DefaultCarveOptions()
+			o := DefaultOptions()
 			if c.opt != nil {
 				c.opt(&o)
 			}
-			_, err := Carve(m, c.broken, nil, c.tips, c.size, o)
+			_, err := Domain(m, c.broken, nil, c.tips, c.size, o)
 			if err == nil || !strings.Contains(err.Error(), c.want) {
 				t.Fatalf("error %v, want one naming %q", err, c.want)
 			}
@@ -528,8 +533,8 @@ func TestCarveErrors(t *testing.T) {
 type cycleOut struct {
 	m0, m1 *fem.Mesh
 	broken []bool
-	c      *Carved
-	f1     *TipField
+	c      *Result
+	f1     *size.TipField
 	rep    tri.Report
 }
 
@@ -539,11 +544,11 @@ type cycleOut struct {
 // ℓ of the strip are the damaged points. The moved tip is at (grow, 0).
 type ssySetup struct {
 	d       *geom.Domain
-	fo      FollowOptions
+	fo      size.FollowOptions
 	m0      *fem.Mesh
 	broken  []bool
 	damaged [][2]float64
-	tip     Tip
+	tip     criteria.Tip
 }
 
 func newSSYSetup(tb testing.TB, R, hFar, ell, grow, band float64) ssySetup {
@@ -552,17 +557,17 @@ func newSSYSetup(tb testing.TB, R, hFar, ell, grow, band float64) ssySetup {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	fo := DefaultFollowOptions(ell, hFar)
-	f0, err := NewTipField([]Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
+	fo := size.DefaultFollowOptions(ell, hFar)
+	f0, err := size.NewTipField([]criteria.Tip{{Name: "tip", Dir: [2]float64{1, 0}}}, nil, nil, fo)
 	if err != nil {
 		tb.Fatal(err)
 	}
-	m0, _, err := MeshDomain(d, f0.At, MeshOptions{})
+	m0, _, err := meshing.Mesh(d, f0.At, meshing.Options{})
 	if err != nil {
 		tb.Fatal(err)
 	}
 	s := ssySetup{d: d, fo: fo, m0: m0, broken: make([]bool, len(m0.Tri)),
-		tip: Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}}
+		tip: criteria.Tip{Name: "tip", X: [2]float64{grow, 0}, Dir: [2]float64{1, 0}}}
 	for e, t := range m0.Tri {
 		a, b, c := m0.X[t[0]], m0.X[t[1]], m0.X[t[2]]
 		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
@@ -581,15 +586,15 @@ func newSSYSetup(tb testing.TB, R, hFar, ell, grow, band float64) ssySetup {
 func ssyCycle(tb testing.TB, R, ell, grow, band float64) cycleOut {
 	tb.Helper()
 	s := newSSYSetup(tb, R, R/10, ell, grow, band)
-	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
+	f1, err := size.NewTipField([]criteria.Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		tb.Fatal(err)
 	}
-	c, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions())
+	c, err := Domain(s.m0, s.broken, s.d, []criteria.Tip{s.tip}, f1.At, DefaultOptions())
 	if err != nil {
 		tb.Fatal(err)
 	}
-	m1, rep, err := MeshDomain(c.Domain, f1.At, MeshOptions{})
+	m1, rep, err := meshing.Mesh(c.Domain, f1.At, meshing.Options{})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -609,7 +614,7 @@ func insideMesh(m *fem.Mesh, x [2]float64) bool {
 }
 
 func TestCarveRemeshSSY(t *testing.T) {
-	// End to end: carve → MeshDomain gives a valid mesh (fem.Mesh.Check),
+	// End to end: carve → meshing.Mesh gives a valid mesh (fem.Mesh.Check),
 	// minimum angle ≥ 20° (the mesher's bound, Shewchuk 2002, Comput.
 	// Geom. 22), crack faces labelled, and no removed material inside the
 	// new mesh beyond the simplification tolerance.
@@ -634,7 +639,7 @@ func TestCarveRemeshSSY(t *testing.T) {
 			continue
 		}
 		// allowed only within the simplification tolerance of the crack face
-		tol := DefaultCarveOptions().Simplify * o.f1.At(x[0], x[1])
+		tol := DefaultOptions().Simplify * o.f1.At(x[0], x[1])
 		if dd := domainDistance(o.c.Domain, x); dd > tol {
 			t.Errorf("removed element %d's centroid %v is inside the new mesh, %g from its boundary (tolerance %g)", e, x, dd, tol)
 		}
@@ -679,16 +684,16 @@ func TestCarveRemeshTwice(t *testing.T) {
 		x := [2]float64{(a[0] + b[0] + c[0]) / 3, (a[1] + b[1] + c[1]) / 3}
 		broken[e] = x[0] > 0.9 && x[0] < 2.2 && x[1] < 0.12
 	}
-	tip := Tip{Name: "tip", X: [2]float64{2.2, 0}, Dir: [2]float64{1, 0}}
-	f, err := NewTipField([]Tip{tip}, nil, nil, DefaultFollowOptions(ell, R/10))
+	tip := criteria.Tip{Name: "tip", X: [2]float64{2.2, 0}, Dir: [2]float64{1, 0}}
+	f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, size.DefaultFollowOptions(ell, R/10))
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, err := Carve(m, broken, d, []Tip{tip}, f.At, DefaultCarveOptions())
+	c, err := Domain(m, broken, d, []criteria.Tip{tip}, f.At, DefaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
-	m2, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+	m2, rep, err := meshing.Mesh(c.Domain, f.At, meshing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -724,7 +729,7 @@ func TestCarveTwoTips(t *testing.T) {
 	// tip; both tips move to the slits' ends (snapped to the end vertices,
 	// which lie within Simplify·h of the tips).
 	const nx = 20
-	m := structMesh(0, 0, 10, 10, nx, nx)
+	m := testmesh.Rectangle(0, 0, 10, 10, nx, nx)
 	broken := make([]bool, len(m.Tri))
 	for i := 0; i < 6; i++ {
 		for _, e := range cellTris(i, 6, nx) { // y 3–3.5, x 0–3
@@ -734,11 +739,11 @@ func TestCarveTwoTips(t *testing.T) {
 			broken[e] = true
 		}
 	}
-	tips := []Tip{
+	tips := []criteria.Tip{
 		{Name: "tip_left", X: [2]float64{3, 3.25}, Dir: [2]float64{1, 0}},
 		{Name: "tip_right", X: [2]float64{7, 6.75}, Dir: [2]float64{-1, 0.1}},
 	}
-	c, err := Carve(m, broken, squareDomain(10), tips, constSize(0.5), DefaultCarveOptions())
+	c, err := Domain(m, broken, squareDomain(10), tips, constSize(0.5), DefaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -762,23 +767,23 @@ func TestCarveTwoTips(t *testing.T) {
 	}
 }
 
-// BenchmarkCarveRemesh times one carve + MeshDomain of the SSY disk meshed
+// BenchmarkCarveRemesh times one carve + meshing.Mesh of the SSY disk meshed
 // to about 10⁴ triangles (ℓ = 0.1, h_far = 0.3, R = 10), the old mesh built
 // outside the timer.
 func BenchmarkCarveRemesh(b *testing.B) {
 	s := newSSYSetup(b, 10, 0.3, 0.1, 0.8, 0.06)
-	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
+	f1, err := size.NewTipField([]criteria.Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		b.Fatal(err)
 	}
 	b.ResetTimer()
 	var n1 int
 	for i := 0; i < b.N; i++ {
-		c, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions())
+		c, err := Domain(s.m0, s.broken, s.d, []criteria.Tip{s.tip}, f1.At, DefaultOptions())
 		if err != nil {
 			b.Fatal(err)
 		}
-		m1, _, err := MeshDomain(c.Domain, f1.At, MeshOptions{})
+		m1, _, err := meshing.Mesh(c.Domain, f1.At, meshing.Options{})
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -788,16 +793,16 @@ func BenchmarkCarveRemesh(b *testing.B) {
 	b.ReportMetric(float64(n1), "new-triangles")
 }
 
-// BenchmarkCarve times Carve alone on the same mesh.
+// BenchmarkCarve times Domain alone on the same mesh.
 func BenchmarkCarve(b *testing.B) {
 	s := newSSYSetup(b, 10, 0.3, 0.1, 0.8, 0.06)
-	f1, err := NewTipField([]Tip{s.tip}, s.damaged, nil, s.fo)
+	f1, err := size.NewTipField([]criteria.Tip{s.tip}, s.damaged, nil, s.fo)
 	if err != nil {
 		b.Fatal(err)
 	}
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := Carve(s.m0, s.broken, s.d, []Tip{s.tip}, f1.At, DefaultCarveOptions()); err != nil {
+		if _, err := Domain(s.m0, s.broken, s.d, []criteria.Tip{s.tip}, f1.At, DefaultOptions()); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -836,16 +841,16 @@ func TestCarveRandomDamage(t *testing.T) {
 		for k := 0; k < 5; k++ { // isolated broken elements near the tip
 			broken[rng.IntN(len(broken))] = true
 		}
-		tip := Tip{Name: "tip", X: [2]float64{ds[0].x + ds[0].r, ds[0].y}, Dir: [2]float64{1, 0.2}}
-		f, err := NewTipField([]Tip{tip}, nil, nil, s.fo)
+		tip := criteria.Tip{Name: "tip", X: [2]float64{ds[0].x + ds[0].r, ds[0].y}, Dir: [2]float64{1, 0.2}}
+		f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, s.fo)
 		if err != nil {
 			t.Fatal(err)
 		}
-		c, err := Carve(s.m0, broken, s.d, []Tip{tip}, f.At, DefaultCarveOptions())
+		c, err := Domain(s.m0, broken, s.d, []criteria.Tip{tip}, f.At, DefaultOptions())
 		if err != nil {
 			t.Fatalf("trial %d (discs %v): %v", trial, ds, err)
 		}
-		m, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+		m, rep, err := meshing.Mesh(c.Domain, f.At, meshing.Options{})
 		if err != nil {
 			t.Fatalf("trial %d (discs %v): mesh: %v", trial, ds, err)
 		}
@@ -886,23 +891,23 @@ func TestCarveTurningPaths(t *testing.T) {
 		d    *geom.Domain
 		ell  float64
 	}{{"ssy", ssy, 0.2}, {"dent", dent, 0.2}} {
-		fo := DefaultFollowOptions(dc.ell, 1)
-		var tips0 []Tip
+		fo := size.DefaultFollowOptions(dc.ell, 1)
+		var tips0 []criteria.Tip
 		for _, name := range dc.d.Tips() {
 			p := dc.d.Points[name]
-			tips0 = append(tips0, Tip{Name: name, X: p.X, Dir: p.Dir})
+			tips0 = append(tips0, criteria.Tip{Name: name, X: p.X, Dir: p.Dir})
 		}
-		f0, err := NewTipField(tips0, nil, nil, fo)
+		f0, err := size.NewTipField(tips0, nil, nil, fo)
 		if err != nil {
 			t.Fatal(err)
 		}
-		m0, _, err := MeshDomain(dc.d, f0.At, MeshOptions{})
+		m0, _, err := meshing.Mesh(dc.d, f0.At, meshing.Options{})
 		if err != nil {
 			t.Fatal(err)
 		}
 		for trial := 0; trial < n; trial++ {
 			var paths [][][2]float64
-			var tips []Tip
+			var tips []criteria.Tip
 			for _, t0 := range tips0 {
 				ang := math.Atan2(t0.Dir[1], t0.Dir[0])
 				rate := (rng.Float64()*2 - 1) * 1.2 // turning rate, rad per unit length
@@ -914,28 +919,28 @@ func TestCarveTurningPaths(t *testing.T) {
 					path = append(path, x)
 				}
 				paths = append(paths, path)
-				tips = append(tips, Tip{Name: t0.Name, X: x, Dir: [2]float64{math.Cos(ang), math.Sin(ang)}})
+				tips = append(tips, criteria.Tip{Name: t0.Name, X: x, Dir: [2]float64{math.Cos(ang), math.Sin(ang)}})
 			}
 			half := 0.05 + 0.1*rng.Float64()
 			broken := breakWhere(m0, func(x, y float64) bool {
 				for _, p := range paths {
 					for i := 1; i < len(p); i++ {
-						if segDistance([2]float64{x, y}, p[i-1], p[i]) < half {
+						if plane.SegDist([2]float64{x, y}, p[i-1], p[i]) < half {
 							return true
 						}
 					}
 				}
 				return false
 			})
-			f, err := NewTipField(tips, nil, nil, fo)
+			f, err := size.NewTipField(tips, nil, nil, fo)
 			if err != nil {
 				t.Fatal(err)
 			}
-			c, err := Carve(m0, broken, dc.d, tips, f.At, DefaultCarveOptions())
+			c, err := Domain(m0, broken, dc.d, tips, f.At, DefaultOptions())
 			if err != nil {
 				t.Fatalf("%s trial %d: %v", dc.name, trial, err)
 			}
-			m, rep, err := MeshDomain(c.Domain, f.At, MeshOptions{})
+			m, rep, err := meshing.Mesh(c.Domain, f.At, meshing.Options{})
 			if err != nil {
 				t.Fatalf("%s trial %d: mesh: %v", dc.name, trial, err)
 			}
