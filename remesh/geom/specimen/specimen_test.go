@@ -8,9 +8,10 @@ import (
 	"testing"
 
 	"tearline/criteria"
-	"tearline/remesh"
 	"tearline/remesh/geom"
 	"tearline/remesh/geom/specimen"
+	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
@@ -322,11 +323,11 @@ func TestWilliamsForce(t *testing.T) {
 // linear elasticity).
 func solveElastic(t *testing.T, d *geom.Domain, bcs fem.BCs) *fem.Problem {
 	t.Helper()
-	sf, err := remesh.NewSizeField(d, remesh.SizeOptions{HFine: 0.02, HFar: 1})
+	sf, err := size.NewField(d, size.Options{HFine: 0.02, HFar: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
-	m, _, err := remesh.MeshDomain(d, sf.At, remesh.MeshOptions{})
+	m, _, err := meshing.Mesh(d, sf.At, meshing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
