@@ -31,7 +31,8 @@
 //     on geom.LabelRemote about the point geom.PointTip (Williams 1957,
 //     J. Appl. Mech. 24); force = the resultant of the reactions on the
 //     remote boundary along the crack normal; control = K·t. Under an
-//     opening control t drives the crack opening instead (OpeningControl).
+//     opening control (Load.Opening) t drives the crack opening at the
+//     points AddOpeningPoints places, and K is solved for.
 //   - Pin: a rigid pin on a 10° contact arc of geom.LabelPin (and −u on
 //     geom.LabelPinLower of a full model), acting as a hinge; the point
 //     geom.PointLoadLine is held against rigid sliding along the crack;
@@ -42,7 +43,8 @@
 //     geom.LabelTop (−u on geom.LabelBase or geom.LabelBottom when present),
 //     both components held on the grips of a Clamped specimen; force = the
 //     reaction × thickness (the ring force in axisymmetry); control = u.
-//   - Pressure: a dead pressure on the loaded label; control = the pressure.
+//   - Pressure: a dead pressure on the loaded label; control = the pressure,
+//     no force (NaN).
 //
 // # J
 //
