@@ -89,10 +89,7 @@ func ResumeCycle(cfg CycleConfig, r io.Reader) (*Cycle, []byte, error) {
 	}
 	c := &Cycle{stage: stage{cfg: &cfg}, steps: cp.Steps, remeshes: cp.Remeshes, da: cp.Da, daProj: cp.DaProj,
 		tips: cp.Tips, zone: cp.Zone, wall: cp.Wall}
-	for _, name := range sortedTipNames(cfg.Domain) {
-		pt := cfg.Domain.Points[name]
-		c.seeds = append(c.seeds, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
-	}
+	c.seeds = initialTips(cfg.Domain)
 	if err := c.setMesh(cp.Mesh); err != nil {
 		return nil, nil, err
 	}

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"sort"
 	"time"
 
 	"tearline/criteria"
@@ -194,12 +193,8 @@ func NewCycle(cfg CycleConfig) (*Cycle, error) {
 	}
 	c := &Cycle{stage: stage{cfg: &cfg}}
 	c.zone = size.InitialZone(sf, c.hWake())
-	for _, name := range sortedTipNames(cfg.Domain) {
-		pt := cfg.Domain.Points[name]
-		tip := criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir}
-		c.seeds = append(c.seeds, tip)
-		c.tips = append(c.tips, tip)
-	}
+	c.seeds = initialTips(cfg.Domain)
+	c.tips = append([]criteria.Tip(nil), c.seeds...)
 	if err := c.setMesh(m); err != nil {
 		return nil, err
 	}
@@ -245,17 +240,15 @@ func (c *Cycle) control(p *fem.Problem) (*solver.Control, error) {
 // the pseudo-time that drives the opening.
 func (c *Cycle) Tau() float64 { return c.solver.Time() }
 
-// sortedTipNames lists the domain's crack-tip points in name order, so that
-// every run (and every resume) sees them in the same order.
-func sortedTipNames(d *geom.Domain) []string {
-	var names []string
-	for name, p := range d.Points {
-		if p.Tip {
-			names = append(names, name)
-		}
+// initialTips are the domain's crack tips in name order, so that every run
+// (and every resume) sees them in the same order.
+func initialTips(d *geom.Domain) []criteria.Tip {
+	var tips []criteria.Tip
+	for _, name := range d.Tips() {
+		pt := d.Points[name]
+		tips = append(tips, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
 	}
-	sort.Strings(names)
-	return names
+	return tips
 }
 
 // hWake is the size damaged points outside the fine zone may have.

@@ -142,6 +142,9 @@ type observer struct {
 	cpEvery  time.Duration
 	stopping atomic.Bool
 	iters    []int
+	// unmeasured is the last step's list of measures that could not be
+	// evaluated, logged whenever it changes.
+	unmeasured string
 }
 
 // pvdEntry is one field file of the collection.
@@ -278,10 +281,30 @@ func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 		}
 	}
 	ob.progress(r)
+	ob.noteUnmeasured(r)
 	if ob.stopping.Load() {
 		return errInterrupted
 	}
 	return nil
+}
+
+// noteUnmeasured logs the measures the cycle could not evaluate at this
+// step (their history cells are empty) whenever that list changes.
+func (ob *observer) noteUnmeasured(r *remesh.StepRecord) {
+	var msgs []string
+	for _, err := range r.Unmeasured {
+		msgs = append(msgs, err.Error())
+	}
+	text := strings.Join(msgs, "; ")
+	if text == ob.unmeasured {
+		return
+	}
+	ob.unmeasured = text
+	if text == "" {
+		ob.logf("  step %d: all measures evaluated again", r.Step)
+		return
+	}
+	ob.logf("  step %d: not evaluated (left empty in history.csv): %s", r.Step, text)
 }
 
 // fracture fills the E1820 J and the tearing modulus of the last row.
