@@ -58,10 +58,15 @@ func (c *stage) fields() (*transfer.Fields, error) {
 		d.W, d.F, d.P = g.W, g.F, g.P
 		// The elastic strain the material saw (see reconcilePlasticStrain);
 		// zero where the element is inverted.
-		if E, err := c.prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement); err == nil {
-			for k := 0; k < 4; k++ {
-				d.Ee[k] = E[k] - g.State.Ep[k]
-			}
+		E, err := c.prob.MaterialStrain(i/gp.PerElement, i%gp.PerElement)
+		if inverted(err) {
+			continue
+		}
+		if err != nil {
+			return nil, err
+		}
+		for k := 0; k < 4; k++ {
+			d.Ee[k] = E[k] - g.State.Ep[k]
 		}
 	}
 	return f, nil
