@@ -61,10 +61,13 @@ func (m *mmReader) errf(format string, args ...any) error {
 }
 
 type mmHeader struct {
-	format, field, symmetry string
+	field, symmetry string
 }
 
-func (m *mmReader) header(object string) (mmHeader, error) {
+// header reads the header line of a matrix in the given format (what
+// names the content for the error).
+func (m *mmReader) header(format, what string) (mmHeader, error) {
+	const object = "matrix"
 	if !m.sc.Scan() {
 		if err := m.sc.Err(); err != nil {
 			return mmHeader{}, fmt.Errorf("matrix market: line 1: %w", err)
@@ -79,7 +82,10 @@ func (m *mmReader) header(object string) (mmHeader, error) {
 	if f[1] != object {
 		return mmHeader{}, m.errf("object %q not supported (allowed: %s)", f[1], object)
 	}
-	return mmHeader{format: f[2], field: f[3], symmetry: f[4]}, nil
+	if f[2] != format {
+		return mmHeader{}, m.errf("format %q not supported for %s (allowed: %s)", f[2], what, format)
+	}
+	return mmHeader{field: f[3], symmetry: f[4]}, nil
 }
 
 // sizeLine reads the size line, which must be want integers (form says
@@ -155,12 +161,9 @@ func parseValue(s string, line int, field string) (float64, error) {
 // filled in). Duplicate entries are summed. Errors name the line.
 func ReadMatrixMarket(r io.Reader) (*CSR, error) {
 	m := newMMReader(r)
-	h, err := m.header("matrix")
+	h, err := m.header("coordinate", "a sparse matrix")
 	if err != nil {
 		return nil, err
-	}
-	if h.format != "coordinate" {
-		return nil, m.errf("format %q not supported for a sparse matrix (allowed: coordinate)", h.format)
 	}
 	switch h.field {
 	case "real", "integer", "pattern":
@@ -278,12 +281,9 @@ func WriteMatrixMarket(w io.Writer, a *CSR) error {
 // values).
 func ReadVector(r io.Reader) ([]float64, error) {
 	m := newMMReader(r)
-	h, err := m.header("matrix")
+	h, err := m.header("array", "a vector")
 	if err != nil {
 		return nil, err
-	}
-	if h.format != "array" {
-		return nil, m.errf("format %q not supported for a vector (allowed: array)", h.format)
 	}
 	if h.field != "real" && h.field != "integer" {
 		return nil, m.errf("field %q not supported for a vector (allowed: real, integer)", h.field)
