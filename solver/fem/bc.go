@@ -203,28 +203,6 @@ type dirichlet struct {
 	byDof map[int]int
 }
 
-// add prescribes q. Two conditions on one unknown are allowed when they
-// agree (a corner shared by two labels with the same field, or a symmetry
-// line meeting a fixed edge), checked at t = 0.5 and t = 1; then the first
-// stays.
-func (d *dirichlet) add(what string, q prescribed) error {
-	p := d.p
-	if i, ok := d.byDof[q.dof]; ok {
-		o := p.presc[i]
-		agree := func(t float64) bool {
-			x, y := o.at(t), q.at(t)
-			return math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))+1e-14*p.size
-		}
-		if agree(0.5) && agree(1) {
-			return nil
-		}
-		return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
-	}
-	d.byDof[q.dof] = len(p.presc)
-	p.presc = append(p.presc, q)
-	return nil
-}
-
 // displacements prescribes the fixed components of each displacement
 // condition on all its nodes.
 func (d *dirichlet) displacements(ds []Displacement) error {
@@ -371,6 +349,28 @@ func (p *Problem) pinArc(nodes []int, pn Pin) []int {
 		}
 	}
 	return arc
+}
+
+// add prescribes q. Two conditions on one unknown are allowed when they
+// agree (a corner shared by two labels with the same field, or a symmetry
+// line meeting a fixed edge), checked at t = 0.5 and t = 1; then the first
+// stays.
+func (d *dirichlet) add(what string, q prescribed) error {
+	p := d.p
+	if i, ok := d.byDof[q.dof]; ok {
+		o := p.presc[i]
+		agree := func(t float64) bool {
+			x, y := o.at(t), q.at(t)
+			return math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))+1e-14*p.size
+		}
+		if agree(0.5) && agree(1) {
+			return nil
+		}
+		return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
+	}
+	d.byDof[q.dof] = len(p.presc)
+	p.presc = append(p.presc, q)
+	return nil
 }
 
 // axis fixes u_r on the axis r = 0 unless a condition did: nodes there
