@@ -526,10 +526,8 @@ const stagnantAfter = 6
 // stagnantBelow is the scaled residual below which an attempt is never
 // stopped for stagnation: close to convergence, points that break or
 // unload during the iteration slow Newton to a linear rate for a few
-// iterations, and such attempts converged within the iteration limit when
-// let run (measured on the fixed-mesh boundary-layer case at Δa ≈ 5ℓ: an
-// attempt stopped at 9.4e-4 after 11 iterations, and every cut-back after it
-// failed, while the same increment converged in 13 iterations).
+// iterations, and such attempts converge within the iteration limit when
+// let run.
 const stagnantBelow = 1e-2
 
 // setScales freezes, for the attempt, the force scale of each field.

@@ -524,14 +524,11 @@ const (
 // below (C¹ at a₁ + d, never below a₁).
 //
 // The gradient term λ ≈ −cΔā is negative at the edges of a localisation
-// band and next to broken material it reaches −10σ₀. Bounded only by a
-// small absolute floor (0.01σ₀, the previous version), the material there
-// yielded at a few MPa: the wake of the crack behaved as a fluid, the
-// Newton corrections asked for relative displacements of order one in it,
-// the strain cap scaled every correction down, and the fixed-mesh
-// boundary-layer run stopped at Δa ≈ 5ℓ with residuals that no increment
-// size reduced. A bound proportional to R keeps the edge softening that
-// sets the band width while the wake keeps its strength.
+// band and next to broken material it reaches −10σ₀. Under a small
+// absolute floor the wake of the crack would yield at a few MPa and flow
+// like a fluid, and the Newton iteration would stall in it. A bound
+// proportional to R keeps the edge softening that sets the band width
+// while the wake keeps its strength.
 func (m *GTN) flowStress(p, abar, lamb float64) (a, dp, dAbar, dLambda float64) {
 	r, dr := m.par.Hardening.Flow(p)
 	if m.local {
