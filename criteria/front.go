@@ -314,43 +314,91 @@ func (p *pq) Pop() interface{} {
 
 // locateTips runs the multi-source shortest-path search and picks the tips.
 func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Growth {
+	g := newSubEdgeGraph(m)
+	used := usedNodes(m)
+	// Lengths below tol (relative to the mesh size) are round-off: a node of
+	// a blunt tip's surface a hair ahead of the apex is not growth.
+	tol := 1e-9 * boundingDiagonal(m, used)
+	cracked := crackedNodes(m, f, ftip, used, tol, opt)
+	paths := searchCrackPaths(m, g, used, cracked, opt)
+	tips := make([]Growth, len(opt.Tips))
+	for s, sd := range opt.Tips {
+		tips[s] = Growth{Tip: sd, Seed: s, Path: [][2]float64{sd.X}}
+	}
+	cands := tipCandidates(m, g, f, ftip, cracked, paths.owner, paths.glen, opt.Tips)
+	vis := visibility(m, f, ftip, cracked)
+	for s, cs := range cands {
+		if len(cs) == 0 {
+			continue
+		}
+		best := longestTautPath(m, paths.parent, cs, s, opt.Tips[s], vis)
+		best.DAProj = along(opt.Tips[s], best.X)
+		if best.DA > tol {
+			best.Dir = pathDirection(best.Path, best.DA, opt.Tips[s].Dir)
+			tips[s] = best
+		}
+	}
+	return tips
+}
+
+// forEachSubEdge calls fn(a, b) for every edge a→b of the sub-triangles of
+// every element of m, element by element (an edge shared by two
+// sub-triangles comes once from each).
+func forEachSubEdge(m *fem.Mesh, fn func(a, b int)) {
+	for _, t := range m.Tri {
+		for _, st := range subTri {
+			for j := 0; j < 3; j++ {
+				fn(t[st[j]], t[st[(j+1)%3]])
+			}
+		}
+	}
+}
+
+// subEdgeGraph is the node adjacency along the sub-triangle edges of a
+// mesh in compressed rows: the neighbours of node n are
+// list[start[n]:start[n+1]]. An edge shared by two elements appears twice,
+// which is harmless to a shortest-path search.
+type subEdgeGraph struct{ start, list []int }
+
+// newSubEdgeGraph returns the sub-triangle edge adjacency of m.
+func newSubEdgeGraph(m *fem.Mesh) subEdgeGraph {
 	nn := len(m.X)
-	// Sub-triangle edge adjacency in compressed rows (an edge shared by two
-	// elements appears twice, which is harmless).
-	adjStart := make([]int, nn+1)
-	for _, t := range m.Tri {
-		for _, st := range subTri {
-			for j := 0; j < 3; j++ {
-				adjStart[t[st[j]]+1]++
-				adjStart[t[st[(j+1)%3]]+1]++
-			}
-		}
-	}
+	start := make([]int, nn+1)
+	forEachSubEdge(m, func(a, b int) {
+		start[a+1]++
+		start[b+1]++
+	})
 	for i := 0; i < nn; i++ {
-		adjStart[i+1] += adjStart[i]
+		start[i+1] += start[i]
 	}
-	adjList := make([]int, adjStart[nn])
-	fill := append([]int(nil), adjStart[:nn]...)
-	for _, t := range m.Tri {
-		for _, st := range subTri {
-			for j := 0; j < 3; j++ {
-				a, b := t[st[j]], t[st[(j+1)%3]]
-				adjList[fill[a]] = b
-				fill[a]++
-				adjList[fill[b]] = a
-				fill[b]++
-			}
-		}
-	}
-	adj := func(n int) []int { return adjList[adjStart[n]:adjStart[n+1]] }
-	used := make([]bool, nn)
+	list := make([]int, start[nn])
+	fill := append([]int(nil), start[:nn]...)
+	forEachSubEdge(m, func(a, b int) {
+		list[fill[a]] = b
+		fill[a]++
+		list[fill[b]] = a
+		fill[b]++
+	})
+	return subEdgeGraph{start, list}
+}
+
+// adj returns the neighbours of node n.
+func (g subEdgeGraph) adj(n int) []int { return g.list[g.start[n]:g.start[n+1]] }
+
+// usedNodes marks the nodes of m that belong to some element.
+func usedNodes(m *fem.Mesh) []bool {
+	used := make([]bool, len(m.X))
 	for _, t := range m.Tri {
 		for _, n := range t {
 			used[n] = true
 		}
 	}
-	// Lengths below tol (relative to the mesh size) are round-off: a node of
-	// a blunt tip's surface a hair ahead of the apex is not growth.
+	return used
+}
+
+// boundingDiagonal returns the diagonal of the bounding box of the used
+// nodes of m: the mesh size that round-off is measured against.
+func boundingDiagonal(m *fem.Mesh, used []bool) float64 {
 	lo := [2]float64{math.Inf(1), math.Inf(1)}
 	hi := [2]float64{math.Inf(-1), math.Inf(-1)}
 	for n, x := range m.X {
@@ -359,8 +407,21 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 			hi = [2]float64{math.Max(hi[0], x[0]), math.Max(hi[1], x[1])}
 		}
 	}
-	tol := 1e-9 * plane.Dist(lo, hi)
-	// Cracked nodes: f ≥ f_tip, or on a crack face ahead of some initial tip.
+	return plane.Dist(lo, hi)
+}
+
+// along returns how far x lies ahead of the initial tip s along its crack
+// direction: (x − X₀)·d₀.
+func along(s Tip, x [2]float64) float64 {
+	d, _ := frame(s.Dir)
+	return (x[0]-s.X[0])*d[0] + (x[1]-s.X[1])*d[1]
+}
+
+// crackedNodes marks the cracked nodes: used nodes with f ≥ f_tip, and the
+// nodes of crack faces (opt.CrackLabel) more than tol ahead of some
+// initial tip.
+func crackedNodes(m *fem.Mesh, f []float64, ftip float64, used []bool, tol float64, opt FrontOptions) []bool {
+	nn := len(m.X)
 	cracked := make([]bool, nn)
 	for n := range f {
 		cracked[n] = used[n] && f[n] >= ftip
@@ -369,169 +430,197 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 	if label == "" {
 		label = "crack"
 	}
-	if li := m.Label(label); li >= 0 {
-		for _, ed := range m.Boundary {
-			if ed.Label != li {
+	li := m.Label(label)
+	if li < 0 {
+		return cracked
+	}
+	for _, ed := range m.Boundary {
+		if ed.Label != li {
+			continue
+		}
+		for _, n := range [3]int{ed.A, ed.Mid, ed.B} {
+			if n < 0 || n >= nn {
 				continue
 			}
-			for _, n := range [3]int{ed.A, ed.Mid, ed.B} {
-				if n < 0 || n >= nn {
-					continue
-				}
-				for _, s := range opt.Tips {
-					d, _ := frame(s.Dir)
-					if (m.X[n][0]-s.X[0])*d[0]+(m.X[n][1]-s.X[1])*d[1] > tol {
-						cracked[n] = true
-					}
+			for _, s := range opt.Tips {
+				if along(s, m.X[n]) > tol {
+					cracked[n] = true
 				}
 			}
 		}
 	}
-	cost := make([]float64, nn)
-	glen := make([]float64, nn)
-	gap := make([]float64, nn)
-	owner := make([]int, nn)
-	parent := make([]int, nn)
-	for i := range cost {
-		cost[i] = math.Inf(1)
-		owner[i] = -1
-		parent[i] = -1
+	return cracked
+}
+
+// crackPaths is the outcome of the shortest-path search from all initial
+// tips at once, node by node.
+type crackPaths struct {
+	cost   []float64 // path cost: length, times bridgeCost through uncracked material
+	glen   []float64 // path length
+	gap    []float64 // path length through uncracked material
+	owner  []int     // the initial tip whose search reached the node first; -1 for none
+	parent []int     // the previous node on the path; -1 at a seed and for none
+	seed   []int     // the node nearest each initial tip
+	maxGap []float64 // the longest gap each initial tip's paths may bridge
+}
+
+// searchCrackPaths runs the shortest-path search (Dijkstra 1959, Numer.
+// Math. 1) over the sub-triangle edges from the nodes nearest the initial
+// tips; see LocateFront for the costs.
+func searchCrackPaths(m *fem.Mesh, g subEdgeGraph, used, cracked []bool, opt FrontOptions) *crackPaths {
+	nn := len(m.X)
+	p := &crackPaths{
+		cost:   make([]float64, nn),
+		glen:   make([]float64, nn),
+		gap:    make([]float64, nn),
+		owner:  make([]int, nn),
+		parent: make([]int, nn),
+		seed:   make([]int, len(opt.Tips)),
+		maxGap: make([]float64, len(opt.Tips)),
 	}
-	seedNode := make([]int, len(opt.Tips))
-	maxGap := make([]float64, len(opt.Tips))
+	for i := range p.cost {
+		p.cost[i] = math.Inf(1)
+		p.owner[i] = -1
+		p.parent[i] = -1
+	}
 	h := &pq{}
 	for s, sd := range opt.Tips {
-		best, bd := -1, math.Inf(1)
-		for n := 0; n < nn; n++ {
-			if used[n] {
-				if d := plane.Dist(m.X[n], sd.X); d < bd {
-					best, bd = n, d
-				}
-			}
-		}
-		seedNode[s] = best
-		maxGap[s] = opt.MaxGap
-		if maxGap[s] == 0 {
-			for _, b := range adj(best) {
+		best, bd := nearestNode(m, used, sd.X)
+		p.seed[s] = best
+		p.maxGap[s] = opt.MaxGap
+		if p.maxGap[s] == 0 {
+			for _, b := range g.adj(best) {
 				// a sub-edge is half an element edge: 2 element edges = 4 sub-edges.
-				maxGap[s] = math.Max(maxGap[s], 4*plane.Dist(m.X[best], m.X[b]))
+				p.maxGap[s] = math.Max(p.maxGap[s], 4*plane.Dist(m.X[best], m.X[b]))
 			}
 		}
-		if bd < cost[best] {
-			cost[best] = bd
-			glen[best] = 0
-			owner[best] = s
+		if bd < p.cost[best] {
+			p.cost[best] = bd
+			p.glen[best] = 0
+			p.owner[best] = s
 			heap.Push(h, pqItem{best, bd})
 		}
 	}
+	p.relax(m, g, cracked, h)
+	return p
+}
+
+// nearestNode returns the used node of m nearest x and its distance.
+func nearestNode(m *fem.Mesh, used []bool, x [2]float64) (int, float64) {
+	best, bd := -1, math.Inf(1)
+	for n := 0; n < len(m.X); n++ {
+		if used[n] {
+			if d := plane.Dist(m.X[n], x); d < bd {
+				best, bd = n, d
+			}
+		}
+	}
+	return best, bd
+}
+
+// relax runs the search from the seeds in h until h is empty. A seed node
+// counts as cracked for the edges that leave it.
+func (p *crackPaths) relax(m *fem.Mesh, g subEdgeGraph, cracked []bool, h *pq) {
 	isCracked := func(n int) bool {
-		return cracked[n] || (owner[n] >= 0 && n == seedNode[owner[n]])
+		return cracked[n] || (p.owner[n] >= 0 && n == p.seed[p.owner[n]])
 	}
 	for h.Len() > 0 {
 		it := heap.Pop(h).(pqItem)
 		a := it.n
-		if it.cost > cost[a] {
+		if it.cost > p.cost[a] {
 			continue
 		}
-		for _, b := range adj(a) {
+		for _, b := range g.adj(a) {
 			l := plane.Dist(m.X[a], m.X[b])
-			c, g := l, gap[a]
+			c, gp := l, p.gap[a]
 			if !(isCracked(a) && cracked[b]) {
 				c *= bridgeCost
-				g += l
+				gp += l
 			}
-			if g > maxGap[owner[a]] {
+			if gp > p.maxGap[p.owner[a]] {
 				continue
 			}
-			if cost[a]+c < cost[b] {
-				cost[b] = cost[a] + c
-				glen[b] = glen[a] + l
-				gap[b] = g
-				owner[b] = owner[a]
-				parent[b] = a
-				heap.Push(h, pqItem{b, cost[b]})
+			if p.cost[a]+c < p.cost[b] {
+				p.cost[b] = p.cost[a] + c
+				p.glen[b] = p.glen[a] + l
+				p.gap[b] = gp
+				p.owner[b] = p.owner[a]
+				p.parent[b] = a
+				heap.Push(h, pqItem{b, p.cost[b]})
 			}
 		}
 	}
-	tips := make([]Growth, len(opt.Tips))
-	for s, sd := range opt.Tips {
-		tips[s] = Growth{Tip: sd, Seed: s, Path: [][2]float64{sd.X}}
-	}
-	// Candidates: cracked nodes, and the points beyond them where f falls
-	// through f_tip along an edge. The graph length glen over-estimates the
-	// path by the mesh zigzag, so it only pre-selects: the candidates within
-	// 15% of the longest are ranked by the length of their simplified path,
-	// and the 48 longest of those by the length of their taut path.
-	type cand struct {
-		node int
-		x    [2]float64
-		len  float64
-	}
-	cands := make([][]cand, len(opt.Tips))
-	ahead := func(s int, x [2]float64) bool {
-		d, _ := frame(opt.Tips[s].Dir)
-		return (x[0]-opt.Tips[s].X[0])*d[0]+(x[1]-opt.Tips[s].X[1])*d[1] >= 0
-	}
-	for a := 0; a < nn; a++ {
+}
+
+// tipCandidate is a candidate crack tip: the point x reached through node
+// with a graph path of length len.
+type tipCandidate struct {
+	node int
+	x    [2]float64
+	len  float64
+}
+
+// tipCandidates returns the candidate tips of each initial tip: its cracked
+// nodes ahead of it, and the points beyond them where f falls through f_tip
+// along an edge (linear on the sub-triangles). glen is the graph path
+// length of each node and owner its initial tip.
+func tipCandidates(m *fem.Mesh, g subEdgeGraph, f []float64, ftip float64, cracked []bool, owner []int, glen []float64, tips []Tip) [][]tipCandidate {
+	cands := make([][]tipCandidate, len(tips))
+	for a := 0; a < len(m.X); a++ {
 		s := owner[a]
-		if s < 0 || !cracked[a] || !ahead(s, m.X[a]) {
+		if s < 0 || !cracked[a] || !(along(tips[s], m.X[a]) >= 0) {
 			continue
 		}
-		cands[s] = append(cands[s], cand{a, m.X[a], glen[a]})
+		cands[s] = append(cands[s], tipCandidate{a, m.X[a], glen[a]})
 		if f[a] < ftip {
 			continue // cracked by the crack-face label only
 		}
-		for _, b := range adj(a) {
+		for _, b := range g.adj(a) {
 			if f[b] >= ftip || cracked[b] {
 				continue
 			}
 			sf := (f[a] - ftip) / (f[a] - f[b])
 			xa, xb := m.X[a], m.X[b]
 			x := [2]float64{xa[0] + sf*(xb[0]-xa[0]), xa[1] + sf*(xb[1]-xa[1])}
-			cands[s] = append(cands[s], cand{a, x, glen[a] + plane.Dist(x, xa)})
+			cands[s] = append(cands[s], tipCandidate{a, x, glen[a] + plane.Dist(x, xa)})
 		}
 	}
-	vis := visibility(m, f, ftip, cracked)
-	for s, cs := range cands {
-		if len(cs) == 0 {
-			continue
+	return cands
+}
+
+// longestTautPath picks the crack tip of the initial tip sd (index s) among
+// its candidates cs, which it sorts. The graph length over-estimates the
+// path by the mesh zigzag, so it only pre-selects: the candidates within
+// 15% of the longest are ranked by the length of their simplified path,
+// and the 48 longest of those are pulled taut inside the cracked material
+// (vis); the longest taut path wins. DAProj and Dir are left to the caller.
+func longestTautPath(m *fem.Mesh, parent []int, cs []tipCandidate, s int, sd Tip, vis func(p, q [2]float64) bool) Growth {
+	sort.Slice(cs, func(i, j int) bool { return cs[i].len > cs[j].len })
+	type ranked struct {
+		c    tipCandidate
+		path [][2]float64
+		len  float64
+	}
+	var rs []ranked
+	for i, c := range cs {
+		if i >= 400 || c.len < 0.85*cs[0].len {
+			break
 		}
-		sort.Slice(cs, func(i, j int) bool { return cs[i].len > cs[j].len })
-		type ranked struct {
-			c    cand
-			path [][2]float64
-			len  float64
+		path := tipPath(m, parent, c.node, c.x, sd.X)
+		rs = append(rs, ranked{c, path, polyLength(path)})
+	}
+	sort.Slice(rs, func(i, j int) bool { return rs[i].len > rs[j].len })
+	var best Growth
+	for i, r := range rs {
+		if i >= 48 {
+			break
 		}
-		var rs []ranked
-		for i, c := range cs {
-			if i >= 400 || c.len < 0.85*cs[0].len {
-				break
-			}
-			path := tipPath(m, parent, c.node, c.x, opt.Tips[s].X)
-			rs = append(rs, ranked{c, path, polyLength(path)})
-		}
-		sort.Slice(rs, func(i, j int) bool { return rs[i].len > rs[j].len })
-		// The few longest are pulled taut inside the cracked material; the
-		// longest taut path wins.
-		var best Growth
-		for i, r := range rs {
-			if i >= 48 {
-				break
-			}
-			path := pullTaut(r.path, vis)
-			if l := polyLength(path); l > best.DA || i == 0 {
-				best = Growth{Tip: Tip{Name: opt.Tips[s].Name, X: r.c.x}, Seed: s, DA: l, Path: path, Grown: true}
-			}
-		}
-		d0, _ := frame(opt.Tips[s].Dir)
-		sx := opt.Tips[s].X
-		best.DAProj = (best.X[0]-sx[0])*d0[0] + (best.X[1]-sx[1])*d0[1]
-		if best.DA > tol {
-			best.Dir = pathDirection(best.Path, best.DA, opt.Tips[s].Dir)
-			tips[s] = best
+		path := pullTaut(r.path, vis)
+		if l := polyLength(path); l > best.DA || i == 0 {
+			best = Growth{Tip: Tip{Name: sd.Name, X: r.c.x}, Seed: s, DA: l, Path: path, Grown: true}
 		}
 	}
-	return tips
+	return best
 }
 
 // tipPath returns the simplified crack path from the initial tip sx through
@@ -577,15 +666,11 @@ func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, 
 		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
 	}, len(m.Tri))
 	hmin := math.Inf(1)
-	for _, t := range m.Tri {
-		for _, st := range subTri {
-			for j := 0; j < 3; j++ {
-				if d := plane.Dist(m.X[t[st[j]]], m.X[t[st[(j+1)%3]]]); d > 0 {
-					hmin = math.Min(hmin, d)
-				}
-			}
+	forEachSubEdge(m, func(a, b int) {
+		if d := plane.Dist(m.X[a], m.X[b]); d > 0 {
+			hmin = math.Min(hmin, d)
 		}
-	}
+	})
 	step := hmin / 4
 	return func(p, q [2]float64) bool {
 		n := int(math.Ceil(plane.Dist(p, q) / step))

@@ -120,14 +120,7 @@ func (d *Domain) checkFeatures(size func([2]float64) (float64, error), tol float
 			vs = append(vs, vtx{l[i].A, fmt.Sprintf("the vertex at the start of %s", pieceName(k, i, &l[i]))})
 		}
 	}
-	names := make([]string, 0, len(d.Points))
-	for n, p := range d.Points {
-		if !p.Ref {
-			names = append(names, n)
-		}
-	}
-	sort.Strings(names)
-	for _, n := range names {
+	for _, n := range d.freeNames() {
 		vs = append(vs, vtx{d.Points[n].X, fmt.Sprintf("point %q", n)})
 	}
 	tr, refs := d.pieceTree()
@@ -230,7 +223,35 @@ func divisions(p *Piece, size func([2]float64) (float64, error), n0 int, ta, tb 
 // returns the names of two pieces whose chords cross (after doubling minN
 // for the arcs among them) instead of a PSLG when that happens.
 func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64, minN []int, clearance bool) (*PSLG, []string, error) {
-	out := &PSLG{Named: map[string]int{}}
+	b := boundaryBuilder{d: d, size: size, tol: tol, out: &PSLG{Named: map[string]int{}}, names: d.freeNames(), placed: map[string]bool{}}
+	g := 0
+	loopStart := make([]int, 0, 1+len(d.Holes))
+	for _, l := range d.Loops() {
+		loopStart = append(loopStart, len(b.out.Points))
+		first := len(b.out.Points)
+		for i := range l {
+			if err := b.addPiece(&l[i], g, minN[g]); err != nil {
+				return nil, nil, err
+			}
+			g++
+		}
+		// close the loop
+		b.out.Segments[len(b.out.Segments)-1][1] = first
+	}
+	b.addFreePoints()
+	out := b.out
+	if nm, err := d.growArcs(out, b.owners, tol, minN, clearance); nm != nil || err != nil {
+		return nil, nm, err
+	}
+	if err := d.addHoles(out, loopStart); err != nil {
+		return nil, nil, err
+	}
+	return out, nil, nil
+}
+
+// freeNames returns the sorted names of the named points that are not
+// reference points: those that become vertices.
+func (d *Domain) freeNames() []string {
 	names := make([]string, 0, len(d.Points))
 	for n, p := range d.Points {
 		if !p.Ref {
@@ -238,103 +259,143 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 		}
 	}
 	sort.Strings(names)
-	placed := map[string]bool{}
-	var owners []int // global piece of each segment
-	g := 0
-	loopStart := make([]int, 0, 1+len(d.Holes))
-	for _, l := range d.Loops() {
-		loopStart = append(loopStart, len(out.Points))
-		first := len(out.Points)
-		for i := range l {
-			p := &l[i]
-			psize := size
-			if p.Kind == Arc {
-				// chords subtend at most MaxArcChordDeg
-				hmax := p.Radius * MaxArcChordDeg * math.Pi / 180
-				psize = func(x [2]float64) (float64, error) {
-					v, err := size(x)
-					return math.Min(v, hmax), err
-				}
-			}
-			// Named points on this piece.
-			start := len(out.Points)
-			out.Points = append(out.Points, p.A)
-			type tn struct {
-				t    float64
-				name string
-			}
-			var onp []tn
-			for _, n := range names {
-				x := d.Points[n].X
-				if placed[n] {
-					continue
-				}
-				if plane.Dist(x, p.A) <= tol {
-					out.Named[n] = start
-					placed[n] = true
-					continue
-				}
-				if plane.Dist(x, p.B) <= tol {
-					continue // placed as the next piece's start
-				}
-				if p.Distance(x) <= tol {
-					onp = append(onp, tn{p.param(x), n})
-				}
-			}
-			sort.Slice(onp, func(i, j int) bool { return onp[i].t < onp[j].t })
-			// Discretise the stretches between named points separately.
-			var ts []float64
-			ta := 0.0
-			for k := 0; k <= len(onp); k++ {
-				tb := 1.0
-				if k < len(onp) {
-					tb = onp[k].t
-				}
-				n0 := int(math.Ceil(float64(minN[g]) * (tb - ta)))
-				sub, err := divisions(p, psize, n0, ta, tb)
-				if err != nil {
-					return nil, nil, err
-				}
-				ts = append(ts, sub...)
-				if k < len(onp) {
-					ts = append(ts, tb)
-				}
-				ta = tb
-			}
-			for _, t := range ts {
-				x := p.At(t)
-				for _, q := range onp {
-					if q.t == t {
-						// Put the named point exactly where it was given.
-						x = d.Points[q.name].X
-						out.Named[q.name] = len(out.Points)
-						placed[q.name] = true
-					}
-				}
-				out.Points = append(out.Points, x)
-			}
-			for j := start; j < len(out.Points); j++ {
-				out.Segments = append(out.Segments, [2]int{j, j + 1})
-				out.SegmentMarks = append(out.SegmentMarks, g+1)
-				owners = append(owners, g)
-			}
-			if len(out.Points) > maxBoundaryPoints {
-				return nil, nil, fmt.Errorf("geometry: the boundary would need more than %d points; the mesh size is too small for the domain", maxBoundaryPoints)
-			}
-			g++
+	return names
+}
+
+// boundaryBuilder builds the boundary of a PSLG piece by piece.
+type boundaryBuilder struct {
+	d      *Domain
+	size   func([2]float64) (float64, error)
+	tol    float64
+	out    *PSLG
+	names  []string        // the named points that become vertices, sorted
+	placed map[string]bool // named points placed on the boundary
+	owners []int           // global piece of each segment
+}
+
+// namedParam is a named point on a piece at parameter t.
+type namedParam struct {
+	t    float64
+	name string
+}
+
+// addPiece appends piece p (global index g) from its start point on, as at
+// least minN segments, with its named points as vertices.
+func (b *boundaryBuilder) addPiece(p *Piece, g, minN int) error {
+	out := b.out
+	psize := b.size
+	if p.Kind == Arc {
+		// chords subtend at most MaxArcChordDeg
+		hmax := p.Radius * MaxArcChordDeg * math.Pi / 180
+		psize = func(x [2]float64) (float64, error) {
+			v, err := b.size(x)
+			return math.Min(v, hmax), err
 		}
-		// close the loop
-		out.Segments[len(out.Segments)-1][1] = first
 	}
-	// Named points not on the boundary: free vertices.
-	for _, n := range names {
-		if !placed[n] {
+	start := len(out.Points)
+	out.Points = append(out.Points, p.A)
+	onp := b.namedOn(p, start)
+	ts, err := stretchDivisions(p, psize, onp, minN)
+	if err != nil {
+		return err
+	}
+	for _, t := range ts {
+		x := p.At(t)
+		for _, q := range onp {
+			if q.t == t {
+				// Put the named point exactly where it was given.
+				x = b.d.Points[q.name].X
+				out.Named[q.name] = len(out.Points)
+				b.placed[q.name] = true
+			}
+		}
+		out.Points = append(out.Points, x)
+	}
+	for j := start; j < len(out.Points); j++ {
+		out.Segments = append(out.Segments, [2]int{j, j + 1})
+		out.SegmentMarks = append(out.SegmentMarks, g+1)
+		b.owners = append(b.owners, g)
+	}
+	if len(out.Points) > maxBoundaryPoints {
+		return fmt.Errorf("geometry: the boundary would need more than %d points; the mesh size is too small for the domain", maxBoundaryPoints)
+	}
+	return nil
+}
+
+// namedOn places the unplaced named points at the start of p on its start
+// vertex (index start) and returns those inside p, ordered along it. A
+// point at the end of p is left to the next piece's start.
+func (b *boundaryBuilder) namedOn(p *Piece, start int) []namedParam {
+	var onp []namedParam
+	for _, n := range b.names {
+		x := b.d.Points[n].X
+		if b.placed[n] {
+			continue
+		}
+		if plane.Dist(x, p.A) <= b.tol {
+			b.out.Named[n] = start
+			b.placed[n] = true
+			continue
+		}
+		if plane.Dist(x, p.B) <= b.tol {
+			continue // placed as the next piece's start
+		}
+		if p.Distance(x) <= b.tol {
+			onp = append(onp, namedParam{p.param(x), n})
+		}
+	}
+	sort.Slice(onp, func(i, j int) bool { return onp[i].t < onp[j].t })
+	return onp
+}
+
+// stretchDivisions returns the interior parameters of the vertices of
+// piece p: the stretches between its named points onp are divided
+// separately (each with its share of minN segments at least), and the
+// named points' own parameters are among the results.
+func stretchDivisions(p *Piece, psize func([2]float64) (float64, error), onp []namedParam, minN int) ([]float64, error) {
+	var ts []float64
+	ta := 0.0
+	for k := 0; k <= len(onp); k++ {
+		tb := 1.0
+		if k < len(onp) {
+			tb = onp[k].t
+		}
+		n0 := int(math.Ceil(float64(minN) * (tb - ta)))
+		sub, err := divisions(p, psize, n0, ta, tb)
+		if err != nil {
+			return nil, err
+		}
+		ts = append(ts, sub...)
+		if k < len(onp) {
+			ts = append(ts, tb)
+		}
+		ta = tb
+	}
+	return ts, nil
+}
+
+// addFreePoints adds the named points not on the boundary as free
+// vertices.
+func (b *boundaryBuilder) addFreePoints() {
+	out := b.out
+	for _, n := range b.names {
+		if !b.placed[n] {
 			if _, ok := out.Named[n]; !ok {
 				out.Named[n] = len(out.Points)
-				out.Points = append(out.Points, d.Points[n].X)
+				out.Points = append(out.Points, b.d.Points[n].X)
 			}
 		}
 	}
+}
+
+// growArcs checks the chords of out (owners: the global piece of each
+// segment). Chords must not cross (an arc's chord may cut a piece near the
+// arc), and, if clearance, an arc's chords must be much closer to the arc
+// than any other piece is, so that the triangulator can put every split
+// point on the arc. Where they fail, it doubles minN of the arcs involved
+// and returns the names of the two crossing pieces (two empty names for a
+// crowded arc); nil when the chords pass.
+func (d *Domain) growArcs(out *PSLG, owners []int, tol float64, minN []int, clearance bool) ([]string, error) {
 	segCount := make([]int, len(minN))
 	for _, g := range owners {
 		segCount[g]++
@@ -346,7 +407,6 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 		}
 		return false
 	}
-	// Chords must not cross (an arc's chord may cut a piece near the arc).
 	if a, b, found := crossingSegments(out, tol); found {
 		ga, gb := owners[a], owners[b]
 		pa, la, ia := d.Piece(ga)
@@ -354,21 +414,24 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 		nm := []string{pieceName(la, ia, pa), pieceName(lb, ib, pb)}
 		ok1, ok2 := grow(ga), grow(gb)
 		if !ok1 && !ok2 {
-			return nil, nil, fmt.Errorf("geometry: boundary segments of %s and %s cross", nm[0], nm[1])
+			return nil, fmt.Errorf("geometry: boundary segments of %s and %s cross", nm[0], nm[1])
 		}
-		return nil, nm, nil
+		return nm, nil
 	}
-	// An arc's chords must be much closer to the arc than any other piece
-	// is, so that the triangulator can put every split point on the arc.
 	if clearance {
 		if gs := d.crowdedArcs(out, owners); len(gs) > 0 {
 			for _, g := range gs {
 				grow(g)
 			}
-			return nil, []string{"", ""}, nil
+			return []string{"", ""}, nil
 		}
 	}
-	// One point inside each hole's chord polygon.
+	return nil, nil
+}
+
+// addHoles adds one point inside each hole's chord polygon; loopStart
+// holds the index of the first point of each loop.
+func (d *Domain) addHoles(out *PSLG, loopStart []int) error {
 	for k := range d.Holes {
 		s0 := loopStart[k+1]
 		s1 := len(out.Points)
@@ -378,11 +441,11 @@ func (d *Domain) discretise(size func([2]float64) (float64, error), tol float64,
 		poly := out.Points[s0:s1]
 		x, ok := insidePoint(poly)
 		if !ok {
-			return nil, nil, fmt.Errorf("geometry: found no point inside %s", loopName(k+1))
+			return fmt.Errorf("geometry: found no point inside %s", loopName(k+1))
 		}
 		out.Holes = append(out.Holes, x)
 	}
-	return out, nil, nil
+	return nil
 }
 
 // crowdedArcs returns the arc pieces that have a chord whose sagitta

@@ -54,6 +54,23 @@ func positive(name string, v float64) error {
 	return nil
 }
 
+// length is a named length of a specimen.
+type length struct {
+	name string
+	v    float64
+}
+
+// positives returns the error of positive for the first of ls that is not
+// a positive finite length.
+func positives(ls ...length) error {
+	for _, l := range ls {
+		if err := positive(l.name, l.v); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 // SSY is the small-scale-yielding boundary-layer disk: a disk of radius R
 // about the crack tip with the crack along the negative x axis, its faces
 // y = ±ρ₀ joined by a semicircular blunt tip of radius ρ₀ whose apex (the
@@ -283,13 +300,9 @@ func (p NotchedBar) notchHeight() float64 {
 
 // Validate checks the parameters.
 func (p NotchedBar) Validate() error {
-	for _, c := range []struct {
-		n string
-		v float64
-	}{{"notched bar minimum radius", p.MinRadius}, {"notched bar outer radius", p.OuterRadius}, {"notched bar notch radius", p.NotchRadius}, {"notched bar length", p.Length}} {
-		if err := positive(c.n, c.v); err != nil {
-			return err
-		}
+	if err := positives(length{"notched bar minimum radius", p.MinRadius}, length{"notched bar outer radius", p.OuterRadius},
+		length{"notched bar notch radius", p.NotchRadius}, length{"notched bar length", p.Length}); err != nil {
+		return err
 	}
 	if p.MinRadius >= p.OuterRadius {
 		return fmt.Errorf("notched bar minimum radius %g must be below the outer radius %g", p.MinRadius, p.OuterRadius)
@@ -357,13 +370,9 @@ func DefaultDENT() DENT { return DENT{Width: 40, Height: 80, NotchDepth: 8, TipR
 
 // Validate checks the parameters.
 func (p DENT) Validate() error {
-	for _, c := range []struct {
-		n string
-		v float64
-	}{{"dent width", p.Width}, {"dent height", p.Height}, {"dent notch depth", p.NotchDepth}, {"dent tip radius", p.TipRadius}} {
-		if err := positive(c.n, c.v); err != nil {
-			return err
-		}
+	if err := positives(length{"dent width", p.Width}, length{"dent height", p.Height},
+		length{"dent notch depth", p.NotchDepth}, length{"dent tip radius", p.TipRadius}); err != nil {
+		return err
 	}
 	if p.NotchDepth <= p.TipRadius {
 		return fmt.Errorf("dent notch depth %g must exceed the tip radius %g", p.NotchDepth, p.TipRadius)

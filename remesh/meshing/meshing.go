@@ -68,33 +68,11 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 	if len(tm.Triangles) == 0 {
 		return nil, fmt.Errorf("mesh: the triangulation has no triangles")
 	}
-	// Corner nodes: the vertices used by triangles, in the triangulator's order.
-	renum := make([]int, len(tm.Points))
-	for i := range renum {
-		renum[i] = -1
-	}
-	for _, t := range tm.Triangles {
-		for _, v := range t {
-			renum[v] = 0
-		}
-	}
-	nc := 0
-	for i := range renum {
-		if renum[i] == 0 {
-			renum[i] = nc
-			nc++
-		}
-	}
+	renum, nc := cornerNumbers(tm)
 	// Guard against degenerate output: no edge may be shorter than the
 	// geometric tolerance (the input has no feature that small).
-	tiny := geom.RelTol * d.Scale()
-	for e, t := range tm.Triangles {
-		for k := 0; k < 3; k++ {
-			a, b := tm.Points[t[k]], tm.Points[t[(k+1)%3]]
-			if l := math.Hypot(a[0]-b[0], a[1]-b[1]); l <= tiny {
-				return nil, fmt.Errorf("mesh: the triangulation has a degenerate triangle %d with an edge of length %g at (%g, %g), below the geometric tolerance %g; a small input angle near there may be the cause", e, l, a[0], a[1], tiny)
-			}
-		}
+	if err := checkEdgeLengths(tm, geom.RelTol*d.Scale()); err != nil {
+		return nil, err
 	}
 	ne := 3*len(tm.Triangles)/2 + len(tm.Segments)
 	m := &fem.Mesh{
@@ -109,103 +87,17 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 			m.X[renum[i]] = p
 		}
 	}
-	labelOf := map[string]int{}
-	for i, l := range m.Labels {
-		labelOf[l] = i
-	}
-	// Edges: bucket every triangle edge under its lower vertex (CSR by
-	// vertex), so that each is found by a short scan; ids in first-seen order.
-	nv := len(tm.Points)
-	start := make([]int32, nv+1)
-	for _, t := range tm.Triangles {
-		for k := 0; k < 3; k++ {
-			a, b := t[k], t[(k+1)%3]
-			start[min(a, b)+1]++
-		}
-	}
-	for i := 0; i < nv; i++ {
-		start[i+1] += start[i]
-	}
-	fill := make([]int32, nv)
-	copy(fill, start[:nv])
-	hiOf := make([]int32, 3*len(tm.Triangles))
-	idOf := make([]int32, 3*len(tm.Triangles))
-	find := func(a, b int) int32 {
-		lo, hi := min(a, b), int32(max(a, b))
-		for j := start[lo]; j < fill[lo]; j++ {
-			if hiOf[j] == hi {
-				return idOf[j]
-			}
-		}
-		return -1
-	}
-	triEdge := make([][3]int32, len(tm.Triangles))
-	var ea, eb, etri []int32
-	var ecount []uint8
-	for e, t := range tm.Triangles {
-		for k := 0; k < 3; k++ {
-			a, b := t[k], t[(k+1)%3]
-			id := find(a, b)
-			if id < 0 {
-				id = int32(len(ea))
-				lo := min(a, b)
-				hiOf[fill[lo]] = int32(max(a, b))
-				idOf[fill[lo]] = id
-				fill[lo]++
-				ea = append(ea, int32(a))
-				eb = append(eb, int32(b))
-				etri = append(etri, int32(e))
-				ecount = append(ecount, 0)
-			}
-			if ecount[id] < 255 {
-				ecount[id]++
-			}
-			triEdge[e][k] = id
-		}
-	}
-	emark := make([]int32, len(ea)) // 0: not on a segment
-	for i, sg := range tm.Segments {
-		if id := find(sg[0], sg[1]); id >= 0 {
-			emark[id] = int32(tm.SegmentMarks[i])
-			if emark[id] == 0 {
-				emark[id] = -1 // a segment with mark 0
-			}
-		}
-	}
+	ed := newEdgeTable(tm)
+	emark := ed.marks(tm)
 	// Midside nodes, in edge order; on the arc for edges on arc pieces.
-	for id := range ea {
-		pa, pb := tm.Points[ea[id]], tm.Points[eb[id]]
-		x := [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
-		if mk := emark[id]; mk > 0 {
-			if p := d.PieceOfMark(int(mk)); p != nil && p.Kind == geom.Arc && onCircle(p, pa) && onCircle(p, pb) {
-				// On the arc; an edge whose ends the triangulator left
-				// off the arc keeps its straight midpoint (a valid element).
-				x = p.Split(pa, pb)
-			}
-		}
-		m.X = append(m.X, x)
+	for id := range ed.a {
+		m.X = append(m.X, midside(d, tm.Points[ed.a[id]], tm.Points[ed.b[id]], emark[id]))
 	}
 	for e, t := range tm.Triangles {
-		m.Tri[e] = [6]int{renum[t[0]], renum[t[1]], renum[t[2]], nc + int(triEdge[e][0]), nc + int(triEdge[e][1]), nc + int(triEdge[e][2])}
+		m.Tri[e] = [6]int{renum[t[0]], renum[t[1]], renum[t[2]], nc + int(ed.triEdge[e][0]), nc + int(ed.triEdge[e][1]), nc + int(ed.triEdge[e][2])}
 	}
-	for id := range ea {
-		pa, pb := tm.Points[ea[id]], tm.Points[eb[id]]
-		if ecount[id] > 2 {
-			return nil, fmt.Errorf("mesh: edge (%g, %g)–(%g, %g) belongs to %d triangles", pa[0], pa[1], pb[0], pb[1], ecount[id])
-		}
-		if ecount[id] != 1 {
-			continue
-		}
-		mk := int(emark[id])
-		if mk == 0 {
-			return nil, fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) lies on no boundary piece", pa[0], pa[1], pb[0], pb[1])
-		}
-		p := d.PieceOfMark(mk)
-		if p == nil {
-			return nil, fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) has mark %d of no piece", pa[0], pa[1], pb[0], pb[1], mk)
-		}
-		// a→b is the triangle's own counter-clockwise edge: domain on its left.
-		m.Boundary = append(m.Boundary, fem.Edge{A: renum[ea[id]], B: renum[eb[id]], Mid: nc + id, Label: labelOf[p.Label], Tri: int(etri[id])})
+	if err := addBoundary(m, d, tm, ed, emark, renum); err != nil {
+		return nil, err
 	}
 	for name, i := range g.Named {
 		if i >= len(renum) || renum[i] < 0 {
@@ -217,6 +109,172 @@ func quadratic(d *geom.Domain, g *geom.PSLG, tm *tri.Mesh) (*fem.Mesh, error) {
 		return nil, err
 	}
 	return m, nil
+}
+
+// cornerNumbers numbers the vertices used by triangles in the
+// triangulator's order: renum[v] is the corner node of vertex v, −1 for an
+// unused one; nc is the number of corner nodes.
+func cornerNumbers(tm *tri.Mesh) (renum []int, nc int) {
+	renum = make([]int, len(tm.Points))
+	for i := range renum {
+		renum[i] = -1
+	}
+	for _, t := range tm.Triangles {
+		for _, v := range t {
+			renum[v] = 0
+		}
+	}
+	for i := range renum {
+		if renum[i] == 0 {
+			renum[i] = nc
+			nc++
+		}
+	}
+	return renum, nc
+}
+
+// checkEdgeLengths rejects a triangulation with an edge of length tiny or
+// less.
+func checkEdgeLengths(tm *tri.Mesh, tiny float64) error {
+	for e, t := range tm.Triangles {
+		for k := 0; k < 3; k++ {
+			a, b := tm.Points[t[k]], tm.Points[t[(k+1)%3]]
+			if l := math.Hypot(a[0]-b[0], a[1]-b[1]); l <= tiny {
+				return fmt.Errorf("mesh: the triangulation has a degenerate triangle %d with an edge of length %g at (%g, %g), below the geometric tolerance %g; a small input angle near there may be the cause", e, l, a[0], a[1], tiny)
+			}
+		}
+	}
+	return nil
+}
+
+// edgeTable holds the edges of a triangulation, numbered in first-seen
+// order: edge id runs from vertex a[id] to b[id] as in its first triangle
+// tri[id], and belongs to count[id] triangles (at most 255 counted).
+// triEdge[e][k] is the id of edge k (vertices k, k+1) of triangle e.
+type edgeTable struct {
+	a, b, tri []int32
+	count     []uint8
+	triEdge   [][3]int32
+	// Each edge is bucketed under its lower vertex v (CSR by vertex, with
+	// entries start[v] to fill[v]): hiOf is its other vertex, idOf its id;
+	// so each edge is found by a short scan.
+	start, fill, hiOf, idOf []int32
+}
+
+// newEdgeTable returns the edges of tm.
+func newEdgeTable(tm *tri.Mesh) *edgeTable {
+	nv := len(tm.Points)
+	ed := &edgeTable{
+		start:   make([]int32, nv+1),
+		fill:    make([]int32, nv),
+		hiOf:    make([]int32, 3*len(tm.Triangles)),
+		idOf:    make([]int32, 3*len(tm.Triangles)),
+		triEdge: make([][3]int32, len(tm.Triangles)),
+	}
+	for _, t := range tm.Triangles {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			ed.start[min(a, b)+1]++
+		}
+	}
+	for i := 0; i < nv; i++ {
+		ed.start[i+1] += ed.start[i]
+	}
+	copy(ed.fill, ed.start[:nv])
+	for e, t := range tm.Triangles {
+		for k := 0; k < 3; k++ {
+			a, b := t[k], t[(k+1)%3]
+			id := ed.find(a, b)
+			if id < 0 {
+				id = int32(len(ed.a))
+				lo := min(a, b)
+				ed.hiOf[ed.fill[lo]] = int32(max(a, b))
+				ed.idOf[ed.fill[lo]] = id
+				ed.fill[lo]++
+				ed.a = append(ed.a, int32(a))
+				ed.b = append(ed.b, int32(b))
+				ed.tri = append(ed.tri, int32(e))
+				ed.count = append(ed.count, 0)
+			}
+			if ed.count[id] < 255 {
+				ed.count[id]++
+			}
+			ed.triEdge[e][k] = id
+		}
+	}
+	return ed
+}
+
+// find returns the id of edge a–b, or −1.
+func (ed *edgeTable) find(a, b int) int32 {
+	lo, hi := min(a, b), int32(max(a, b))
+	for j := ed.start[lo]; j < ed.fill[lo]; j++ {
+		if ed.hiOf[j] == hi {
+			return ed.idOf[j]
+		}
+	}
+	return -1
+}
+
+// marks returns the segment mark of every edge: 0 for an edge on no
+// segment, −1 for one on a segment with mark 0.
+func (ed *edgeTable) marks(tm *tri.Mesh) []int32 {
+	emark := make([]int32, len(ed.a))
+	for i, sg := range tm.Segments {
+		if id := ed.find(sg[0], sg[1]); id >= 0 {
+			emark[id] = int32(tm.SegmentMarks[i])
+			if emark[id] == 0 {
+				emark[id] = -1 // a segment with mark 0
+			}
+		}
+	}
+	return emark
+}
+
+// midside returns the midside node of edge pa–pb with segment mark mk: on
+// the arc for an edge on an arc piece with both ends on the arc, else the
+// straight midpoint.
+func midside(d *geom.Domain, pa, pb [2]float64, mk int32) [2]float64 {
+	x := [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
+	if mk > 0 {
+		if p := d.PieceOfMark(int(mk)); p != nil && p.Kind == geom.Arc && onCircle(p, pa) && onCircle(p, pb) {
+			// On the arc; an edge whose ends the triangulator left
+			// off the arc keeps its straight midpoint (a valid element).
+			x = p.Split(pa, pb)
+		}
+	}
+	return x
+}
+
+// addBoundary adds the boundary edges (those of one triangle) to m with
+// the label of their piece; an edge of more than two triangles, or a
+// boundary edge on no piece, is an error.
+func addBoundary(m *fem.Mesh, d *geom.Domain, tm *tri.Mesh, ed *edgeTable, emark []int32, renum []int) error {
+	labelOf := map[string]int{}
+	for i, l := range m.Labels {
+		labelOf[l] = i
+	}
+	nc := m.NumCorners
+	for id := range ed.a {
+		pa, pb := tm.Points[ed.a[id]], tm.Points[ed.b[id]]
+		if ed.count[id] > 2 {
+			return fmt.Errorf("mesh: edge (%g, %g)–(%g, %g) belongs to %d triangles", pa[0], pa[1], pb[0], pb[1], ed.count[id])
+		}
+		if ed.count[id] != 1 {
+			continue
+		}
+		mk := int(emark[id])
+		if mk == 0 {
+			return fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) lies on no boundary piece", pa[0], pa[1], pb[0], pb[1])
+		}
+		p := d.PieceOfMark(mk)
+		if p == nil {
+			return fmt.Errorf("mesh: boundary edge (%g, %g)–(%g, %g) has mark %d of no piece", pa[0], pa[1], pb[0], pb[1], mk)
+		}
+		// a→b is the triangle's own counter-clockwise edge: domain on its left.
+		m.Boundary = append(m.Boundary, fem.Edge{A: renum[ed.a[id]], B: renum[ed.b[id]], Mid: nc + id, Label: labelOf[p.Label], Tri: int(ed.tri[id])})
+	}
+	return nil
 }
 
 // onCircle reports whether x lies on the arc's circle (to 1e-9 relative).

@@ -414,14 +414,7 @@ func (r *refiner) splitCurved(s, e int32, p [2]float64) bool {
 		r.nCurvedIn++
 		v = m.addVertex(p, m.sorig[s])
 		h1, h2 := m.splitSub(s, p1, v)
-		A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
-		B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
-		t2 := m.newTri()
-		m.setTri(t, v, p2, c)
-		m.setTri(t2, v, c, p1)
-		m.link(3*t, A, sA)
-		m.link(3*t2, B, sB)
-		m.link(3*t+1, 3*t2+2, -1)
+		t2 := m.halve(t, i, v)
 		m.link(3*t+2, -1, h2)
 		m.link(3*t2+1, -1, h1)
 		m.stack = append(m.stack[:0], t, t2)

@@ -180,39 +180,42 @@ func (m *tmesh) splitEdge(t, i, p int32) {
 	e := 3*t + i
 	n := m.tn[e]
 	seg := m.ts[e]
-	p0, p1, p2 := m.tv[e], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
-	A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
-	B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
 	h1, h2 := int32(-1), int32(-1)
 	if seg >= 0 {
-		h1, h2 = m.splitSub(seg, p1, p)
+		h1, h2 = m.splitSub(seg, m.tv[3*t+next3(i)], p)
 	}
-	t2 := m.newTri()
-	m.setTri(t, p, p2, p0)
-	m.setTri(t2, p, p0, p1)
-	m.link(3*t, A, sA)
-	m.link(3*t2, B, sB)
-	m.link(3*t+1, 3*t2+2, -1)
+	t2 := m.halve(t, i, p)
 	m.stack = append(m.stack[:0], t, t2)
 	if n < 0 {
 		m.link(3*t+2, -1, h2)
 		m.link(3*t2+1, -1, h1)
 	} else {
-		u, j := n/3, n%3
-		q0 := m.tv[n]
-		C, sC := m.tn[3*u+next3(j)], m.ts[3*u+next3(j)]
-		D, sD := m.tn[3*u+prev3(j)], m.ts[3*u+prev3(j)]
-		u2 := m.newTri()
-		m.setTri(u, p, p1, q0)
-		m.setTri(u2, p, q0, p2)
-		m.link(3*u, C, sC)
-		m.link(3*u2, D, sD)
-		m.link(3*u+1, 3*u2+2, -1)
+		// the neighbour u = [q0 p2 p1] becomes [p p1 q0] and [p q0 p2]
+		u := n / 3
+		u2 := m.halve(u, n%3, p)
 		m.link(3*t+2, 3*u2+1, h2)
 		m.link(3*t2+1, 3*u+2, h1)
 		m.stack = append(m.stack, u, u2)
 	}
 	m.legalize()
+}
+
+// halve splits triangle t = [p0 p1 p2] at vertex v on its edge i (p1→p2)
+// into t = [v p2 p0] and a new triangle [v p0 p1], which it returns. The
+// outer edges p2→p0 and p0→p1 keep their neighbours and sub-segments, the
+// two triangles share the edge v–p0, and the halves of edge i (edge 2 of
+// t, v→p2, and edge 1 of the new triangle, p1→v) are left to the caller.
+func (m *tmesh) halve(t, i, v int32) int32 {
+	p0, p1, p2 := m.tv[3*t+i], m.tv[3*t+next3(i)], m.tv[3*t+prev3(i)]
+	A, sA := m.tn[3*t+next3(i)], m.ts[3*t+next3(i)]
+	B, sB := m.tn[3*t+prev3(i)], m.ts[3*t+prev3(i)]
+	t2 := m.newTri()
+	m.setTri(t, v, p2, p0)
+	m.setTri(t2, v, p0, p1)
+	m.link(3*t, A, sA)
+	m.link(3*t2, B, sB)
+	m.link(3*t+1, 3*t2+2, -1)
+	return t2
 }
 
 // splitSub splits sub-segment s, which joins p1 and some p2 (in either

@@ -151,6 +151,44 @@ func (p *Problem) Assemble(tangent bool) error {
 	if tangent {
 		clear(p.K.Val)
 	}
+	if err := p.assembleElements(tangent); err != nil {
+		return err
+	}
+	p.updateScales()
+	for _, d := range p.fextList {
+		p.Full[d] -= p.T * p.fext[d]
+	}
+	p.assembleFollower(tangent)
+	p.addReleaseForces()
+	if p.imbalance != nil && p.imbScale != 0 {
+		for d, v := range p.imbalance {
+			p.Full[d] -= p.imbScale * v
+		}
+	}
+	p.refreshConstraints(true)
+	copy(p.Res, p.Full)
+	for _, d := range p.Full {
+		if math.IsNaN(d) || math.IsInf(d, 0) {
+			return errors.New("fem: non-finite residual")
+		}
+	}
+	if len(p.constr) == 0 {
+		return nil
+	}
+	diag := 1.0
+	if tangent {
+		diag = p.meanDiagonal()
+	}
+	if tangent && p.rate != nil {
+		p.loadRate()
+	}
+	p.clearConstrained(tangent, diag)
+	return nil
+}
+
+// assembleElements adds the element contributions to Full (and K), colour
+// after colour, and returns the first error of the workers.
+func (p *Problem) assembleElements(tangent bool) error {
 	nw := len(p.workers)
 	for i := range p.workers {
 		p.workers[i].err = nil
@@ -177,10 +215,12 @@ func (p *Problem) Assemble(tangent bool) error {
 			err = e
 		}
 	}
-	if err != nil {
-		return err
-	}
-	// scales and external loads
+	return err
+}
+
+// updateScales sets Scale from the element contributions of the active
+// elements, summed in element order.
+func (p *Problem) updateScales() {
 	var sum [NumFields]float64
 	for e, a := range p.active {
 		if !a {
@@ -211,45 +251,34 @@ func (p *Problem) Assemble(tangent bool) error {
 	for _, f := range [2]Field{Pressure, Lambda} {
 		p.Scale[f] = math.Max(p.Scale[f], 1e-10*p.meanVol/3)
 	}
-	for _, d := range p.fextList {
-		p.Full[d] -= p.T * p.fext[d]
-	}
-	p.assembleFollower(tangent)
-	p.addReleaseForces()
-	if p.imbalance != nil && p.imbScale != 0 {
-		for d, v := range p.imbalance {
-			p.Full[d] -= p.imbScale * v
-		}
-	}
-	p.refreshConstraints(true)
-	copy(p.Res, p.Full)
-	for _, d := range p.Full {
-		if math.IsNaN(d) || math.IsInf(d, 0) {
-			return errors.New("fem: non-finite residual")
-		}
-	}
-	if len(p.constr) == 0 {
-		return nil
-	}
+}
+
+// meanDiagonal returns the mean absolute diagonal of K over the free
+// displacement unknowns (1 if there are none or it is zero): the value
+// the identity rows of constrained unknowns get, so they do not spoil the
+// conditioning.
+func (p *Problem) meanDiagonal() float64 {
 	diag := 1.0
-	if tangent {
-		var s float64
-		var n int
-		for r := 0; r < p.Dofs.N; r++ {
-			if p.Dofs.FieldOf[r] <= Uy && !p.Constrained(r) {
-				if q := p.pos(r, r); q >= 0 {
-					s += math.Abs(p.K.Val[q])
-					n++
-				}
+	var s float64
+	var n int
+	for r := 0; r < p.Dofs.N; r++ {
+		if p.Dofs.FieldOf[r] <= Uy && !p.Constrained(r) {
+			if q := p.pos(r, r); q >= 0 {
+				s += math.Abs(p.K.Val[q])
+				n++
 			}
 		}
-		if n > 0 && s > 0 {
-			diag = s / float64(n)
-		}
 	}
-	if tangent && p.rate != nil {
-		p.loadRate()
+	if n > 0 && s > 0 {
+		diag = s / float64(n)
 	}
+	return diag
+}
+
+// clearConstrained clears the residual of the constrained unknowns and,
+// if tangent, turns their rows and columns of K into identity rows with
+// diagonal diag.
+func (p *Problem) clearConstrained(tangent bool, diag float64) {
 	for _, d := range p.constr {
 		p.Res[d] = 0
 		if !tangent {
@@ -266,7 +295,6 @@ func (p *Problem) Assemble(tangent bool) error {
 		}
 		p.K.Val[p.pos(d, d)] = diag
 	}
-	return nil
 }
 
 // work assembles a list of elements of one colour with worker wi's scratch.

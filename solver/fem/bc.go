@@ -173,54 +173,72 @@ func (p *Problem) nodesOf(what, label, point string) ([]int, error) {
 // setBCs validates the conditions and builds the prescribed list and the
 // reference external force vector.
 func (p *Problem) setBCs(b BCs) error {
-	m := p.Mesh
-	byDof := make(map[int]int) // dof → index in p.presc
-	add := func(what string, q prescribed) error {
-		if i, ok := byDof[q.dof]; ok {
-			// Two conditions on one unknown: allowed only if both say zero
-			// (e.g. a symmetry line meeting a fixed edge at a corner).
-			// Allowed when they agree (a corner shared by two labels with
-			// the same field, or a symmetry line meeting a fixed edge):
-			// checked at t = 0.5 and t = 1.
-			o := p.presc[i]
-			agree := func(t float64) bool {
-				x, y := o.at(t), q.at(t)
-				return math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))+1e-14*p.size
-			}
-			if agree(0.5) && agree(1) {
-				return nil
-			}
-			return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
-		}
-		byDof[q.dof] = len(p.presc)
-		p.presc = append(p.presc, q)
-		return nil
+	d := dirichlet{p: p, byDof: make(map[int]int)}
+	if err := d.displacements(b.Displacements); err != nil {
+		return err
 	}
-	for i, d := range b.Displacements {
+	if err := d.symmetries(b.Symmetries); err != nil {
+		return err
+	}
+	if err := d.pins(b.Pins); err != nil {
+		return err
+	}
+	if p.Opt.Kinematics == Axisymmetric {
+		d.axis()
+	}
+	if err := p.setLoads(b.Tractions, b.PointLoads); err != nil {
+		return err
+	}
+	p.fixed = make([]bool, p.Dofs.N)
+	for _, q := range p.presc {
+		p.fixed[q.dof] = true
+	}
+	return nil
+}
+
+// dirichlet builds the prescribed unknowns p.presc, one condition after
+// the other; byDof maps an unknown to its index in p.presc.
+type dirichlet struct {
+	p     *Problem
+	byDof map[int]int
+}
+
+// displacements prescribes the fixed components of each displacement
+// condition on all its nodes.
+func (d *dirichlet) displacements(ds []Displacement) error {
+	p := d.p
+	for i, dc := range ds {
 		what := fmt.Sprintf("displacement condition %d", i)
-		nodes, err := p.nodesOf(what, d.Label, d.Point)
+		nodes, err := p.nodesOf(what, dc.Label, dc.Point)
 		if err != nil {
 			return err
 		}
-		if !d.Fix[0] && !d.Fix[1] {
+		if !dc.Fix[0] && !dc.Fix[1] {
 			return fmt.Errorf("%s: no component fixed (Fix is [false false])", what)
 		}
 		for c := 0; c < 2; c++ {
-			if !d.Fix[c] {
+			if !dc.Fix[c] {
 				continue
 			}
-			if math.IsNaN(d.Value[c]) || math.IsInf(d.Value[c], 0) {
-				return fmt.Errorf("%s: component %d value %g is not finite", what, c, d.Value[c])
+			if math.IsNaN(dc.Value[c]) || math.IsInf(dc.Value[c], 0) {
+				return fmt.Errorf("%s: component %d value %g is not finite", what, c, dc.Value[c])
 			}
 			for _, n := range nodes {
-				q := prescribed{dof: p.Dofs.Of(n, Field(c)), comp: c, x: m.X[n], value: d.Value[c], fn: d.Func}
-				if err := add(what, q); err != nil {
+				q := prescribed{dof: p.Dofs.Of(n, Field(c)), comp: c, x: p.Mesh.X[n], value: dc.Value[c], fn: dc.Func}
+				if err := d.add(what, q); err != nil {
 					return err
 				}
 			}
 		}
 	}
-	for i, s := range b.Symmetries {
+	return nil
+}
+
+// symmetries fixes the normal component on each symmetry line and records
+// the unknowns and edges of the lines that are crack planes.
+func (d *dirichlet) symmetries(ss []Symmetry) error {
+	p, m := d.p, d.p.Mesh
+	for i, s := range ss {
 		what := fmt.Sprintf("symmetry condition %d", i)
 		if s.Comp != 0 && s.Comp != 1 {
 			return fmt.Errorf("%s: component %d must be 0 (x = const line) or 1 (y = const line)", what, s.Comp)
@@ -234,13 +252,13 @@ func (p *Problem) setBCs(b BCs) error {
 			if math.Abs(m.X[n][s.Comp]-x0) > 1e-9*p.size {
 				return fmt.Errorf("%s: label %q is not a straight line with coordinate %d constant (node %d at %v, first at %g)", what, s.Label, s.Comp, n, m.X[n], x0)
 			}
-			d := p.Dofs.Of(n, Field(s.Comp))
-			_, taken := byDof[d]
-			if err := add(what, prescribed{dof: d, comp: s.Comp, x: m.X[n]}); err != nil {
+			dof := p.Dofs.Of(n, Field(s.Comp))
+			_, taken := d.byDof[dof]
+			if err := d.add(what, prescribed{dof: dof, comp: s.Comp, x: m.X[n]}); err != nil {
 				return err
 			}
 			if !taken && s.CrackPlane {
-				p.symDofs = append(p.symDofs, d)
+				p.symDofs = append(p.symDofs, dof)
 			}
 		}
 		if !s.CrackPlane {
@@ -253,72 +271,129 @@ func (p *Problem) setBCs(b BCs) error {
 			}
 		}
 	}
-	for i, pn := range b.Pins {
+	return nil
+}
+
+// pins prescribes the loading component on the contact arc of each pin
+// and records the arcs.
+func (d *dirichlet) pins(pins []Pin) error {
+	p := d.p
+	for i, pn := range pins {
 		what := fmt.Sprintf("pin condition %d", i)
-		if pn.Comp != 0 && pn.Comp != 1 {
-			return fmt.Errorf("%s: component %d must be 0 or 1", what, pn.Comp)
-		}
-		if pn.Func == nil && pn.Value == 0 {
-			return fmt.Errorf("%s: Value is zero and no Func: the loading direction is undefined", what)
-		}
-		if pn.Point != "" {
-			if _, ok := m.Points[pn.Point]; !ok {
-				return fmt.Errorf("%s: no named point %q", what, pn.Point)
-			}
+		if err := p.checkPin(what, pn); err != nil {
+			return err
 		}
 		nodes, err := p.nodesOf(what, pn.Label, "")
 		if err != nil {
 			return err
 		}
-		var cx [2]float64
-		for _, n := range nodes {
-			cx[0] += m.X[n][0] / float64(len(nodes))
-			cx[1] += m.X[n][1] / float64(len(nodes))
-		}
-		sign := 1.0
-		if pn.Func != nil {
-			if v := pn.Func(1); v < 0 {
-				sign = -1
-			}
-		} else if pn.Value < 0 {
-			sign = -1
-		}
 		if !(pn.Contact >= 0 && pn.Contact <= 90) {
 			return fmt.Errorf("%s: contact half-angle %g° must lie in [0, 90]", what, pn.Contact)
 		}
-		cosC := 0.0
-		if pn.Contact > 0 && pn.Contact < 90 {
-			cosC = math.Cos(pn.Contact * math.Pi / 180)
-		}
-		var arc []int
-		for _, n := range nodes {
-			d := math.Hypot(m.X[n][0]-cx[0], m.X[n][1]-cx[1])
-			if sign*(m.X[n][pn.Comp]-cx[pn.Comp]) >= cosC*d-1e-12*p.size {
-				arc = append(arc, n)
-				q := prescribed{dof: p.Dofs.Of(n, Field(pn.Comp)), comp: pn.Comp, x: m.X[n], value: pn.Value, pinFn: pn.Func}
-				if err := add(what, q); err != nil {
-					return err
-				}
+		arc := p.pinArc(nodes, pn)
+		for _, n := range arc {
+			q := prescribed{dof: p.Dofs.Of(n, Field(pn.Comp)), comp: pn.Comp, x: p.Mesh.X[n], value: pn.Value, pinFn: pn.Func}
+			if err := d.add(what, q); err != nil {
+				return err
 			}
 		}
 		p.pinArcs = append(p.pinArcs, arc)
 		p.pinComp = append(p.pinComp, pn.Comp)
 	}
-	if p.Opt.Kinematics == Axisymmetric {
-		// Nodes on the axis r = 0 cannot move radially (symmetry of the
-		// body of revolution); fix u_r there unless a condition did.
-		for n, x := range m.X {
-			if math.Abs(x[0]) <= 1e-12*p.size {
-				if d := p.Dofs.Of(n, Ux); !hasDof(byDof, d) {
-					byDof[d] = len(p.presc)
-					p.presc = append(p.presc, prescribed{dof: d, comp: 0, x: x})
-				}
+	return nil
+}
+
+// checkPin checks a pin's component, loading direction and load point.
+func (p *Problem) checkPin(what string, pn Pin) error {
+	if pn.Comp != 0 && pn.Comp != 1 {
+		return fmt.Errorf("%s: component %d must be 0 or 1", what, pn.Comp)
+	}
+	if pn.Func == nil && pn.Value == 0 {
+		return fmt.Errorf("%s: Value is zero and no Func: the loading direction is undefined", what)
+	}
+	if pn.Point != "" {
+		if _, ok := p.Mesh.Points[pn.Point]; !ok {
+			return fmt.Errorf("%s: no named point %q", what, pn.Point)
+		}
+	}
+	return nil
+}
+
+// pinArc returns the contact arc of a pin among the hole nodes: the nodes
+// within the contact half-angle of the loading direction (the sign of the
+// load at t = 1) seen from the centroid of the hole nodes.
+func (p *Problem) pinArc(nodes []int, pn Pin) []int {
+	m := p.Mesh
+	var cx [2]float64
+	for _, n := range nodes {
+		cx[0] += m.X[n][0] / float64(len(nodes))
+		cx[1] += m.X[n][1] / float64(len(nodes))
+	}
+	sign := 1.0
+	if pn.Func != nil {
+		if v := pn.Func(1); v < 0 {
+			sign = -1
+		}
+	} else if pn.Value < 0 {
+		sign = -1
+	}
+	cosC := 0.0
+	if pn.Contact > 0 && pn.Contact < 90 {
+		cosC = math.Cos(pn.Contact * math.Pi / 180)
+	}
+	var arc []int
+	for _, n := range nodes {
+		d := math.Hypot(m.X[n][0]-cx[0], m.X[n][1]-cx[1])
+		if sign*(m.X[n][pn.Comp]-cx[pn.Comp]) >= cosC*d-1e-12*p.size {
+			arc = append(arc, n)
+		}
+	}
+	return arc
+}
+
+// add prescribes q. Two conditions on one unknown are allowed when they
+// agree (a corner shared by two labels with the same field, or a symmetry
+// line meeting a fixed edge), checked at t = 0.5 and t = 1; then the first
+// stays.
+func (d *dirichlet) add(what string, q prescribed) error {
+	p := d.p
+	if i, ok := d.byDof[q.dof]; ok {
+		o := p.presc[i]
+		agree := func(t float64) bool {
+			x, y := o.at(t), q.at(t)
+			return math.Abs(x-y) <= 1e-9*math.Max(math.Abs(x), math.Abs(y))+1e-14*p.size
+		}
+		if agree(0.5) && agree(1) {
+			return nil
+		}
+		return fmt.Errorf("%s: node %d component %d is already prescribed by another condition", what, p.Dofs.NodeOf[q.dof], q.comp)
+	}
+	d.byDof[q.dof] = len(p.presc)
+	p.presc = append(p.presc, q)
+	return nil
+}
+
+// axis fixes u_r on the axis r = 0 unless a condition did: nodes there
+// cannot move radially (symmetry of the body of revolution).
+func (d *dirichlet) axis() {
+	p := d.p
+	for n, x := range p.Mesh.X {
+		if math.Abs(x[0]) <= 1e-12*p.size {
+			if dof := p.Dofs.Of(n, Ux); !hasDof(d.byDof, dof) {
+				d.byDof[dof] = len(p.presc)
+				p.presc = append(p.presc, prescribed{dof: dof, comp: 0, x: x})
 			}
 		}
 	}
+}
 
+// setLoads builds the reference external force vector p.fext (and the
+// list of its non-zero entries) from the dead tractions and point loads,
+// and collects the follower pressures.
+func (p *Problem) setLoads(trs []Traction, pls []PointLoad) error {
+	m := p.Mesh
 	p.fext = make([]float64, p.Dofs.N)
-	for i, tr := range b.Tractions {
+	for i, tr := range trs {
 		what := fmt.Sprintf("traction condition %d", i)
 		l := m.Label(tr.Label)
 		if l < 0 {
@@ -331,21 +406,12 @@ func (p *Problem) setBCs(b BCs) error {
 		}
 		pres := tr.Pressure
 		if tr.Follower && pres != 0 {
-			for _, e := range m.Boundary {
-				if e.Label == l {
-					p.follower = append(p.follower, followerEdge{nodes: [3]int{e.A, e.Mid, e.B}, pressure: pres})
-					length := math.Hypot(m.X[e.B][0]-m.X[e.A][0], m.X[e.B][1]-m.X[e.A][1])
-					if p.Opt.Kinematics == Axisymmetric {
-						length *= 2 * math.Pi * math.Max(m.X[e.A][0], m.X[e.B][0])
-					}
-					p.followerScale = math.Max(p.followerScale, math.Abs(pres)*length/3)
-				}
-			}
+			p.addFollower(l, pres)
 			pres = 0
 		}
 		p.addTraction(l, tr.Value, pres, tr.Func)
 	}
-	for i, pl := range b.PointLoads {
+	for i, pl := range pls {
 		what := fmt.Sprintf("point load %d", i)
 		n, ok := m.Points[pl.Point]
 		if !ok {
@@ -360,11 +426,23 @@ func (p *Problem) setBCs(b BCs) error {
 			p.fextList = append(p.fextList, d)
 		}
 	}
-	p.fixed = make([]bool, p.Dofs.N)
-	for _, q := range p.presc {
-		p.fixed[q.dof] = true
-	}
 	return nil
+}
+
+// addFollower puts the edges of label l under the follower pressure pres
+// and raises p.followerScale to the largest edge force |pres|·length/3.
+func (p *Problem) addFollower(l int, pres float64) {
+	m := p.Mesh
+	for _, e := range m.Boundary {
+		if e.Label == l {
+			p.follower = append(p.follower, followerEdge{nodes: [3]int{e.A, e.Mid, e.B}, pressure: pres})
+			length := math.Hypot(m.X[e.B][0]-m.X[e.A][0], m.X[e.B][1]-m.X[e.A][1])
+			if p.Opt.Kinematics == Axisymmetric {
+				length *= 2 * math.Pi * math.Max(m.X[e.A][0], m.X[e.B][0])
+			}
+			p.followerScale = math.Max(p.followerScale, math.Abs(pres)*length/3)
+		}
+	}
 }
 
 // addTraction integrates the dead load of one label into p.fext with a

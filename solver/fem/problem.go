@@ -205,79 +205,16 @@ func NewProblem(m *Mesh, mat material.Model, opt Options, bcs BCs) (*Problem, er
 		return nil, fmt.Errorf("fem: axisymmetric mesh has a node at r = %g < 0", lo[0])
 	}
 
-	// Local unknown layout: 12 displacements (node k: 2k, 2k+1), then each
-	// switched-on corner field in blocks of three.
-	for k := 0; k < 6; k++ {
-		for c := 0; c < 2; c++ {
-			a := 2*k + c
-			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(c), Field(c)
-		}
-	}
-	p.nd = 12
-	p.rows = []int{0, 1, 2, 3}
-	for f := Theta; f < NumFields; f++ {
-		if !d.Has(f) {
-			continue
-		}
-		for k := 0; k < 3; k++ {
-			a := p.nd + k
-			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(d.offset[f]), f
-		}
-		p.nd += 3
-		switch f {
-		case Theta:
-			p.rows = append(p.rows, rowTh)
-		case Pressure:
-			p.rows = append(p.rows, rowP)
-		case Abar:
-			p.rows = append(p.rows, rowA, rowA+1, rowA+2)
-		case Lambda:
-			p.rows = append(p.rows, rowLam)
-		}
-	}
-
+	p.setLayout()
 	if err := p.buildPattern(); err != nil {
 		return nil, err
 	}
 	if err := p.buildColours(); err != nil {
 		return nil, err
 	}
-	nw := opt.Workers
-	if nw == 0 {
-		nw = runtime.GOMAXPROCS(0)
-	}
-	p.workers = make([]worker, nw)
-	if nw > 1 {
-		p.pool = newPool(nw - 1)
-		runtime.AddCleanup(p, func(pl *pool) { pl.close() }, p.pool)
-	}
+	p.startWorkers()
 
-	ne := len(m.Tri)
-	p.elemScale = make([][NumFields]float64, ne)
-	p.active = make([]bool, ne)
-	for e := range p.active {
-		p.active[e] = true
-	}
-	p.stBack = make([]material.State, ne*perElem)
-	p.stBack2 = make([]material.State, ne*perElem)
-	p.oldState = make([][]material.State, ne)
-	p.newState = make([][]material.State, ne)
-	init := mat.Initial()
-	for e := 0; e < ne; e++ {
-		p.oldState[e] = p.stBack[e*perElem : (e+1)*perElem : (e+1)*perElem]
-		p.newState[e] = p.stBack2[e*perElem : (e+1)*perElem : (e+1)*perElem]
-		for g := range p.oldState[e] {
-			p.oldState[e][g] = init
-			p.newState[e][g] = init
-		}
-	}
-	p.gp = make([]GaussPoint, ne*perElem)
-	p.pendF = make([][5]float64, ne*perElem)
-	p.pendP = make([][5]float64, ne*perElem)
-	for i := range p.gp {
-		p.gp[i].F = [5]float64{1, 0, 0, 1, 1}
-		p.pendF[i] = p.gp[i].F
-	}
+	p.initElements()
 
 	n := d.N
 	p.U = make([]float64, n)
@@ -293,8 +230,88 @@ func NewProblem(m *Mesh, mat material.Model, opt Options, bcs BCs) (*Problem, er
 		p.label[name] = m.labelNodes(l)
 	}
 	p.updateConstraints()
-	p.meanVol = p.Volume() / float64(ne)
+	p.meanVol = p.Volume() / float64(len(m.Tri))
 	return p, nil
+}
+
+// setLayout sets the local unknown layout of the element: 12
+// displacements (node k: 2k, 2k+1), then each switched-on corner field in
+// blocks of three; and the generalised-strain rows that are active.
+func (p *Problem) setLayout() {
+	for k := 0; k < 6; k++ {
+		for c := 0; c < 2; c++ {
+			a := 2*k + c
+			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(c), Field(c)
+		}
+	}
+	p.nd = 12
+	p.rows = []int{0, 1, 2, 3}
+	for f := Theta; f < NumFields; f++ {
+		if !p.Dofs.Has(f) {
+			continue
+		}
+		for k := 0; k < 3; k++ {
+			a := p.nd + k
+			p.locN[a], p.locOff[a], p.locFld[a] = int8(k), int8(p.Dofs.offset[f]), f
+		}
+		p.nd += 3
+		switch f {
+		case Theta:
+			p.rows = append(p.rows, rowTh)
+		case Pressure:
+			p.rows = append(p.rows, rowP)
+		case Abar:
+			p.rows = append(p.rows, rowA, rowA+1, rowA+2)
+		case Lambda:
+			p.rows = append(p.rows, rowLam)
+		}
+	}
+}
+
+// startWorkers makes the assembly workers (Opt.Workers, 0 for GOMAXPROCS)
+// and, for more than one, the pool that runs all but the first; the pool
+// closes when p is collected.
+func (p *Problem) startWorkers() {
+	nw := p.Opt.Workers
+	if nw == 0 {
+		nw = runtime.GOMAXPROCS(0)
+	}
+	p.workers = make([]worker, nw)
+	if nw > 1 {
+		p.pool = newPool(nw - 1)
+		runtime.AddCleanup(p, func(pl *pool) { pl.close() }, p.pool)
+	}
+}
+
+// initElements makes the per-element and per-point arrays: every element
+// active, every point in the material's initial state with F = 1.
+func (p *Problem) initElements() {
+	ne := len(p.Mesh.Tri)
+	p.elemScale = make([][NumFields]float64, ne)
+	p.active = make([]bool, ne)
+	for e := range p.active {
+		p.active[e] = true
+	}
+	p.stBack = make([]material.State, ne*perElem)
+	p.stBack2 = make([]material.State, ne*perElem)
+	p.oldState = make([][]material.State, ne)
+	p.newState = make([][]material.State, ne)
+	init := p.Model.Initial()
+	for e := 0; e < ne; e++ {
+		p.oldState[e] = p.stBack[e*perElem : (e+1)*perElem : (e+1)*perElem]
+		p.newState[e] = p.stBack2[e*perElem : (e+1)*perElem : (e+1)*perElem]
+		for g := range p.oldState[e] {
+			p.oldState[e][g] = init
+			p.newState[e][g] = init
+		}
+	}
+	p.gp = make([]GaussPoint, ne*perElem)
+	p.pendF = make([][5]float64, ne*perElem)
+	p.pendP = make([][5]float64, ne*perElem)
+	for i := range p.gp {
+		p.gp[i].F = [5]float64{1, 0, 0, 1, 1}
+		p.pendF[i] = p.gp[i].F
+	}
 }
 
 // NumElements returns the number of triangles.

@@ -293,6 +293,44 @@ func logYield(a, b, x float64) (l, la, lb, lx float64) {
 	return l, la, lb, lx
 }
 
+// yieldPartials is L = ln(a + b cosh x) with its first partials and the
+// second partials the local Jacobian needs.
+type yieldPartials struct {
+	l, la, lb, lx           float64
+	laa, lab, lax, lxx, lxb float64
+}
+
+// logYieldPartials returns L = ln(a + b cosh x) and its partials (see
+// logYield). With D = a + b cosh x and t = sinh x/D: L_a = 1/D, L_b =
+// cosh x/D, L_x = b t, so L_aa = −L_a², L_ab = −L_a L_b, L_ax = −L_a L_x,
+// L_xx = b L_b − L_x², and L_xb = t(1 − b L_b) = a t L_a since
+// a L_a + b L_b = 1.
+func logYieldPartials(a, b, x float64) yieldPartials {
+	L, La, Lb, Lx := logYield(a, b, x)
+	tt := 0.0
+	if b > 0 {
+		tt = Lx / b
+	} else {
+		// b = 0: t = sinh x/(a + b cosh x) is only needed multiplied by a in
+		// ∂L_x/∂b; compute it directly.
+		ax := math.Abs(x)
+		w := math.Exp(-ax)
+		st := 2 * a * w
+		tt = (1 - w*w) / st
+		if x < 0 {
+			tt = -tt
+		}
+	}
+	return yieldPartials{
+		l: L, la: La, lb: Lb, lx: Lx,
+		laa: -La * La,
+		lab: -La * Lb,
+		lax: -La * Lx,
+		lxx: b*Lb - Lx*Lx,
+		lxb: a * tt * La,
+	}
+}
+
 // Local Newton settings: the iteration stops one step after the scaled
 // residual falls below newtonTol (the last step brings it to rounding).
 const (
@@ -332,6 +370,41 @@ type gtnEval struct {
 	normRes float64
 }
 
+// gtnPorosity is the porosity f and the volumetric plastic strain Δε_p at
+// one point of the local problem, with their derivatives with respect to
+// the first unknown u₀ and to Δp.
+type gtnPorosity struct {
+	f, u1     float64 // f, Δε_p
+	u1y, u1u3 float64 // ∂Δε_p/∂u₀, ∂Δε_p/∂Δp
+	fy, fu3   float64 // ∂f/∂u₀, ∂f/∂Δp
+}
+
+// porosity returns f and Δε_p from 1 − f = (1 − f_n − A_N Δp) e^{−Δε_p}
+// and the first unknown u₀: Δε_p itself, or ln f (logF); aN and daN are
+// the nucleation rate at p_n + Δp and its derivative.
+func (lp *gtnLocal) porosity(u0, u3, aN, daN float64) gtnPorosity {
+	var po gtnPorosity
+	if lp.logF {
+		po.f = math.Exp(u0)
+		omega := 1 - po.f
+		po.u1 = math.Log1p(-lp.fN-aN*u3) - math.Log1p(-po.f)
+		po.u1y = po.f / omega
+		po.u1u3 = -(aN + daN*u3) / (1 - lp.fN - aN*u3)
+		po.fy = po.f
+	} else {
+		po.u1 = u0
+		e1 := math.Exp(-po.u1)
+		omega := (1 - lp.fN - aN*u3) * e1
+		po.f = 1 - omega
+		po.u1y = 1
+		po.fy = omega
+		po.fu3 = (aN + daN*u3) * e1
+	}
+	return po
+}
+
+// eval evaluates the local problem at u into ev; ev.ok is false where u is
+// not admissible (or the result not finite).
 func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	m := lp.m
 	par := &m.par
@@ -346,25 +419,8 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 		return
 	}
 	aN, daN := m.nucleation(p)
-	// Porosity and volumetric plastic strain, 1 − f = (1 − f_n − A_N Δp)
-	// e^{−Δε_p}, from the first unknown: Δε_p itself, or y = ln f.
-	var u1, f, omega, u1y, u1u3, fy, fu3 float64
-	if lp.logF {
-		f = math.Exp(u[0])
-		omega = 1 - f
-		u1 = math.Log1p(-lp.fN-aN*u3) - math.Log1p(-f)
-		u1y = f / omega
-		u1u3 = -(aN + daN*u3) / (1 - lp.fN - aN*u3)
-		fy = f
-	} else {
-		u1 = u[0]
-		e1 := math.Exp(-u1)
-		omega = (1 - lp.fN - aN*u3) * e1
-		f = 1 - omega
-		u1y = 1
-		fy = omega
-		fu3 = (aN + daN*u3) * e1
-	}
+	po := lp.porosity(u[0], u3, aN, daN)
+	u1, f, u1y, u1u3, fy, fu3 := po.u1, po.f, po.u1y, po.u1u3, po.fy, po.fu3
 	if !(f >= 0 && f < m.fLim) {
 		return
 	}
@@ -388,26 +444,9 @@ func (lp *gtnLocal) eval(u [3]float64, ev *gtnEval) {
 	if !(2*a+b > 0) {
 		return
 	}
-	L, La, Lb, Lx := logYield(a, b, x)
-	tt := 0.0
-	if b > 0 {
-		tt = Lx / b
-	} else {
-		// b = 0: t = sinh x/(a + b cosh x) is only needed multiplied by a in
-		// ∂L_x/∂b; compute it directly.
-		ax := math.Abs(x)
-		w := math.Exp(-ax)
-		st := 2 * a * w
-		tt = (1 - w*w) / st
-		if x < 0 {
-			tt = -tt
-		}
-	}
-	Laa := -La * La
-	Lab := -La * Lb
-	Lax := -La * Lx
-	Lxx := b*Lb - Lx*Lx
-	Lxb := a * tt * La
+	ly := logYieldPartials(a, b, x)
+	L, La, Lb, Lx := ly.l, ly.la, ly.lb, ly.lx
+	Laa, Lab, Lax, Lxx, Lxb := ly.laa, ly.lab, ly.lax, ly.lxx, ly.lxb
 
 	aB := 2 * beta * lp.q / (A * A)
 	aQ := beta * beta / (A * A)
@@ -485,14 +524,11 @@ const (
 // below (C¹ at a₁ + d, never below a₁).
 //
 // The gradient term λ ≈ −cΔā is negative at the edges of a localisation
-// band and next to broken material it reaches −10σ₀. Bounded only by a
-// small absolute floor (0.01σ₀, the previous version), the material there
-// yielded at a few MPa: the wake of the crack behaved as a fluid, the
-// Newton corrections asked for relative displacements of order one in it,
-// the strain cap scaled every correction down, and the fixed-mesh
-// boundary-layer run stopped at Δa ≈ 5ℓ with residuals that no increment
-// size reduced. A bound proportional to R keeps the edge softening that
-// sets the band width while the wake keeps its strength.
+// band and next to broken material it reaches −10σ₀. Under a small
+// absolute floor the wake of the crack would yield at a few MPa and flow
+// like a fluid, and the Newton iteration would stall in it. A bound
+// proportional to R keeps the edge softening that sets the band width
+// while the wake keeps its strength.
 func (m *GTN) flowStress(p, abar, lamb float64) (a, dp, dAbar, dLambda float64) {
 	r, dr := m.par.Hardening.Flow(p)
 	if m.local {

@@ -61,10 +61,13 @@ func (m *mmReader) errf(format string, args ...any) error {
 }
 
 type mmHeader struct {
-	format, field, symmetry string
+	field, symmetry string
 }
 
-func (m *mmReader) header(object string) (mmHeader, error) {
+// header reads the header line of a matrix in the given format (what
+// names the content for the error).
+func (m *mmReader) header(format, what string) (mmHeader, error) {
+	const object = "matrix"
 	if !m.sc.Scan() {
 		if err := m.sc.Err(); err != nil {
 			return mmHeader{}, fmt.Errorf("matrix market: line 1: %w", err)
@@ -79,7 +82,50 @@ func (m *mmReader) header(object string) (mmHeader, error) {
 	if f[1] != object {
 		return mmHeader{}, m.errf("object %q not supported (allowed: %s)", f[1], object)
 	}
-	return mmHeader{format: f[2], field: f[3], symmetry: f[4]}, nil
+	if f[2] != format {
+		return mmHeader{}, m.errf("format %q not supported for %s (allowed: %s)", f[2], what, format)
+	}
+	return mmHeader{field: f[3], symmetry: f[4]}, nil
+}
+
+// sizeLine reads the size line, which must be want integers (form says
+// which, for the error when it is missing). sz is nil when the line s is
+// not want integers.
+func (m *mmReader) sizeLine(want int, form string) (s string, sz []int, err error) {
+	s, ok, err := m.next()
+	if err != nil {
+		return "", nil, err
+	}
+	if !ok {
+		return "", nil, m.errf("missing size line %q", form)
+	}
+	sz, _ = parseInts(s, want)
+	return s, sz, nil
+}
+
+// data reads data line k of the n declared ones (what names them).
+func (m *mmReader) data(k, n int, what string) (string, error) {
+	s, ok, err := m.next()
+	if err != nil {
+		return "", err
+	}
+	if !ok {
+		return "", m.errf("end of input after %d of %d %s", k, n, what)
+	}
+	return s, nil
+}
+
+// end checks that nothing but blank and comment lines follows the n
+// declared data lines (what names them).
+func (m *mmReader) end(n int, what string) error {
+	s, ok, err := m.next()
+	if err != nil {
+		return err
+	}
+	if ok {
+		return m.errf("unexpected content %q after the %d declared %s", trim(s), n, what)
+	}
+	return nil
 }
 
 func parseInts(s string, want int) ([]int, bool) {
@@ -115,12 +161,9 @@ func parseValue(s string, line int, field string) (float64, error) {
 // filled in). Duplicate entries are summed. Errors name the line.
 func ReadMatrixMarket(r io.Reader) (*CSR, error) {
 	m := newMMReader(r)
-	h, err := m.header("matrix")
+	h, err := m.header("coordinate", "a sparse matrix")
 	if err != nil {
 		return nil, err
-	}
-	if h.format != "coordinate" {
-		return nil, m.errf("format %q not supported for a sparse matrix (allowed: coordinate)", h.format)
 	}
 	switch h.field {
 	case "real", "integer", "pattern":
@@ -132,15 +175,11 @@ func ReadMatrixMarket(r io.Reader) (*CSR, error) {
 	default:
 		return nil, m.errf("symmetry %q not supported (allowed: general, symmetric, skew-symmetric)", h.symmetry)
 	}
-	s, ok, err := m.next()
+	s, sz, err := m.sizeLine(3, "rows cols entries")
 	if err != nil {
 		return nil, err
 	}
-	if !ok {
-		return nil, m.errf("missing size line \"rows cols entries\"")
-	}
-	sz, ok := parseInts(s, 3)
-	if !ok || sz[0] < 0 || sz[1] < 0 || sz[2] < 0 {
+	if sz == nil || sz[0] < 0 || sz[1] < 0 || sz[2] < 0 {
 		return nil, m.errf("size line %q must be three non-negative integers: rows cols entries", s)
 	}
 	rows, cols, nnz := sz[0], sz[1], sz[2]
@@ -162,12 +201,9 @@ func ReadMatrixMarket(r io.Reader) (*CSR, error) {
 		want = 2
 	}
 	for k := 0; k < nnz; k++ {
-		s, ok, err := m.next()
+		s, err := m.data(k, nnz, "entries")
 		if err != nil {
 			return nil, err
-		}
-		if !ok {
-			return nil, m.errf("end of input after %d of %d entries", k, nnz)
 		}
 		f := strings.Fields(s)
 		if len(f) != want {
@@ -203,10 +239,8 @@ func ReadMatrixMarket(r io.Reader) (*CSR, error) {
 			t.Add(i-1, j-1, v)
 		}
 	}
-	if s, ok, err := m.next(); err != nil {
+	if err := m.end(nnz, "entries"); err != nil {
 		return nil, err
-	} else if ok {
-		return nil, m.errf("unexpected content %q after the %d declared entries", trim(s), nnz)
 	}
 	return t.CSR(), nil
 }
@@ -247,12 +281,9 @@ func WriteMatrixMarket(w io.Writer, a *CSR) error {
 // values).
 func ReadVector(r io.Reader) ([]float64, error) {
 	m := newMMReader(r)
-	h, err := m.header("matrix")
+	h, err := m.header("array", "a vector")
 	if err != nil {
 		return nil, err
-	}
-	if h.format != "array" {
-		return nil, m.errf("format %q not supported for a vector (allowed: array)", h.format)
 	}
 	if h.field != "real" && h.field != "integer" {
 		return nil, m.errf("field %q not supported for a vector (allowed: real, integer)", h.field)
@@ -260,15 +291,11 @@ func ReadVector(r io.Reader) ([]float64, error) {
 	if h.symmetry != "general" {
 		return nil, m.errf("symmetry %q not supported for a vector (allowed: general)", h.symmetry)
 	}
-	s, ok, err := m.next()
+	s, sz, err := m.sizeLine(2, "n 1")
 	if err != nil {
 		return nil, err
 	}
-	if !ok {
-		return nil, m.errf("missing size line \"n 1\"")
-	}
-	sz, ok := parseInts(s, 2)
-	if !ok || sz[0] < 0 || sz[1] != 1 {
+	if sz == nil || sz[0] < 0 || sz[1] != 1 {
 		return nil, m.errf("size line %q must be \"n 1\" with n ≥ 0 (one column)", s)
 	}
 	if sz[0] > maxMMEntries {
@@ -276,12 +303,9 @@ func ReadVector(r io.Reader) ([]float64, error) {
 	}
 	v := make([]float64, 0, min(sz[0], 1<<20))
 	for k := 0; k < sz[0]; k++ {
-		s, ok, err := m.next()
+		s, err := m.data(k, sz[0], "values")
 		if err != nil {
 			return nil, err
-		}
-		if !ok {
-			return nil, m.errf("end of input after %d of %d values", k, sz[0])
 		}
 		if len(strings.Fields(s)) != 1 {
 			return nil, m.errf("value line %q: want one number", trim(s))
@@ -292,10 +316,8 @@ func ReadVector(r io.Reader) ([]float64, error) {
 		}
 		v = append(v, x)
 	}
-	if s, ok, err := m.next(); err != nil {
+	if err := m.end(sz[0], "values"); err != nil {
 		return nil, err
-	} else if ok {
-		return nil, m.errf("unexpected content %q after the %d declared values", trim(s), sz[0])
 	}
 	return v, nil
 }

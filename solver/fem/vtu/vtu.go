@@ -182,6 +182,25 @@ func (x *writer) block(data []byte) {
 	}
 }
 
+// text writes n values in ASCII on a new line: value i as appendValue
+// appends it to a buffer, followed by a line break where lineEnd(i) says
+// so and by a space elsewhere.
+func (x *writer) text(n int, appendValue func(buf []byte, i int) []byte, lineEnd func(i int) bool) {
+	x.printf("\n")
+	buf := make([]byte, 0, 32)
+	for i := 0; i < n; i++ {
+		buf = appendValue(buf[:0], i)
+		if lineEnd(i) {
+			buf = append(buf, '\n')
+		} else {
+			buf = append(buf, ' ')
+		}
+		if x.err == nil {
+			_, x.err = x.w.Write(buf)
+		}
+	}
+}
+
 func (x *writer) floats(name string, comps int, v []float64) {
 	nameAttr := ""
 	if name != "" {
@@ -189,19 +208,9 @@ func (x *writer) floats(name string, comps int, v []float64) {
 	}
 	x.printf(`<DataArray type="Float64"%s NumberOfComponents="%d" format="%s">`, nameAttr, comps, x.format())
 	if x.enc == ASCII {
-		x.printf("\n")
-		buf := make([]byte, 0, 32)
-		for i, f := range v {
-			buf = strconv.AppendFloat(buf[:0], f, 'g', -1, 64)
-			if (i+1)%comps == 0 {
-				buf = append(buf, '\n')
-			} else {
-				buf = append(buf, ' ')
-			}
-			if x.err == nil {
-				_, x.err = x.w.Write(buf)
-			}
-		}
+		x.text(len(v), func(buf []byte, i int) []byte {
+			return strconv.AppendFloat(buf, v[i], 'g', -1, 64)
+		}, func(i int) bool { return (i+1)%comps == 0 })
 	} else {
 		b := make([]byte, 8*len(v))
 		for i, f := range v {
@@ -219,19 +228,9 @@ func (x *writer) ints(typ, name string, v []int64, tuples int) {
 	}
 	x.printf(`<DataArray type="%s" Name="%s"%s format="%s">`, typ, xmlAttr(name), extra, x.format())
 	if x.enc == ASCII {
-		x.printf("\n")
-		buf := make([]byte, 0, 16)
-		for i, n := range v {
-			buf = strconv.AppendInt(buf[:0], n, 10)
-			if i%12 == 11 || i == len(v)-1 {
-				buf = append(buf, '\n')
-			} else {
-				buf = append(buf, ' ')
-			}
-			if x.err == nil {
-				_, x.err = x.w.Write(buf)
-			}
-		}
+		x.text(len(v), func(buf []byte, i int) []byte {
+			return strconv.AppendInt(buf, v[i], 10)
+		}, func(i int) bool { return i%12 == 11 || i == len(v)-1 })
 	} else {
 		var b []byte
 		switch typ {
