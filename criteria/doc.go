@@ -10,7 +10,7 @@
 //
 // The measures:
 //
-//   - KField / WilliamsDisplacement / WilliamsStress: the leading terms of the
+//   - KField / WilliamsDisplacement: the leading terms of the
 //     mode-I crack-tip field (Williams 1957, J. Appl. Mech. 24), in plane
 //     strain, with an optional T-stress; FarFieldJ = K²(1−ν²)/E (Irwin; Rice
 //     1968, J. Appl. Mech. 35).

@@ -202,8 +202,3 @@ func (k KField) StressFace(x [2]float64, face Face) material.Sym {
 func WilliamsDisplacement(K, T float64, el Elastic, tip, dir [2]float64, x [2]float64) [2]float64 {
 	return KField{K: K, T: T, El: el, Tip: tip, Dir: dir}.Displacement(x)
 }
-
-// WilliamsStress returns the matching stress (see KField.Stress).
-func WilliamsStress(K, T float64, el Elastic, tip, dir [2]float64, x [2]float64) material.Sym {
-	return KField{K: K, T: T, El: el, Tip: tip, Dir: dir}.Stress(x)
-}

@@ -252,11 +252,6 @@ func (e *attemptError) Error() string {
 }
 func (e *attemptError) Unwrap() error { return e.err }
 
-// ResetHistory forgets the previous increment (no extrapolation into the
-// next one); call it after changing the problem's state from outside
-// (state transfer, new boundary conditions).
-func (s *Solver) ResetHistory() { s.dtPrev = 0 }
-
 // Increment attempts one increment from the committed state to time t. On
 // success the state is committed and the step returned; on failure the
 // problem is rolled back to the committed state and the error says why.

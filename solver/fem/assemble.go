@@ -138,9 +138,6 @@ func (p *Problem) buildColours() error {
 	return nil
 }
 
-// Colours returns the number of assembly colours.
-func (p *Problem) Colours() int { return len(p.colours) }
-
 // Assemble evaluates the residual at p.U (Full, and Res with constrained
 // rows cleared) and, if tangent is true, the tangent K. It integrates the
 // material from the committed state; the result becomes the committed one

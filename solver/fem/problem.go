@@ -314,9 +314,6 @@ func (p *Problem) initElements() {
 	}
 }
 
-// NumElements returns the number of triangles.
-func (p *Problem) NumElements() int { return len(p.Mesh.Tri) }
-
 // Regularised reports whether the ā, λ fields are present (c > 0).
 func (p *Problem) Regularised() bool { return p.reg }
 
@@ -579,15 +576,6 @@ func (p *Problem) NodeReaction(n int) ([2]float64, error) {
 	return [2]float64{p.Full[p.Dofs.Of(n, Ux)], p.Full[p.Dofs.Of(n, Uy)]}, nil
 }
 
-// PointReaction returns the residual force at a named node.
-func (p *Problem) PointReaction(point string) ([2]float64, error) {
-	n, ok := p.Mesh.Points[point]
-	if !ok {
-		return [2]float64{}, fmt.Errorf("fem: no named point %q", point)
-	}
-	return [2]float64{p.Full[p.Dofs.Of(n, Ux)], p.Full[p.Dofs.Of(n, Uy)]}, nil
-}
-
 // PinForce returns the force of pin i (in the order of BCs.Pins) in its
 // loading component: the reaction summed over its contact arc.
 func (p *Problem) PinForce(i int) (float64, error) {
@@ -599,16 +587,6 @@ func (p *Problem) PinForce(i int) (float64, error) {
 		f += p.Full[p.Dofs.Of(n, Field(p.pinComp[i]))]
 	}
 	return f, nil
-}
-
-// ExternalWork returns Σ f_ext·u of the dead loads at time t for the
-// unknowns u (for energy checks).
-func (p *Problem) ExternalWork(u []float64, t float64) float64 {
-	var w float64
-	for _, d := range p.fextList {
-		w += t * p.fext[d] * u[d]
-	}
-	return w
 }
 
 // LoadScale returns the largest nodal load at the current time,

@@ -193,9 +193,6 @@ func NewGTN(p GTNParams) (*GTN, error) {
 	return m, nil
 }
 
-// Params returns the parameters the model was built with.
-func (m *GTN) Params() GTNParams { return m.par }
-
 // Sigma0 returns the initial yield stress σ₀ = R(0).
 func (m *GTN) Sigma0() float64 { return m.sigma0 }
 

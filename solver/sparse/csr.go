@@ -114,28 +114,6 @@ func (a *CSR) Check() error {
 	return nil
 }
 
-// Transpose returns Aᵀ as a new matrix.
-func (a *CSR) Transpose() *CSR {
-	t := &CSR{Rows: a.Cols, Cols: a.Rows, RowPtr: make([]int, a.Cols+1), ColInd: make([]int, len(a.ColInd)), Val: make([]float64, len(a.Val))}
-	for _, j := range a.ColInd {
-		t.RowPtr[j+1]++
-	}
-	for j := 0; j < a.Cols; j++ {
-		t.RowPtr[j+1] += t.RowPtr[j]
-	}
-	next := make([]int, a.Cols)
-	copy(next, t.RowPtr[:a.Cols])
-	for i := 0; i < a.Rows; i++ {
-		for p := a.RowPtr[i]; p < a.RowPtr[i+1]; p++ {
-			q := next[a.ColInd[p]]
-			next[a.ColInd[p]]++
-			t.ColInd[q] = i
-			t.Val[q] = a.Val[p]
-		}
-	}
-	return t
-}
-
 // Triplet collects matrix entries in coordinate form. Entries added more
 // than once at the same position are summed by CSR.
 type Triplet struct {
@@ -152,9 +130,6 @@ func NewTriplet(rows, cols int) *Triplet {
 	}
 	return &Triplet{rows: rows, cols: cols}
 }
-
-// Dims returns the dimensions of the matrix being built.
-func (t *Triplet) Dims() (rows, cols int) { return t.rows, t.cols }
 
 // Len returns the number of entries added so far, duplicates included.
 func (t *Triplet) Len() int { return len(t.v) }
