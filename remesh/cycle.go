@@ -137,7 +137,7 @@ type RemeshFailureObserver interface {
 }
 
 // remeshAttempts is how many times in a row a remesh may fail before the
-// run stops (see DEVELOPERS.md, decision log: a failed re-equilibration
+// run stops (DEVELOPERS.md, Decisions → the adaptive cycle: a failed re-equilibration
 // passed one step later).
 const remeshAttempts = 3
 
