@@ -77,12 +77,9 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	}
 
 	so := solver.DefaultOptions()
+	so.EasyIter = caseEasyIter
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement
 	so.MaxSteps, so.MaxIter, so.RTol = c.Stop.MaxSteps, c.Solver.MaxIter, c.Solver.Tolerance
-	// A quadratically converging step of a softening material takes 4–6
-	// iterations; count up to 5 as easy so the increment can grow again
-	// after a cut-back.
-	so.EasyIter = 5
 	cfg.Solver = so
 
 	tipNames := d.Tips()
@@ -105,11 +102,12 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
 	cfg.Trigger = trigger.DefaultOptions(unit)
 	cfg.Trigger.Margin = c.Adapt.Margin
+	// the level the cycle locates the front at (criteria.FrontOptions' 2·f_c)
 	cfg.Trigger.FrontLevel = 2 * c.Material.Fc
 	cfg.Trigger.PAlert = c.Adapt.AlertP
 	cfg.Trigger.MaxRemesh = c.Adapt.MaxRuns
 	if cfg.Trigger.MaxRemesh == 0 {
-		cfg.Trigger.MaxRemesh = 1 << 30
+		cfg.Trigger.MaxRemesh = caseNoRemeshLimit
 	}
 	cfg.Follow = size.DefaultFollowOptions(unit, c.Mesh.HFar)
 	cfg.Follow.Kappa = unit / c.Mesh.HFine
