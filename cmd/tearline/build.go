@@ -223,19 +223,12 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 // loadingKey is the key of [loading] a field of the specimen's load comes
 // from.
 func loadingKey(f specimen.Field) string {
-	switch f {
-	case specimen.FieldKind:
-		return "loading.kind"
-	case specimen.FieldK:
-		return "loading.k"
-	case specimen.FieldLabel:
-		return "loading.label"
-	case specimen.FieldComp:
-		return "loading.component"
-	case specimen.FieldFix:
-		return "loading.fix"
-	case specimen.FieldOpening:
-		return "loading.opening"
+	keys := map[specimen.Field]string{
+		specimen.FieldKind: "kind", specimen.FieldK: "k", specimen.FieldLabel: "label",
+		specimen.FieldComp: "component", specimen.FieldFix: "fix", specimen.FieldOpening: "opening",
+	}
+	if k, ok := keys[f]; ok {
+		return "loading." + k
 	}
 	return "loading"
 }
