@@ -87,11 +87,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		return nil, err
 	}
 
-	// The zones and rings of a local model are measured in 2·h_fine.
-	unit := c.Material.Length
-	if !(unit > 0) {
-		unit = 2 * c.Mesh.HFine
-	}
+	unit := c.unit()
 	if len(tipNames) > 0 && !d.Axisymmetric {
 		cfg.J = &remesh.JConfig{Unit: unit, Rings: []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}}
 		// Rings must stay inside the body: scale them down on small domains.

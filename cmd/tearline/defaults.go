@@ -61,8 +61,8 @@ const (
 const (
 	defaultFieldsEvery       = 10 // output.fields_every, steps
 	defaultCheckpointMinutes = 15 // output.checkpoint_minutes
-	// defaultOpeningAt is loading.opening_at in ℓ (2·h_fine for a local
-	// model) behind the initial tip.
+	// defaultOpeningAt is loading.opening_at behind the initial tip, in ℓ
+	// (caseFile.unit for a local model).
 	defaultOpeningAt = 5
 	// farScaleFraction: the default h_far is at most the domain's size over
 	// this, so that even the coarsest elements are some 20 across the body.
