@@ -89,10 +89,11 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 
 	unit := c.unit()
 	if len(tipNames) > 0 && !d.Axisymmetric {
-		cfg.J = &remesh.JConfig{Unit: unit, Rings: []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}}
+		rings := []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}
+		cfg.J = &remesh.JConfig{Unit: unit, Rings: rings}
 		// Rings must stay inside the body: scale them down on small domains.
-		if lim := 0.25 * d.Scale(); 16*unit > lim {
-			cfg.J.Unit = lim / 16
+		if lim, out := 0.25*d.Scale(), rings[len(rings)-1].Out; out*unit > lim {
+			cfg.J.Unit = lim / out
 		}
 	}
 	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
