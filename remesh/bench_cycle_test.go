@@ -19,7 +19,7 @@ import (
 // that the full boundary-layer disk carries about 5·10⁴ unknowns.
 func benchFollow(ell, hFar float64) size.FollowOptions {
 	f := size.DefaultFollowOptions(ell, hFar)
-	f.Ahead, f.Behind, f.Width, f.Spread, f.Grade = 8, 2, 6, 7, 0.3
+	f.Ahead, f.Behind, f.Width, f.Spread, f.Grading = 8, 2, 6, 7, 0.3
 	return f
 }
 

@@ -181,6 +181,7 @@ func plasticSSY(t *testing.T, k, fineRadius float64) (CycleConfig, *material.GTN
 	cfg.Size = size.Options{HFine: 0.1, HFar: 2, FineRadius: fineRadius}
 	cfg.Adapt = true
 	cfg.Trigger = trigger.DefaultOptions(0.2)
+	cfg.Trigger.FrontLevel = 0.3 // the level these tests were tuned at (2·f_c would be 0.04)
 	cfg.Follow = size.DefaultFollowOptions(0.2, 2)
 	cfg.Carve = carve.DefaultOptions()
 	cfg.Transfer = transfer.DefaultOptions()

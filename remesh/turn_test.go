@@ -107,7 +107,7 @@ func turnConfig(t testing.TB, tc turnCase) CycleConfig {
 	cfg.Trigger.Margin = 1
 	cfg.Trigger.FrontLevel = 2 * par.FC
 	cfg.Follow.Kappa = ell / hFine
-	cfg.Follow.Ahead, cfg.Follow.Width, cfg.Follow.Spread, cfg.Follow.Grade, cfg.Follow.Wake = tc.Ahead, tc.Width, tc.Spread, 0.3, tc.Wake
+	cfg.Follow.Ahead, cfg.Follow.Width, cfg.Follow.Spread, cfg.Follow.Grading, cfg.Follow.Wake = tc.Ahead, tc.Width, tc.Spread, 0.3, tc.Wake
 	cfg.Size.Ahead = cfg.Follow.Ahead * ell
 	cfg.Transfer.F0, cfg.Transfer.FBreak = par.F0, par.BreakPorosity()
 	return cfg

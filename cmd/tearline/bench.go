@@ -87,7 +87,7 @@ func benchCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprint(stderr, "tearline bench solve: missing FILE.mtx\n"+benchUsage)
 		return 2
 	}
-	a, err := readMatrixFile(file)
+	a, err := readFile(file, sparse.ReadMatrixMarket)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline bench solve: %v\n", err)
 		return 2
@@ -98,7 +98,7 @@ func benchCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	var b []float64
 	if rhsFile != "" {
-		b, err = readVectorFile(rhsFile)
+		b, err = readFile(rhsFile, sparse.ReadVector)
 		if err != nil {
 			fmt.Fprintf(stderr, "tearline bench solve: %v\n", err)
 			return 2
@@ -163,28 +163,17 @@ func benchCommand(args []string, stdout, stderr io.Writer) int {
 	return 0
 }
 
-func readMatrixFile(name string) (*sparse.CSR, error) {
+// readFile opens the file name and reads it with read; errors name the file.
+func readFile[T any](name string, read func(io.Reader) (T, error)) (T, error) {
 	f, err := os.Open(name)
 	if err != nil {
-		return nil, err
+		var zero T
+		return zero, err
 	}
 	defer f.Close()
-	a, err := sparse.ReadMatrixMarket(f)
+	v, err := read(f)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
+		err = fmt.Errorf("%s: %w", name, err)
 	}
-	return a, nil
-}
-
-func readVectorFile(name string) ([]float64, error) {
-	f, err := os.Open(name)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	v, err := sparse.ReadVector(f)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	return v, nil
+	return v, err
 }

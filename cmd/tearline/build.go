@@ -77,12 +77,9 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	}
 
 	so := solver.DefaultOptions()
+	so.EasyIter = caseEasyIter
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement
 	so.MaxSteps, so.MaxIter, so.RTol = c.Stop.MaxSteps, c.Solver.MaxIter, c.Solver.Tolerance
-	// A quadratically converging step of a softening material takes 4–6
-	// iterations; count up to 5 as easy so the increment can grow again
-	// after a cut-back.
-	so.EasyIter = 5
 	cfg.Solver = so
 
 	tipNames := d.Tips()
@@ -90,26 +87,24 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 		return nil, err
 	}
 
-	// The zones and rings of a local model are measured in 2·h_fine.
-	unit := c.Material.Length
-	if !(unit > 0) {
-		unit = 2 * c.Mesh.HFine
-	}
+	unit := c.unit()
 	if len(tipNames) > 0 && !d.Axisymmetric {
-		cfg.J = &remesh.JConfig{Unit: unit, Rings: []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}}
+		rings := []criteria.Ring{{In: 2, Out: 4}, {In: 4, Out: 8}, {In: 8, Out: 16}}
+		cfg.J = &remesh.JConfig{Unit: unit, Rings: rings}
 		// Rings must stay inside the body: scale them down on small domains.
-		if lim := 0.25 * d.Scale(); 16*unit > lim {
-			cfg.J.Unit = lim / 16
+		if lim, out := 0.25*d.Scale(), rings[len(rings)-1].Out; out*unit > lim {
+			cfg.J.Unit = lim / out
 		}
 	}
 	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
 	cfg.Trigger = trigger.DefaultOptions(unit)
 	cfg.Trigger.Margin = c.Adapt.Margin
+	// the level the cycle locates the front at (criteria.FrontOptions' 2·f_c)
 	cfg.Trigger.FrontLevel = 2 * c.Material.Fc
 	cfg.Trigger.PAlert = c.Adapt.AlertP
 	cfg.Trigger.MaxRemesh = c.Adapt.MaxRuns
 	if cfg.Trigger.MaxRemesh == 0 {
-		cfg.Trigger.MaxRemesh = 1 << 30
+		cfg.Trigger.MaxRemesh = caseNoRemeshLimit
 	}
 	cfg.Follow = size.DefaultFollowOptions(unit, c.Mesh.HFar)
 	cfg.Follow.Kappa = unit / c.Mesh.HFine
@@ -225,19 +220,12 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 // loadingKey is the key of [loading] a field of the specimen's load comes
 // from.
 func loadingKey(f specimen.Field) string {
-	switch f {
-	case specimen.FieldKind:
-		return "loading.kind"
-	case specimen.FieldK:
-		return "loading.k"
-	case specimen.FieldLabel:
-		return "loading.label"
-	case specimen.FieldComp:
-		return "loading.component"
-	case specimen.FieldFix:
-		return "loading.fix"
-	case specimen.FieldOpening:
-		return "loading.opening"
+	keys := map[specimen.Field]string{
+		specimen.FieldKind: "kind", specimen.FieldK: "k", specimen.FieldLabel: "label",
+		specimen.FieldComp: "component", specimen.FieldFix: "fix", specimen.FieldOpening: "opening",
+	}
+	if k, ok := keys[f]; ok {
+		return "loading." + k
 	}
 	return "loading"
 }

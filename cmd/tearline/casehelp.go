@@ -1,7 +1,16 @@
 package main
 
-// caseHelp lists the case-file keys (tearline help case).
-const caseHelp = `tearline case file (TOML). Every key has a default except the geometry.
+import (
+	"strconv"
+	"strings"
+
+	"tearline/remesh/size"
+	"tearline/remesh/tri"
+)
+
+// caseHelpText lists the case-file keys (tearline help case); caseHelp
+// fills in the {defaults}.
+const caseHelpText = `tearline case file (TOML). Every key has a default except the geometry.
 Unknown keys and invalid values are errors that name the file, line and key.
 Override any key on the command line with --set section.key=value.
 
@@ -20,45 +29,79 @@ kind = "ssy" | "ct" | "notched_bar" | "dent" | "polygon"
                         tip, direction, reference
 
 [mesh]
-h_fine       size in the fine zone at each crack tip (default material.length/2)
-h_far        largest size; fine_radius, ahead, grading (0, 1], min_angle [20, 34], max_points
+h_fine       size in the fine zone at each crack tip (default material.length/{kappa})
+h_far        largest size (default {far_factor} h_fine, at most the domain's size/{far_scale})
+fine_radius ({fine_radius} h_fine), ahead (0), grading (0, 1] ({grading}),
+min_angle [{min_angle_lo}, {min_angle_hi}] ({min_angle}), max_points ({max_points})
 
 [material]
 model        "gtn" (default) or "elastic"
-young, poisson                         E > 0, ν in (−1, 0.5)
-yield_stress                           σ₀ (default 400)
-hardening    "power" σ₀(1 + p/ε₀)ⁿ (hardening_exponent n, reference_strain ε₀ = σ₀/E by default),
+young, poisson                         E > 0, ν in (−1, 0.5) (defaults {young}, {poisson})
+yield_stress                           σ₀ (default {yield})
+hardening    "power" σ₀(1 + p/ε₀)ⁿ (hardening_exponent n, reference_strain ε₀; defaults {exponent}, {ref_strain}),
              "voce" σ₀ + Q(1 − e^(−bp)) (voce_saturation Q, voce_rate b),
              "table" (flow_table = [[p, σ], …] from p = 0), "perfect"
-q1, q2, f0, fc, ff                     GTN (defaults 1.5, 1, 0.002, 0.02, 0.2); 0 ≤ f0 < fc < ff < 1/q1
+q1, q2, f0, fc, ff                     GTN (defaults {q1}, {q2}, {f0}, {fc}, {ff}); 0 ≤ f0 < fc < ff < 1/q1
 f_break                                porosity of a broken point (default: f* = 0.95/q1)
 nucleation_fraction, nucleation_strain, nucleation_spread   Chu–Needleman (off by default)
 length                                 internal length ℓ (0 = local GTN)
-penalty                                augmentation penalty r, in units of σ₀ (default 1)
+penalty                                augmentation penalty r, in units of σ₀ (default {penalty})
 
 [loading]
 kind         "k_field" (remote Williams field: k, t_stress), "pin" (C(T) pin: value),
              "displacement" (label, component, value), "pressure" (label, value);
              default: the specimen's natural load. Magnitudes are those at t = 1.
 control      "load" (t scales the load) or "opening" (k_field only: t drives the crack
-             opening at opening_at behind the initial tip (default 5ℓ), which reaches
+             opening at opening_at behind the initial tip (default {opening_at}ℓ), which reaches
              opening at t = 1; the load factor K/k is solved for — for tearing at
              nearly constant K, where load control stalls)
 [[loading.fix]]  label, component ("x", "y", "r", "z", "both") — extra supports
 
 [solver]
-increment, min_increment, max_increment   of the pseudo-time t (defaults 0.02, 1e-6, 0.1)
-max_iterations (15), tolerance (1e-6, relative to each field's force scale), mixed (true: u–θ–P element), workers (0 = all cores)
-release_steps (5): converged steps over which an element with a broken point gives up its force
+increment, min_increment, max_increment   of the pseudo-time t (defaults {increment}, {min_increment}, {max_increment})
+max_iterations ({max_iterations}), tolerance ({tolerance}, relative to each field's force scale), mixed ({mixed}: u–θ–P element), workers (0 = all cores)
+release_steps ({release_steps}): converged steps over which an element with a broken point gives up its force
              (element vanish); 0 = an element leaves only once all its points are broken
 
 [stop]
-t (1), da (0 = no limit), max_steps, hours (0 = no limit)
+t ({t}), da (0 = no limit), max_steps ({max_steps}), hours (0 = no limit)
 
 [output]
-fields_every (10 steps), checkpoint_minutes (15)
+fields_every ({fields_every} steps), checkpoint_minutes ({checkpoint_minutes})
 
 [adapt]
-enabled (true when the geometry has a crack tip), margin (ℓ), ahead (ℓ), wake (× h_fine),
-alert_plastic_strain (0.1), max_remeshes (0 = no limit), coarsen_wake, simplify (× local size)
+enabled (true when the geometry has a crack tip), margin ({margin}ℓ), ahead ({ahead}ℓ),
+wake ({wake} × h_fine), alert_plastic_strain ({alert_plastic_strain}), max_remeshes (0 = no limit),
+coarsen_wake ({coarsen_wake}), simplify ({simplify} × local size)
 `
+
+// caseHelp returns the case-file help with the defaults the case takes
+// (defaults.go), so that the help cannot disagree with them.
+func caseHelp() string {
+	m, s, st, o, a := materialDefaults(), solverDefaults(), stopDefaults(), outputDefaults(), adaptDefaults()
+	g, d := helpNumber, strconv.Itoa
+	return strings.NewReplacer(
+		"{kappa}", d(size.DefaultKappa), "{far_factor}", d(size.DefaultFarFactor), "{far_scale}", d(farScaleFraction),
+		"{fine_radius}", d(size.DefaultFineRadiusFactor), "{grading}", g(size.DefaultGrading),
+		"{min_angle_lo}", d(lowestMinAngle), "{min_angle_hi}", d(tri.MaxMinAngle), "{min_angle}", d(tri.DefaultMinAngle),
+		"{max_points}", d(tri.DefaultMaxPoints),
+		"{young}", g(m.Young), "{poisson}", g(m.Poisson), "{yield}", g(m.Yield),
+		"{exponent}", g(m.Exponent), "{ref_strain}", g(m.RefStrain),
+		"{q1}", g(m.Q1), "{q2}", g(m.Q2), "{f0}", g(m.F0), "{fc}", g(m.Fc), "{ff}", g(m.Ff), "{penalty}", g(m.Penalty),
+		"{opening_at}", d(defaultOpeningAt),
+		"{increment}", g(s.Increment), "{min_increment}", g(s.MinIncrement), "{max_increment}", g(s.MaxIncrement),
+		"{max_iterations}", d(s.MaxIter), "{tolerance}", g(s.Tolerance), "{mixed}", strconv.FormatBool(*s.Mixed),
+		"{release_steps}", d(*s.ReleaseSteps),
+		"{t}", g(st.T), "{max_steps}", d(st.MaxSteps),
+		"{fields_every}", d(o.FieldsEvery), "{checkpoint_minutes}", g(o.CheckpointMinutes),
+		"{margin}", g(a.Margin), "{ahead}", g(a.Ahead), "{wake}", g(a.Wake), "{alert_plastic_strain}", g(a.AlertP),
+		"{coarsen_wake}", strconv.FormatBool(*a.Coarsen), "{simplify}", g(a.Simplify),
+	).Replace(caseHelpText)
+}
+
+// helpNumber writes v as a case file would: the shortest form, exponents
+// without padding (1e-6, not 1e-06).
+func helpNumber(v float64) string {
+	t := strconv.FormatFloat(v, 'g', -1, 64)
+	return strings.NewReplacer("e-0", "e-", "e+0", "e+").Replace(t)
+}

@@ -21,15 +21,11 @@ LU factors, and the memory the solve will need. Exit status 0 valid, 2 bad input
 func checkCommand(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("check", checkUsage, stderr)
 	sets := setOverrides(fs)
-	pos, code, done := parseCommand(fs, args)
+	path, code, done := oneArgument(fs, args, "tearline check: need one case file", checkUsage, stderr)
 	if done {
 		return code
 	}
-	if len(pos) != 1 {
-		fmt.Fprintf(stderr, "tearline check: need one case file\n%s", checkUsage)
-		return 2
-	}
-	c, src, rs, err := prepareCase(pos[0], *sets)
+	c, src, rs, err := prepareCase(path, *sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2
@@ -42,7 +38,7 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	m, rep, err := meshing.Mesh(rs.domain, sf.At, rs.cfg.Mesh)
 	if err != nil {
-		fmt.Fprintf(stderr, "tearline: meshing %s: %v\n", pos[0], err)
+		fmt.Fprintf(stderr, "tearline: meshing %s: %v\n", path, err)
 		return 2
 	}
 	meshTime := time.Since(t0)
@@ -53,7 +49,7 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	p, err := fem.NewProblem(m, rs.cfg.Material, rs.cfg.FE, bcs)
 	if err != nil {
-		fmt.Fprintf(stderr, "tearline: %s: %v\n", pos[0], err)
+		fmt.Fprintf(stderr, "tearline: %s: %v\n", path, err)
 		return 2
 	}
 	defer p.Close()
@@ -76,7 +72,7 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 	// Gauss-point state (old and new) and vectors — a rough but honest sum.
 	nq := fem.ElementRule().Len()
 	mb := (float64(nnzLU)*12 + float64(nnzK)*12 + float64(len(m.Tri)*nq)*2*80 + float64(p.Dofs.N)*8*12) / (1 << 20)
-	fmt.Fprintf(stdout, "case %s: valid\n", pos[0])
+	fmt.Fprintf(stdout, "case %s: valid\n", path)
 	fmt.Fprintf(stdout, "  geometry     %s, %d boundary labels, %d named points, area %.6g\n", c.Geometry.Kind, len(rs.domain.Labels()), len(rs.domain.Points), rs.domain.Area())
 	fmt.Fprintf(stdout, "  first mesh   %d triangles, %d nodes, min angle %.1f°, size ratio max %.2f (%.2fs)\n",
 		rep.Triangles, rep.Nodes, rep.MinAngleDeg, rep.SizeRatioMax, meshTime.Seconds())

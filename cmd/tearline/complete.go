@@ -1,6 +1,9 @@
 package main
 
-import "tearline/remesh/geom"
+import (
+	"tearline/remesh/geom"
+	"tearline/remesh/size"
+)
 
 // complete fills defaults and validates every section of the case. The
 // geometry is built once here so that the loading and adaptivity defaults
@@ -22,11 +25,7 @@ func (c *caseFile) complete(src *caseSource) error {
 	c.specimen, c.size = sp, sf
 	_, hasTip := d.Points[geom.PointTip]
 	natural := loadKindName(sp.Natural)
-	unit := c.Material.Length // zones of a local model are measured in 2·h_fine
-	if !(unit > 0) {
-		unit = 2 * c.Mesh.HFine
-	}
-	if err := c.Loading.complete(src, natural, unit); err != nil {
+	if err := c.Loading.complete(src, natural, c.unit()); err != nil {
 		return err
 	}
 	if c.Loading.Control == "opening" {
@@ -44,4 +43,15 @@ func (c *caseFile) complete(src *caseSource) error {
 		return err
 	}
 	return c.Adapt.complete(src, hasTip)
+}
+
+// unit is the length the zones, rings and adaptive distances of the case are
+// measured in: the internal length ℓ, or for a local model (ℓ = 0) the ℓ
+// that h_fine would be the default of, size.DefaultKappa·h_fine. It needs
+// the [material] and [mesh] defaults filled in.
+func (c *caseFile) unit() float64 {
+	if c.Material.Length > 0 {
+		return c.Material.Length
+	}
+	return size.DefaultKappa * c.Mesh.HFine
 }

@@ -78,15 +78,12 @@ to DIR/case.toml; change it and use 'tearline run' to explore.
 `
 
 func demoCommand(args []string, stdout, stderr io.Writer) int {
-	fs := newFlags("demo", demoUsage, stderr)
-	out := fs.String("o", "demo-run", "run folder")
-	sets := setOverrides(fs)
-	pos, code, done := parseCommand(fs, args)
+	a, code, done := parseRunArgs("demo", demoUsage, "demo-run", args, stderr)
 	if done {
 		return code
 	}
-	if len(pos) != 0 {
-		fmt.Fprintf(stderr, "tearline demo: unexpected argument %q\n%s", pos[0], demoUsage)
+	if len(a.pos) != 0 {
+		fmt.Fprintf(stderr, "tearline demo: unexpected argument %q\n%s", a.pos[0], demoUsage)
 		return 2
 	}
 	tmp, err := os.MkdirTemp("", "tearline-demo-")
@@ -100,7 +97,7 @@ func demoCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
 	}
-	fmt.Fprintf(stdout, "tearline demo: adaptive crack growth in small-scale yielding, into %s\n", *out)
+	fmt.Fprintf(stdout, "tearline demo: adaptive crack growth in small-scale yielding, into %s\n", a.out)
 	fmt.Fprintln(stdout, "  "+caution)
-	return startRun(path, *out, *sets, stdout, stderr)
+	return startRun(path, a.out, a.sets, stdout, stderr)
 }

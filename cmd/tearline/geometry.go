@@ -314,23 +314,24 @@ func (pk *polygonKeys) polygon(src *caseSource) (geom.Polygon, error) {
 
 // meshSection is [mesh]: the size field and the mesher's settings.
 type meshSection struct {
-	HFine      float64 `toml:"h_fine"`      // size in the fine zone at each crack tip (default ℓ/2)
-	HFar       float64 `toml:"h_far"`       // largest size (default min(100 h_fine, domain size/20))
-	FineRadius float64 `toml:"fine_radius"` // radius of the fine zone (default 10 h_fine)
+	HFine      float64 `toml:"h_fine"`      // size in the fine zone at each crack tip (default ℓ/size.DefaultKappa)
+	HFar       float64 `toml:"h_far"`       // largest size (default size.DefaultFarFactor·h_fine, at most domain size/farScaleFraction)
+	FineRadius float64 `toml:"fine_radius"` // radius of the fine zone (default size.DefaultFineRadiusFactor·h_fine)
 	Ahead      float64 `toml:"ahead"`       // extra length of the fine zone ahead of each tip (default 0)
-	Grading    float64 `toml:"grading"`     // growth of h per unit distance, (0, 1] (default 0.25)
-	MinAngle   float64 `toml:"min_angle"`   // minimum-angle bound in degrees (default 28, at most 34)
-	MaxPoints  int     `toml:"max_points"`  // limit on inserted vertices (default 10 000 000)
+	Grading    float64 `toml:"grading"`     // growth of h per unit distance, (0, 1] (default size.DefaultGrading)
+	MinAngle   float64 `toml:"min_angle"`   // minimum-angle bound in degrees (default tri.DefaultMinAngle)
+	MaxPoints  int     `toml:"max_points"`  // limit on inserted vertices (default tri.DefaultMaxPoints)
 }
 
 // sizeField fills the defaults of the section and returns the size field.
-// length is material.length (ℓ), which sets the default h_fine = ℓ/2.
+// length is material.length (ℓ), which sets the default h_fine =
+// ℓ/size.DefaultKappa, the size the tip-following field keeps.
 func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64) (*size.Field, error) {
 	if m.HFine == 0 {
 		if !(length > 0) {
-			return nil, badInput("%s: missing; it defaults to material.length/2, but material.length is %g (a local model): give mesh.h_fine", src.where("mesh.h_fine"), length)
+			return nil, badInput("%s: missing; it defaults to material.length/%d, but material.length is %g (a local model): give mesh.h_fine", src.where("mesh.h_fine"), size.DefaultKappa, length)
 		}
-		m.HFine = length / 2
+		m.HFine = length / size.DefaultKappa
 	}
 	if err := positive(m.HFine, src, "mesh.h_fine"); err != nil {
 		return nil, err
@@ -338,7 +339,7 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 	if m.HFar == 0 {
 		m.HFar = size.DefaultFarFactor * m.HFine
 		if d != nil {
-			m.HFar = math.Max(m.HFine, math.Min(m.HFar, d.Scale()/20))
+			m.HFar = math.Max(m.HFine, math.Min(m.HFar, d.Scale()/farScaleFraction))
 		}
 	}
 	if err := positive(m.HFar, src, "mesh.h_far"); err != nil {
@@ -365,8 +366,8 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 	if m.MinAngle == 0 {
 		m.MinAngle = tri.DefaultMinAngle
 	}
-	if !(m.MinAngle >= 20 && m.MinAngle <= tri.MaxMinAngle) {
-		return nil, badInput("%s: %g° must lie in [20, %d] degrees", src.where("mesh.min_angle"), m.MinAngle, tri.MaxMinAngle)
+	if !(m.MinAngle >= lowestMinAngle && m.MinAngle <= tri.MaxMinAngle) {
+		return nil, badInput("%s: %g° must lie in [%d, %d] degrees", src.where("mesh.min_angle"), m.MinAngle, lowestMinAngle, tri.MaxMinAngle)
 	}
 	if m.MaxPoints == 0 {
 		m.MaxPoints = tri.DefaultMaxPoints

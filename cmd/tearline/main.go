@@ -63,7 +63,7 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 		return benchCommand(rest, stdout, stderr)
 	case "help", "-h", "--help":
 		if len(rest) > 0 && rest[0] == "case" {
-			fmt.Fprint(stdout, caseHelp)
+			fmt.Fprint(stdout, caseHelp())
 			return 0
 		}
 		fmt.Fprint(stdout, usage)

@@ -4,11 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
-	"strconv"
-	"strings"
 
 	"tearline/remesh"
 )
@@ -23,15 +20,10 @@ had never stopped. Exit status as for 'tearline run'.
 
 func resumeCommand(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("resume", resumeUsage, stderr)
-	pos, code, done := parseCommand(fs, args)
+	dir, code, done := oneArgument(fs, args, "tearline resume: need the run folder", resumeUsage, stderr)
 	if done {
 		return code
 	}
-	if len(pos) != 1 {
-		fmt.Fprintf(stderr, "tearline resume: need the run folder\n%s", resumeUsage)
-		return 2
-	}
-	dir := pos[0]
 	casePath := filepath.Join(dir, "case.toml")
 	c, _, rs, err := prepareCase(casePath, nil)
 	if err != nil {
@@ -94,47 +86,4 @@ func (ob *observer) restore(st observerState) error {
 	ob.pvd = st.Fields
 	ob.iters = st.Iters
 	return nil
-}
-
-// readHistory reads the first n data rows of history.csv.
-func readHistory(path string, n int) ([]historyRow, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, err
-	}
-	lines := strings.Split(string(data), "\n")
-	if len(lines) < n+1 {
-		return nil, fmt.Errorf("%s holds %d rows, the checkpoint expects at least %d", path, len(lines)-1, n)
-	}
-	var rows []historyRow
-	for i := 1; i <= n; i++ {
-		r, err := parseHistoryRow(lines[i])
-		if err != nil {
-			return nil, fmt.Errorf("%s line %d: %w", path, i+1, err)
-		}
-		rows = append(rows, r)
-	}
-	return rows, nil
-}
-
-func parseHistoryRow(line string) (historyRow, error) {
-	f := strings.Split(line, ",")
-	if len(f) != len(historyColumns) {
-		return historyRow{}, fmt.Errorf("%d fields, want %d", len(f), len(historyColumns))
-	}
-	num := func(s string) float64 {
-		if s == "" {
-			return math.NaN()
-		}
-		v, err := strconv.ParseFloat(s, 64)
-		if err != nil {
-			return math.NaN()
-		}
-		return v
-	}
-	in := func(s string) int { v, _ := strconv.Atoi(s); return v }
-	return historyRow{Step: in(f[0]), T: num(f[1]), Control: num(f[2]), Force: num(f[3]), JFar: num(f[4]),
-		JDomain: num(f[5]), Da: num(f[6]), DaProj: num(f[7]), CTOD: num(f[8]), Dofs: in(f[9]), Elements: in(f[10]),
-		Remeshes: in(f[11]), Iters: in(f[12]), Wall: num(f[13]), RSS: num(f[14]), JE1820: num(f[15]),
-		Tearing: num(f[16]), MaxPorosity: num(f[17])}, nil
 }

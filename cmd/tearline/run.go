@@ -53,18 +53,15 @@ Exit status: 0 completed, 1 stopped early (results so far kept), 2 bad input.
 `
 
 func runCommand(args []string, stdout, stderr io.Writer) int {
-	fs := newFlags("run", runUsage, stderr)
-	out := fs.String("o", "", "run folder")
-	sets := setOverrides(fs)
-	pos, code, done := parseCommand(fs, args)
+	a, code, done := parseRunArgs("run", runUsage, "", args, stderr)
 	if done {
 		return code
 	}
-	if len(pos) != 1 || *out == "" {
+	if len(a.pos) != 1 || a.out == "" {
 		fmt.Fprintf(stderr, "tearline run: need one case file and -o DIR\n%s", runUsage)
 		return 2
 	}
-	return startRun(pos[0], *out, *sets, stdout, stderr)
+	return startRun(a.pos[0], a.out, a.sets, stdout, stderr)
 }
 
 // startRun validates a case and runs it into dir.

@@ -72,9 +72,6 @@ type solverSection struct {
 	ReleaseSteps *int `toml:"release_steps"`
 }
 
-// defaultReleaseSteps is solver.release_steps when the case does not set it.
-const defaultReleaseSteps = 5
-
 // stopSection is [stop]: when the run ends.
 type stopSection struct {
 	T        float64 `toml:"t"`         // final pseudo-time
@@ -128,17 +125,18 @@ func nonNegative(v float64, src *caseSource, key string) error {
 }
 
 func (m *materialSection) complete(src *caseSource) error {
+	def := materialDefaults()
 	if m.Model == "" {
-		m.Model = "gtn"
+		m.Model = def.Model
 	}
 	if err := choice(m.Model, []string{"gtn", "elastic"}, src, "material.model"); err != nil {
 		return err
 	}
 	if m.Young == 0 {
-		m.Young = 200000
+		m.Young = def.Young
 	}
 	if src.lines["material.poisson"] == 0 && src.sets["material.poisson"] == "" && m.Poisson == 0 {
-		m.Poisson = 0.3
+		m.Poisson = def.Poisson
 	}
 	if err := positive(m.Young, src, "material.young"); err != nil {
 		return err
@@ -149,20 +147,12 @@ func (m *materialSection) complete(src *caseSource) error {
 	if m.Model == "elastic" {
 		return nil
 	}
-	defaults := []struct {
-		v   *float64
-		def float64
-	}{
-		{&m.Yield, 400}, {&m.Q1, 1.5}, {&m.Q2, 1.0}, {&m.F0, 0.002}, {&m.Fc, 0.02}, {&m.Ff, 0.2},
-		{&m.RefStrain, 0.002}, {&m.Exponent, 0.1}, {&m.Penalty, 1},
-	}
-	for _, d := range defaults {
-		if *d.v == 0 {
-			*d.v = d.def
-		}
-	}
+	fillZero([]defaultValue{
+		{&m.Yield, def.Yield}, {&m.Q1, def.Q1}, {&m.Q2, def.Q2}, {&m.F0, def.F0}, {&m.Fc, def.Fc}, {&m.Ff, def.Ff},
+		{&m.RefStrain, def.RefStrain}, {&m.Exponent, def.Exponent}, {&m.Penalty, def.Penalty},
+	})
 	if m.Hardening == "" {
-		m.Hardening = "power"
+		m.Hardening = def.Hardening
 	}
 	if err := choice(m.Hardening, []string{"power", "voce", "table", "perfect"}, src, "material.hardening"); err != nil {
 		return err
@@ -235,7 +225,7 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 			return badInput("%s: control = \"opening\" drives a remote K field (kind = \"k_field\"); kind %q is displacement-driven already or not supported", src.where("loading.control"), l.Kind)
 		}
 		if l.OpeningAt == 0 {
-			l.OpeningAt = 5 * unit
+			l.OpeningAt = defaultOpeningAt * unit
 		}
 		if err := checkEach(src, "loading", positive, []keyValue{{"opening", l.Opening}, {"opening_at", l.OpeningAt}}); err != nil {
 			return err
@@ -270,28 +260,19 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 }
 
 func (s *solverSection) complete(src *caseSource) error {
-	if s.Increment == 0 {
-		s.Increment = 0.02
-	}
-	if s.MaxIncrement == 0 {
-		s.MaxIncrement = 0.1
-	}
-	if s.MinIncrement == 0 {
-		s.MinIncrement = 1e-6
-	}
+	def := solverDefaults()
+	fillZero([]defaultValue{
+		{&s.Increment, def.Increment}, {&s.MaxIncrement, def.MaxIncrement},
+		{&s.MinIncrement, def.MinIncrement}, {&s.Tolerance, def.Tolerance},
+	})
 	if s.MaxIter == 0 {
-		s.MaxIter = 15
-	}
-	if s.Tolerance == 0 {
-		s.Tolerance = 1e-6
+		s.MaxIter = def.MaxIter
 	}
 	if s.Mixed == nil {
-		t := true
-		s.Mixed = &t
+		s.Mixed = def.Mixed
 	}
 	if s.ReleaseSteps == nil {
-		n := defaultReleaseSteps
-		s.ReleaseSteps = &n
+		s.ReleaseSteps = def.ReleaseSteps
 	}
 	if err := checkEach(src, "solver", positive, []keyValue{
 		{"increment", s.Increment},
@@ -318,11 +299,12 @@ func (s *solverSection) complete(src *caseSource) error {
 }
 
 func (s *stopSection) complete(src *caseSource) error {
+	def := stopDefaults()
 	if s.T == 0 {
-		s.T = 1
+		s.T = def.T
 	}
 	if s.MaxSteps == 0 {
-		s.MaxSteps = 100000
+		s.MaxSteps = def.MaxSteps
 	}
 	if err := positive(s.T, src, "stop.t"); err != nil {
 		return err
@@ -337,11 +319,12 @@ func (s *stopSection) complete(src *caseSource) error {
 }
 
 func (o *outputSection) complete(src *caseSource) error {
+	def := outputDefaults()
 	if o.FieldsEvery == 0 {
-		o.FieldsEvery = 10
+		o.FieldsEvery = def.FieldsEvery
 	}
 	if o.CheckpointMinutes == 0 {
-		o.CheckpointMinutes = 15
+		o.CheckpointMinutes = def.CheckpointMinutes
 	}
 	if o.FieldsEvery < 0 {
 		return badInput("%s: %d must be positive", src.where("output.fields_every"), o.FieldsEvery)
@@ -353,19 +336,14 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 	if a.Enabled == nil {
 		a.Enabled = &hasCrack
 	}
+	def := adaptDefaults()
 	if a.Coarsen == nil {
-		t := true
-		a.Coarsen = &t
+		a.Coarsen = def.Coarsen
 	}
-	defs := []struct {
-		v   *float64
-		def float64
-	}{{&a.Margin, 1}, {&a.Ahead, 4}, {&a.Wake, 4}, {&a.AlertP, 0.1}, {&a.Simplify, 0.25}}
-	for _, d := range defs {
-		if *d.v == 0 {
-			*d.v = d.def
-		}
-	}
+	fillZero([]defaultValue{
+		{&a.Margin, def.Margin}, {&a.Ahead, def.Ahead}, {&a.Wake, def.Wake},
+		{&a.AlertP, def.AlertP}, {&a.Simplify, def.Simplify},
+	})
 	if err := checkEach(src, "adapt", positive, []keyValue{
 		{"margin", a.Margin},
 		{"ahead", a.Ahead},
@@ -382,6 +360,21 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 		return badInput("%s: %d must be ≥ 0 (0 = no limit)", src.where("adapt.max_remeshes"), a.MaxRuns)
 	}
 	return nil
+}
+
+// defaultValue is a number of a section and its default.
+type defaultValue struct {
+	v   *float64
+	def float64
+}
+
+// fillZero sets every value that is zero (not given) to its default.
+func fillZero(vals []defaultValue) {
+	for _, d := range vals {
+		if *d.v == 0 {
+			*d.v = d.def
+		}
+	}
 }
 
 // keyValue is one number of a section, named by its key.

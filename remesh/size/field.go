@@ -11,7 +11,7 @@ import (
 // Options set up a Field.
 type Options struct {
 	// HFine is the target size in the fine zone around each crack tip
-	// (the case default is ℓ/2, DESIGN.md §1). Required, > 0.
+	// (the case default is ℓ/DefaultKappa, DESIGN.md §1). Required, > 0.
 	HFine float64
 	// HFar is the largest size, reached far from the tips. 0 means
 	// DefaultFarFactor·HFine; otherwise it must be ≥ HFine.

@@ -16,9 +16,9 @@ type FollowOptions struct {
 	// Length is the internal length ℓ (> 0). A local model (ℓ = 0) passes
 	// the length scale it wants the zone measured in, e.g. 2·h_fine.
 	Length float64
-	// Kappa sets h_fine = ℓ/κ; κ ≥ 2 (h ≤ ℓ/2, common practice for a
-	// converged J–Δa curve, DESIGN.md §1). The case key mesh.h_fine maps
-	// to κ = ℓ/h_fine.
+	// Kappa sets h_fine = ℓ/κ; κ ≥ DefaultKappa (h ≤ ℓ/2, common practice
+	// for a converged J–Δa curve, DESIGN.md §1). The case key mesh.h_fine
+	// maps to κ = ℓ/h_fine.
 	Kappa float64
 	// HFar is the size far from every tip and damaged point (> h_fine).
 	HFar float64
@@ -30,33 +30,39 @@ type FollowOptions struct {
 	// so that a path that turns stays inside (a turn of up to about
 	// atan(Spread/Ahead) before the next remesh).
 	Width, Spread float64
-	// Grade bounds the size gradient: |∇h| ≤ Grade everywhere the field
-	// itself sets the size (0 < Grade ≤ 1; 0.2–0.3 is common practice for
-	// a smooth Delaunay refinement).
-	Grade float64
+	// Grading bounds the size gradient: |∇h| ≤ Grading everywhere the
+	// field itself sets the size (0 < Grading ≤ 1; 0.2–0.3 is common
+	// practice for a smooth Delaunay refinement), as Options.Grading does
+	// for the initial Field.
+	Grading float64
 	// Wake is the size, in units of h_fine, given to damaged points
 	// outside the fine zone (the unloading wake): ≥ 1, and h_wake ≤ h_far.
 	Wake float64
 }
 
+// DefaultKappa is the default κ = ℓ/h_fine: h_fine = ℓ/2, the coarsest
+// size at which J–Δa converges (DESIGN.md §1).
+const DefaultKappa = 2
+
 // DefaultFollowOptions returns the defaults for internal length ell and far
-// size hFar: κ = 2; a zone whose axis runs from 1ℓ behind to 4ℓ ahead of
-// the tip, with half-width 3ℓ at the back and 4ℓ at the front (so its edge
-// is 8ℓ ahead of the tip, about 3ℓ beside it and 4ℓ behind it: a damage
-// band of width 1.5ℓ, V10, sits well inside); grade 0.25; wake 4·h_fine.
+// size hFar: κ = DefaultKappa; a zone whose axis runs from 1ℓ behind to 4ℓ
+// ahead of the tip, with half-width 3ℓ at the back and 4ℓ at the front (so
+// its edge is 8ℓ ahead of the tip, about 3ℓ beside it and 4ℓ behind it: a
+// damage band of width 1.5ℓ, V10, sits well inside); grading
+// DefaultGrading; wake 4·h_fine.
 func DefaultFollowOptions(ell, hFar float64) FollowOptions {
 	return FollowOptions{
-		Length: ell, Kappa: 2, HFar: hFar,
+		Length: ell, Kappa: DefaultKappa, HFar: hFar,
 		Ahead: 4, Behind: 1, Width: 3, Spread: 4,
-		Grade: 0.25, Wake: 4,
+		Grading: DefaultGrading, Wake: 4,
 	}
 }
 
-// HFine returns h_fine = ℓ/κ.
-func (o *FollowOptions) HFine() float64 { return o.Length / o.Kappa }
+// hFine returns h_fine = ℓ/κ.
+func (o *FollowOptions) hFine() float64 { return o.Length / o.Kappa }
 
 // HWake returns the wake size Wake·h_fine.
-func (o *FollowOptions) HWake() float64 { return o.Wake * o.HFine() }
+func (o *FollowOptions) HWake() float64 { return o.Wake * o.hFine() }
 
 // Validate checks the options and says which one is wrong and what is allowed.
 func (o *FollowOptions) Validate() error {
@@ -70,19 +76,19 @@ func (o *FollowOptions) Validate() error {
 		n string
 		v float64
 	}{{"Length", o.Length}, {"Kappa", o.Kappa}, {"HFar", o.HFar}, {"Ahead", o.Ahead},
-		{"Width", o.Width}, {"Spread", o.Spread}, {"Grade", o.Grade}, {"Wake", o.Wake}} {
+		{"Width", o.Width}, {"Spread", o.Spread}, {"Grading", o.Grading}, {"Wake", o.Wake}} {
 		if err := pos(c.n, c.v); err != nil {
 			return err
 		}
 	}
-	if o.Kappa < 2 {
-		return fmt.Errorf("remesh: follow option Kappa = %g must be ≥ 2 (h_fine ≤ ℓ/2)", o.Kappa)
+	if o.Kappa < DefaultKappa {
+		return fmt.Errorf("remesh: follow option Kappa = %g must be ≥ %d (h_fine ≤ ℓ/%d)", o.Kappa, DefaultKappa, DefaultKappa)
 	}
 	if !(o.Behind >= 0) || math.IsInf(o.Behind, 0) {
 		return fmt.Errorf("remesh: follow option Behind = %g must be finite and ≥ 0", o.Behind)
 	}
-	if o.Grade > 1 {
-		return fmt.Errorf("remesh: follow option Grade = %g must be ≤ 1", o.Grade)
+	if o.Grading > 1 {
+		return fmt.Errorf("remesh: follow option Grading = %g must be ≤ 1", o.Grading)
 	}
 	if o.Wake < 1 {
 		return fmt.Errorf("remesh: follow option Wake = %g must be ≥ 1 (the wake is not finer than the zone)", o.Wake)
@@ -106,11 +112,11 @@ type ZonePiece struct {
 	RA, RB float64
 }
 
-// Distance returns the signed distance-like function of the piece: the
+// distance returns the signed distance-like function of the piece: the
 // distance from x to the zone outside it (exact), and minus the depth of x
 // in the deepest disc inside it (a lower bound of the depth below the
 // zone's edge, exact for RA = RB). It is 1-Lipschitz.
-func (z *ZonePiece) Distance(x [2]float64) float64 {
+func (z *ZonePiece) distance(x [2]float64) float64 {
 	ux, uy := z.B[0]-z.A[0], z.B[1]-z.A[1]
 	L := math.Hypot(ux, uy)
 	if L == 0 {
@@ -136,22 +142,22 @@ type FineZone struct {
 	HWake  float64 // size at damaged points outside the zone
 }
 
-// Distance returns the smallest piece distance (negative inside the zone);
+// distance returns the smallest piece distance (negative inside the zone);
 // +Inf when the zone has no piece.
-func (z *FineZone) Distance(x [2]float64) float64 {
+func (z *FineZone) distance(x [2]float64) float64 {
 	d := math.Inf(1)
 	for i := range z.Pieces {
-		d = math.Min(d, z.Pieces[i].Distance(x))
+		d = math.Min(d, z.Pieces[i].distance(x))
 	}
 	return d
 }
 
-// Depth returns how far x lies inside the zone, −Distance: positive inside,
+// Depth returns how far x lies inside the zone, −distance: positive inside,
 // negative outside.
-func (z *FineZone) Depth(x [2]float64) float64 { return -z.Distance(x) }
+func (z *FineZone) Depth(x [2]float64) float64 { return -z.distance(x) }
 
-// ZoneFor returns the zone piece that FollowOptions opt puts around tip t.
-func ZoneFor(t criteria.Tip, opt *FollowOptions) (ZonePiece, error) {
+// zoneFor returns the zone piece that FollowOptions opt puts around tip t.
+func zoneFor(t criteria.Tip, opt *FollowOptions) (ZonePiece, error) {
 	d, ok := t.UnitDir()
 	if !ok {
 		return ZonePiece{}, fmt.Errorf("remesh: tip %q at (%g, %g): direction (%g, %g) must be finite and non-zero", t.Name, t.X[0], t.X[1], t.Dir[0], t.Dir[1])
@@ -176,7 +182,7 @@ func ZoneFor(t criteria.Tip, opt *FollowOptions) (ZonePiece, error) {
 //	            feature(x),                          geometry features
 //	            h_far )
 //
-// with g = Grade, h_wake = Wake·h_fine. The damaged points are thinned to
+// with g = Grading, h_wake = Wake·h_fine. The damaged points are thinned to
 // one per cell of diagonal δ = 0.1·h_wake/g and the wake term's base
 // lowered by g·δ (so h ≤ h_wake at every damaged point still holds, and h
 // is at most 10% finer than h_wake there). Each of the first two terms is
@@ -202,9 +208,9 @@ func NewTipField(tips []criteria.Tip, damaged [][2]float64, feature func(x, y fl
 		return nil, err
 	}
 	f := &TipField{opt: opt, feature: feature}
-	f.zone = FineZone{HFine: opt.HFine(), HWake: opt.HWake()}
+	f.zone = FineZone{HFine: opt.hFine(), HWake: opt.HWake()}
 	for i, t := range tips {
-		z, err := ZoneFor(t, &opt)
+		z, err := zoneFor(t, &opt)
 		if err != nil {
 			return nil, fmt.Errorf("remesh: tip %d: %w", i, err)
 		}
@@ -215,7 +221,7 @@ func NewTipField(tips []criteria.Tip, damaged [][2]float64, feature func(x, y fl
 			return nil, fmt.Errorf("remesh: damaged point %d (%g, %g) must be finite", i, p[0], p[1])
 		}
 	}
-	g := opt.Grade
+	g := opt.Grading
 	// Thin the damaged points to one per cell of diagonal δ = 0.1·h_wake/g
 	// and lower the wake base by g·δ: every damaged point is within δ of a
 	// kept one, so h ≤ h_wake still holds at every damaged point, the
@@ -233,11 +239,11 @@ func (f *TipField) At(x, y float64) float64 {
 	o := &f.opt
 	h := o.HFar
 	p := [2]float64{x, y}
-	if d := f.zone.Distance(p); d < f.zoneReach {
-		h = math.Min(h, f.zone.HFine+o.Grade*math.Max(0, d))
+	if d := f.zone.distance(p); d < f.zoneReach {
+		h = math.Min(h, f.zone.HFine+o.Grading*math.Max(0, d))
 	}
 	if d := f.wake.Dist(p, f.wakeReach); d < f.wakeReach {
-		h = math.Min(h, f.wakeBase+o.Grade*d)
+		h = math.Min(h, f.wakeBase+o.Grading*d)
 	}
 	if f.feature != nil {
 		if v := f.feature(x, y); v > 0 && v < h {
@@ -268,9 +274,6 @@ func (f *TipField) Zone() FineZone {
 	return z
 }
 
-// Options returns the options the field was built with.
-func (f *TipField) Options() FollowOptions { return f.opt }
-
 // InitialZone describes the fine zone of the initial mesh's Field (the
 // capsules of radius FineRadius around its zones) for the trigger; hWake is
 // the size damaged points may have outside it (FollowOptions.HWake).
@@ -289,14 +292,14 @@ func InitialZone(s *Field, hWake float64) FineZone {
 // FeatureSizes returns a feature size function for NewTipField that keeps
 // geometry features at their own sizes: within the pieces of d whose label
 // has a size in byLabel and at the named points with a size in byPoint,
-// h ≤ size + grade·distance (so the feature's size grades like the rest of
+// h ≤ size + grading·distance (so the feature's size grades like the rest of
 // the field). Sizes must be positive; unknown labels or points are errors.
-func FeatureSizes(d *geom.Domain, byLabel, byPoint map[string]float64, grade float64) (func(x, y float64) float64, error) {
+func FeatureSizes(d *geom.Domain, byLabel, byPoint map[string]float64, grading float64) (func(x, y float64) float64, error) {
 	if d == nil {
 		return nil, fmt.Errorf("remesh: feature sizes: no domain given")
 	}
-	if !(grade > 0 && grade <= 1) {
-		return nil, fmt.Errorf("remesh: feature sizes: grade %g must lie in (0, 1]", grade)
+	if !(grading > 0 && grading <= 1) {
+		return nil, fmt.Errorf("remesh: feature sizes: grading %g must lie in (0, 1]", grading)
 	}
 	type feat struct {
 		p *geom.Piece
@@ -342,7 +345,7 @@ func FeatureSizes(d *geom.Domain, byLabel, byPoint map[string]float64, grade flo
 			} else {
 				dd = math.Hypot(x-fs[i].x[0], y-fs[i].x[1])
 			}
-			h = math.Min(h, fs[i].h+grade*dd)
+			h = math.Min(h, fs[i].h+grading*dd)
 		}
 		return h
 	}, nil

@@ -14,7 +14,7 @@ import (
 // discsDistance is the distance-like function of a tapered capsule from its
 // definition, the minimum over its discs of |x − c(s)| − r(s), found by
 // ternary search of the convex function of s (a numerical reference for
-// the closed form of ZonePiece.Distance).
+// the closed form of ZonePiece.distance).
 func discsDistance(z *ZonePiece, x [2]float64) float64 {
 	g := func(s float64) float64 {
 		c := [2]float64{z.A[0] + s*(z.B[0]-z.A[0]), z.A[1] + s*(z.B[1]-z.A[1])}
@@ -42,7 +42,7 @@ func TestZonePieceDistance(t *testing.T) {
 	} {
 		for k := 0; k < 2000; k++ {
 			x := [2]float64{rng.Float64()*24 - 12, rng.Float64()*24 - 12}
-			got, want := z.Distance(x), discsDistance(&z, x)
+			got, want := z.distance(x), discsDistance(&z, x)
 			if math.Abs(got-want) > 1e-12 {
 				t.Fatalf("zone %+v at %v: distance %g, from the discs %g", z, x, got, want)
 			}
@@ -54,7 +54,7 @@ func TestTipFieldSizes(t *testing.T) {
 	const ell = 0.2
 	o := DefaultFollowOptions(ell, 2)
 	o.Ahead, o.Behind, o.Width, o.Spread = 6, 2, 2, 4
-	hf, hw := o.HFine(), o.HWake()
+	hf, hw := o.hFine(), o.HWake()
 	tips := []criteria.Tip{
 		{Name: "right", X: [2]float64{3, 0}, Dir: [2]float64{1, 0}},
 		{Name: "left", X: [2]float64{-3, 0}, Dir: [2]float64{-1, 0}},
@@ -110,12 +110,12 @@ func TestTipFieldSizes(t *testing.T) {
 	// (the thinning allowance); graded by g away from them
 	// (or the zone's graded size, where that is finer)
 	for _, p := range dmg {
-		lo := math.Min(0.9*hw, hf+o.Grade*math.Max(0, zone.Distance(p)))
+		lo := math.Min(0.9*hw, hf+o.Grading*math.Max(0, zone.distance(p)))
 		if h := f.At(p[0], p[1]); h > hw || h < lo-1e-12 {
 			t.Errorf("wake at damaged point %v: h = %g, want in [%g, %g]", p, h, lo, hw)
 		}
 	}
-	if h, want := f.At(0.5, 0.32), hw+o.Grade*0.3; math.Abs(h-want) > 0.1*hw+1e-12 {
+	if h, want := f.At(0.5, 0.32), hw+o.Grading*0.3; math.Abs(h-want) > 0.1*hw+1e-12 {
 		t.Errorf("wake graded 0.3 from the damaged points: h = %g, want %g ± %g", h, want, 0.1*hw)
 	}
 }
@@ -126,7 +126,7 @@ func TestTipFieldGradation(t *testing.T) {
 	// graded size function, Persson 2006, Eng. Comput. 22).
 	for _, g := range []float64{0.2, 0.3} {
 		o := DefaultFollowOptions(0.1, 1)
-		o.Grade = g
+		o.Grading = g
 		tips := []criteria.Tip{
 			{X: [2]float64{0, 0}, Dir: [2]float64{1, 0.3}},
 			{X: [2]float64{1, 1}, Dir: [2]float64{-1, 0}},
@@ -166,10 +166,10 @@ func TestTipFieldGradation(t *testing.T) {
 			worst = math.Max(worst, math.Abs(f.At(p[0], p[1])-f.At(q[0], q[1]))/d)
 		}
 		if worst > g+1e-9 {
-			t.Errorf("grade %g: largest sampled |Δh|/|Δx| = %g", g, worst)
+			t.Errorf("grading %g: largest sampled |Δh|/|Δx| = %g", g, worst)
 		}
 		if worst < 0.9*g { // the bound is reached on the grading slopes
-			t.Errorf("grade %g: largest sampled |Δh|/|Δx| = %g, the field does not grade at its rate", g, worst)
+			t.Errorf("grading %g: largest sampled |Δh|/|Δx| = %g, the field does not grade at its rate", g, worst)
 		}
 	}
 }
@@ -182,7 +182,7 @@ func TestFollowValidate(t *testing.T) {
 	}{
 		{"zero length", func(o *FollowOptions) { o.Length = 0 }, "Length"},
 		{"kappa below 2", func(o *FollowOptions) { o.Kappa = 1.5 }, "Kappa"},
-		{"grade above 1", func(o *FollowOptions) { o.Grade = 1.5 }, "Grade"},
+		{"grading above 1", func(o *FollowOptions) { o.Grading = 1.5 }, "Grading"},
 		{"wake below 1", func(o *FollowOptions) { o.Wake = 0.5 }, "Wake"},
 		{"h_far below wake", func(o *FollowOptions) { o.HFar = 0.1 }, "HFar"},
 		{"negative behind", func(o *FollowOptions) { o.Behind = -1 }, "Behind"},
@@ -262,8 +262,8 @@ func ExampleTipField() {
 
 func TestFeatureSizes(t *testing.T) {
 	// A C(T) half model: the pin hole at 0.5 and the load-line point at
-	// 0.2; the size grows by the grade with the distance (definition), and
-	// the combined field keeps the feature sizes and the grade bound.
+	// 0.2; the size grows by the grading with the distance (definition), and
+	// the combined field keeps the feature sizes and the grading bound.
 	d, err := geom.DefaultCT().Domain()
 	if err != nil {
 		t.Fatal(err)
@@ -306,7 +306,7 @@ func TestFeatureSizes(t *testing.T) {
 		{map[string]float64{"nowhere": 1}, nil, 0.25, "no label"},
 		{nil, map[string]float64{"nopoint": 1}, 0.25, "no point"},
 		{map[string]float64{geom.LabelPin: -1}, nil, 0.25, "size"},
-		{nil, nil, 0, "grade"},
+		{nil, nil, 0, "grading"},
 	} {
 		if _, err := FeatureSizes(d, c.lab, c.pt, c.g); err == nil || !strings.Contains(err.Error(), c.bad) {
 			t.Errorf("FeatureSizes(%v, %v, %g): error %v, want one about %q", c.lab, c.pt, c.g, err, c.bad)

@@ -25,14 +25,15 @@ type Options struct {
 	// of growth. The zone's half-width beside the tip must exceed the
 	// margin plus the damage band's half-width, or the flanks trigger.
 	Margin float64
-	// FrontLevel is the porosity on the damage front, f_front (default
-	// 2·f_c = 0.3 for f_c = 0.15, Tvergaard & Needleman 1984, Acta Metall.
-	// 32; values from memory).
+	// FrontLevel is the porosity on the damage front, f_front (0 < f_front
+	// < 1). It has no default here: it belongs to the material, and
+	// whoever builds the options sets it to the level the damage front is
+	// located at (criteria.FrontOptions: 2·f_c of the material).
 	FrontLevel float64
-	// Wake: front points more than Wake·ℓ behind the nearest current tip
-	// (along its direction) are the crack's flanks, not its front, and are
-	// left to the element-size test.
-	Wake float64
+	// WakeBehind: front points more than WakeBehind·ℓ behind the nearest
+	// current tip (along its direction) are the crack's flanks, not its
+	// front, and are left to the element-size test.
+	WakeBehind float64
 	// FAlert and PAlert are the alert levels of porosity and cumulative
 	// plastic strain (≤ 0 or +Inf switches a test off); broken points
 	// always count.
@@ -46,11 +47,12 @@ type Options struct {
 }
 
 // DefaultOptions returns the defaults for internal length ell:
-// margin 1.5ℓ, front level 0.3, wake 1ℓ, alert levels f ≥ 0.02 and p ≥ 0.1
-// (common practice: well above f₀ and the elastic range, well below the
-// front), size tolerance 1.5, at most 200 remeshes.
+// margin 1.5ℓ, flanks from 1ℓ behind a tip, alert levels f ≥ 0.02 and
+// p ≥ 0.1 (common practice: well above f₀ and the elastic range, well
+// below the front), size tolerance 1.5, at most 200 remeshes. FrontLevel is
+// left 0, for the caller to set from the material (see Options).
 func DefaultOptions(ell float64) Options {
-	return Options{Length: ell, Margin: 1.5, FrontLevel: 0.3, Wake: 1,
+	return Options{Length: ell, Margin: 1.5, WakeBehind: 1,
 		FAlert: 0.02, PAlert: 0.1, SizeTol: 1.5, MaxRemesh: 200}
 }
 
@@ -67,8 +69,8 @@ func (o *Options) Validate() error {
 	if o.FrontLevel >= 1 {
 		return fmt.Errorf("remesh: trigger option FrontLevel = %g must be a porosity < 1", o.FrontLevel)
 	}
-	if !(o.Wake >= 0) || math.IsInf(o.Wake, 0) {
-		return fmt.Errorf("remesh: trigger option Wake = %g must be finite and ≥ 0", o.Wake)
+	if !(o.WakeBehind >= 0) || math.IsInf(o.WakeBehind, 0) {
+		return fmt.Errorf("remesh: trigger option WakeBehind = %g must be finite and ≥ 0", o.WakeBehind)
 	}
 	if math.IsNaN(o.FAlert) || math.IsNaN(o.PAlert) {
 		return fmt.Errorf("remesh: trigger alert levels FAlert = %g, PAlert = %g must not be NaN", o.FAlert, o.PAlert)
@@ -142,8 +144,9 @@ func LongestEdge(m *fem.Mesh, e int) float64 {
 //
 //   - a current tip lies less than Margin·ℓ inside the zone's edge (or
 //     outside the zone);
-//   - a front point (f ≥ FrontLevel) does, unless it lies more than Wake·ℓ
-//     behind the nearest current tip (then it is the crack's flank);
+//   - a front point (f ≥ FrontLevel) does, unless it lies more than
+//     WakeBehind·ℓ behind the nearest current tip (then it is the crack's
+//     flank);
 //   - a point above an alert level sits in an element whose longest edge
 //     exceeds SizeTol·h_fine (inside the zone) or SizeTol·h_wake (outside).
 //
@@ -195,7 +198,7 @@ func Check(m *fem.Mesh, gp *fem.GaussPoints, tips []criteria.Tip, zone *size.Fin
 			if g.State.F < opt.FrontLevel {
 				continue
 			}
-			if behindAll(g.X, tips, dirs, opt.Wake*ell) {
+			if behindAll(g.X, tips, dirs, opt.WakeBehind*ell) {
 				continue
 			}
 			if dep := zone.Depth(g.X); dep < margin {

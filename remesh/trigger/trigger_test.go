@@ -16,6 +16,19 @@ import (
 	"tearline/solver/fem"
 )
 
+// testFrontLevel is the front level of the tests: 2·f_c for f_c = 0.15
+// (Tvergaard & Needleman 1984, Acta Metall. 32; from memory), at criteria's
+// default front level 2·f_c.
+const testFrontLevel = 0.3
+
+// testOptions are the default options for internal length ell with the
+// front level of the tests.
+func testOptions(ell float64) Options {
+	o := DefaultOptions(ell)
+	o.FrontLevel = testFrontLevel
+	return o
+}
+
 // nearestGP returns the index of the Gauss point nearest to x.
 func nearestGP(gp *fem.GaussPoints, x [2]float64) int {
 	best, bi := math.Inf(1), -1
@@ -50,7 +63,7 @@ func TestNeedRemeshFront(t *testing.T) {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultOptions(1)
+	to := testOptions(1)
 	to.Margin = 2
 	to.FAlert, to.PAlert = 0, 0 // this test checks the front alone
 	a, b := zone.Pieces[0].A, zone.Pieces[0].B
@@ -73,7 +86,7 @@ func TestNeedRemeshFront(t *testing.T) {
 			gp.Points[k].State.F = 0.4
 			x := gp.Points[k].X
 			want := capsuleDepth(x, a, b, 3) < 2
-			if (x[0] - tip.X[0]) < -to.Wake { // more than Wake·ℓ behind the tip: flank
+			if (x[0] - tip.X[0]) < -to.WakeBehind { // more than WakeBehind·ℓ behind the tip: flank
 				want = false
 			}
 			dec, err := Check(m, gp, []criteria.Tip{tip}, &zone, 0, to)
@@ -118,7 +131,7 @@ func TestNeedRemeshCoarseDamage(t *testing.T) {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultOptions(1)
+	to := testOptions(1)
 	for _, c := range []struct {
 		name  string
 		m     *fem.Mesh
@@ -180,7 +193,7 @@ func TestNeedRemeshRareAfterRemesh(t *testing.T) {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultOptions(1)
+	to := testOptions(1)
 	grown := 0.0
 	gp := testmesh.GaussPoints(m, 0.001)
 	for da := 0.0; da < 20; da += 0.25 {
@@ -216,13 +229,15 @@ func TestTriggerValidate(t *testing.T) {
 		{"zero length", func(o *Options) { o.Length = 0 }, gp, nil, "Length"},
 		{"negative margin", func(o *Options) { o.Margin = -1 }, gp, nil, "Margin"},
 		{"front level 1", func(o *Options) { o.FrontLevel = 1 }, gp, nil, "FrontLevel"},
+		{"front level unset (DefaultOptions)", func(o *Options) { o.FrontLevel = DefaultOptions(1).FrontLevel }, gp, nil, "FrontLevel"},
+		{"negative wake behind", func(o *Options) { o.WakeBehind = -1 }, gp, nil, "WakeBehind"},
 		{"size tol < 1", func(o *Options) { o.SizeTol = 0.5 }, gp, nil, "SizeTol"},
 		{"negative max", func(o *Options) { o.MaxRemesh = -1 }, gp, nil, "MaxRemesh"},
 		{"gauss points mismatch", func(o *Options) {}, &fem.GaussPoints{PerElement: 6, Points: gp.Points[:6]}, nil, "Gauss points"},
 		{"zero tip direction", func(o *Options) {}, gp, []criteria.Tip{{Name: "t"}}, "direction"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			o := DefaultOptions(1)
+			o := testOptions(1)
 			c.mod(&o)
 			_, err := Check(m, c.gp, c.tips, &zone, 0, o)
 			if err == nil || !strings.Contains(err.Error(), c.want) {
@@ -244,7 +259,7 @@ func TestNeedRemeshSeveralTips(t *testing.T) {
 		t.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultOptions(1)
+	to := testOptions(1)
 	to.Margin = 2
 	gp := testmesh.GaussPoints(m, 0.001)
 	// zone ends at ±(2 + 6 + 3) = ±11; with margin 2 a tip fires beyond ±9
@@ -283,7 +298,7 @@ func growSSY(tb testing.TB, da float64) (at []float64, tris []int) {
 		tb.Fatal(err)
 	}
 	fo := size.DefaultFollowOptions(ell, 1)
-	to := DefaultOptions(ell)
+	to := testOptions(ell)
 	tip := criteria.Tip{Name: "tip", X: [2]float64{0, 0}, Dir: [2]float64{1, 0}}
 	f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
@@ -419,7 +434,7 @@ func TestGrowthTurningPath(t *testing.T) {
 		ang += rate * 0.02
 	}
 	fo := size.DefaultFollowOptions(ell, 1)
-	to := DefaultOptions(ell)
+	to := testOptions(ell)
 	tip := criteria.Tip{Name: "tip", X: path[0], Dir: tang[0]}
 	f, err := size.NewTipField([]criteria.Tip{tip}, nil, nil, fo)
 	if err != nil {
@@ -508,7 +523,7 @@ func BenchmarkNeedRemesh(b *testing.B) {
 		b.Fatal(err)
 	}
 	zone := field.Zone()
-	to := DefaultOptions(1)
+	to := testOptions(1)
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		if _, err := Check(m, gp, []criteria.Tip{tip}, &zone, 0, to); err != nil {
