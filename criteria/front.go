@@ -34,10 +34,15 @@ type FrontOptions struct {
 	MaxGap float64
 }
 
+// FrontLevel is the porosity on the damage front of a material whose
+// coalescence starts at fc: 2·fc, the edge of the localisation band
+// (common practice). The trigger watches the same contour.
+func FrontLevel(fc float64) float64 { return 2 * fc }
+
 func (o *FrontOptions) levels() (front, tip float64) {
 	front, tip = o.FFront, o.FTip
 	if front == 0 {
-		front = 2 * o.Fc
+		front = FrontLevel(o.Fc)
 	}
 	if tip == 0 {
 		tip = front

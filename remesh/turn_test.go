@@ -105,7 +105,7 @@ func turnConfig(t testing.TB, tc turnCase) CycleConfig {
 		StopDa:   tc.StopDa,
 	}
 	cfg.Trigger.Margin = 1
-	cfg.Trigger.FrontLevel = 2 * par.FC
+	cfg.Trigger.FrontLevel = criteria.FrontLevel(par.FC)
 	cfg.Follow.Kappa = ell / hFine
 	cfg.Follow.Ahead, cfg.Follow.Width, cfg.Follow.Spread, cfg.Follow.Grading, cfg.Follow.Wake = tc.Ahead, tc.Width, tc.Spread, 0.3, tc.Wake
 	cfg.Size.Ahead = cfg.Follow.Ahead * ell

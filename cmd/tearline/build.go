@@ -100,7 +100,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	cfg.Trigger = trigger.DefaultOptions(unit)
 	cfg.Trigger.Margin = c.Adapt.Margin
 	// the level the cycle locates the front at (criteria.FrontOptions' 2·f_c)
-	cfg.Trigger.FrontLevel = 2 * c.Material.Fc
+	cfg.Trigger.FrontLevel = criteria.FrontLevel(c.Material.Fc)
 	cfg.Trigger.PAlert = c.Adapt.AlertP
 	cfg.Trigger.MaxRemesh = c.Adapt.MaxRuns
 	if cfg.Trigger.MaxRemesh == 0 {

@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"tearline/criteria"
 	"tearline/remesh/carve"
 	"tearline/remesh/meshing"
 	"tearline/remesh/size"
@@ -55,7 +56,7 @@ func TestCaseDefaults(t *testing.T) {
 
 	to := trigger.DefaultOptions(ell)
 	to.Margin, to.MaxRemesh = caseMargin, caseNoRemeshLimit
-	to.FrontLevel = 2 * caseFc
+	to.FrontLevel = criteria.FrontLevel(caseFc)
 
 	fo := size.DefaultFollowOptions(ell, c.Mesh.HFar)
 
