@@ -463,7 +463,7 @@ func columnBand(ell, h float64) (w float64, elems int, at float64, err error) {
 	if err := c.prob.SetState(st); err != nil {
 		return 0, 0, 0, err
 	}
-	obs := &columnObserver{level: 2 * par.FC, fBreak: cfg.Transfer.FBreak, width: W, ylim: 3 * ell, w: math.NaN()}
+	obs := &columnObserver{level: 2 * par.FC, fBreak: par.BreakPorosity(), width: W, ylim: 3 * ell, w: math.NaN()}
 	out, err := c.Run(obs)
 	if err != nil {
 		return 0, 0, 0, err
