@@ -96,7 +96,8 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 			cfg.J.Unit = lim / out
 		}
 	}
-	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0
+	// An elastic body has no damage front to follow: its mesh stays.
+	cfg.Adapt = *c.Adapt.Enabled && len(tipNames) > 0 && c.Material.Model != "elastic"
 	cfg.Trigger = trigger.DefaultOptions(unit)
 	cfg.Trigger.Margin = c.Adapt.Margin
 	// the level the cycle locates the front at (criteria.FrontOptions' 2·f_c)

@@ -287,3 +287,26 @@ func TestCTE1820AgainstDomainJ(t *testing.T) {
 		t.Fatalf("only %d rows before growth, want at least 4", checked)
 	}
 }
+
+// TestElasticCaseRunsWithDefaults: an elastic case on a cracked geometry,
+// with the [adapt] section left out, runs to completion on its first mesh
+// (an elastic body has no damage front to follow; it used to be refused
+// with an unset trigger front level).
+func TestElasticCaseRunsWithDefaults(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "run")
+	var stderr bytes.Buffer
+	if code := dispatch([]string{"run", writeCase(t, goodElastic), "-o", out}, io.Discard, &stderr); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr.String())
+	}
+	_, rows := readCSV(t, filepath.Join(out, "history.csv"))
+	if len(rows) == 0 {
+		t.Fatal("no steps recorded")
+	}
+	data, err := os.ReadFile(filepath.Join(out, "summary.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(data), `"completed"`) {
+		t.Errorf("summary: %s, want status completed", data)
+	}
+}
