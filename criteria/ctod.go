@@ -169,24 +169,18 @@ func cutQuadratic(p [3][2]float64, v, d [2]float64) [][2]float64 {
 // (straight-sided location; the nearest triangle within a small tolerance
 // for points on the boundary).
 func displacementAt(m *fem.Mesh, u [][2]float64, x [2]float64) ([2]float64, error) {
-	bestE, bestMin := -1, math.Inf(-1)
-	var bestL [3]float64
-	for e, t := range m.Tri {
-		l := fem.Barycentric(x, m.X[t[0]], m.X[t[1]], m.X[t[2]])
-		mn := math.Min(l[0], math.Min(l[1], l[2]))
-		if mn > bestMin {
-			bestE, bestMin, bestL = e, mn, l
-		}
-		if mn >= 0 {
-			break
+	loc := m.CornerLocator()
+	e, l, ok := loc.FindFirst(x, 0)
+	if !ok {
+		// just outside, by round-off on a curved or carved boundary:
+		// within 1e-6 of a triangle's height
+		if e, l, ok = loc.FindFirst(x, 1e-6); !ok {
+			return [2]float64{}, fmt.Errorf("point %v lies outside the mesh", x)
 		}
 	}
-	if bestE < 0 || bestMin < -1e-6 {
-		return [2]float64{}, fmt.Errorf("point %v lies outside the mesh", x)
-	}
-	N := fem.ShapeP2(bestL)
+	N := fem.ShapeP2(l)
 	var r [2]float64
-	for a, n := range m.Tri[bestE] {
+	for a, n := range m.Tri[e] {
 		r[0] += N[a] * u[n][0]
 		r[1] += N[a] * u[n][1]
 	}

@@ -666,10 +666,7 @@ func polyLength(p [][2]float64) float64 {
 // element with a cracked node on a crack face, or lie outside the mesh
 // (the void of removed broken material).
 func visibility(m *fem.Mesh, f []float64, ftip float64, cracked []bool) func(p, q [2]float64) bool {
-	loc := plane.NewLocator(func(e int) [3][2]float64 {
-		t := m.Tri[e]
-		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
-	}, len(m.Tri))
+	loc := m.CornerLocator()
 	hmin := math.Inf(1)
 	forEachSubEdge(m, func(a, b int) {
 		if d := plane.Dist(m.X[a], m.X[b]); d > 0 {

@@ -68,10 +68,7 @@ func NewLocator(m *fem.Mesh, tol float64) (*Locator, error) {
 			lc.node[k] = n
 		}
 	}
-	lc.index = plane.NewLocator(func(e int) [3][2]float64 {
-		t := m.Tri[e]
-		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
-	}, len(m.Tri))
+	lc.index = m.CornerLocator()
 	for e, t := range m.Tri {
 		a, b, c := m.X[t[0]], m.X[t[1]], m.X[t[2]]
 		lc.size[e] = math.Sqrt(math.Max(plane.DistSq(a, b), math.Max(plane.DistSq(b, c), plane.DistSq(c, a))))

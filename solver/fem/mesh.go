@@ -1,6 +1,9 @@
 package fem
 
-import "fmt"
+import (
+	"fmt"
+	"tearline/solver/plane"
+)
 
 // Mesh is a 2D mesh of 6-node (quadratic) triangles in the reference
 // configuration. It is the one mesh type shared by the mesher, the solver,
@@ -106,4 +109,14 @@ func (m *Mesh) Check() error {
 		}
 	}
 	return nil
+}
+
+// CornerLocator indexes the straight-sided triangles of the corner nodes
+// in the one point locator of the program (plane.Locator, an R-tree); a
+// change of the mesh after the call is not seen.
+func (m *Mesh) CornerLocator() *plane.Locator {
+	return plane.NewLocator(func(e int) [3][2]float64 {
+		t := m.Tri[e]
+		return [3][2]float64{m.X[t[0]], m.X[t[1]], m.X[t[2]]}
+	}, len(m.Tri))
 }
