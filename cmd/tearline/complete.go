@@ -1,7 +1,11 @@
 package main
 
 import (
+	"fmt"
+	"sort"
+	"strings"
 	"tearline/remesh/geom"
+	"tearline/remesh/geom/specimen"
 	"tearline/remesh/size"
 )
 
@@ -28,10 +32,8 @@ func (c *caseFile) complete(src *caseSource) error {
 	if err := c.Loading.complete(src, natural, c.unit()); err != nil {
 		return err
 	}
-	if c.Loading.Control == "opening" {
-		if err := sp.AddOpeningPoints(c.Loading.OpeningAt); err != nil {
-			return badInput("%s: %v", src.where("loading.opening_at"), err)
-		}
+	if err := c.Loading.placeGauge(sp, src); err != nil {
+		return err
 	}
 	if err := c.Solver.complete(src); err != nil {
 		return err
@@ -54,4 +56,42 @@ func (c *caseFile) unit() float64 {
 		return c.Material.Length
 	}
 	return size.DefaultKappa * c.Mesh.HFine
+}
+
+// placeGauge gives the specimen the gauge an opening control reads: the
+// named points of loading.gauge, or for a K field the crack opening at
+// loading.opening_at behind the tip; otherwise the specimen's own.
+func (l *loadingSection) placeGauge(sp *specimen.Specimen, src *caseSource) error {
+	if l.Control != "opening" {
+		return nil
+	}
+	if len(l.Gauge) > 0 {
+		dir := [2]float64{l.GaugeDirection[0], l.GaugeDirection[1]}
+		g := &specimen.Gauge{Name: fmt.Sprintf("gauge %v", l.Gauge), Terms: []specimen.GaugeTerm{{Point: l.Gauge[0], Dir: dir, Weight: 1}}}
+		if len(l.Gauge) == 2 {
+			g.Terms = []specimen.GaugeTerm{{Point: l.Gauge[1], Dir: dir, Weight: 1}, {Point: l.Gauge[0], Dir: dir, Weight: -1}}
+		}
+		if err := g.Validate(sp.Domain); err != nil {
+			return badInput("%s: %v (named points: %s)", src.where("loading.gauge"), err, strings.Join(pointNames(sp.Domain), ", "))
+		}
+		sp.Gauge = g
+		return nil
+	}
+	if l.Kind != "k_field" {
+		return nil
+	}
+	if err := sp.AddOpeningPoints(l.OpeningAt); err != nil {
+		return badInput("%s: %v", src.where("loading.opening_at"), err)
+	}
+	return nil
+}
+
+// pointNames lists a domain's named points in name order.
+func pointNames(d *geom.Domain) []string {
+	var names []string
+	for n := range d.Points {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return names
 }

@@ -109,6 +109,10 @@ func TestBadInput(t *testing.T) {
 		{"opening point off the crack faces", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", "loading.opening_at=20"},
 			[]string{"loading.opening_at", "no straight crack face"}},
 		{"opening without control", goodElastic, []string{"loading.opening=0.1"}, []string{"loading.opening", `control = "opening"`}},
+		{"gauge point not on the body", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", `loading.gauge=["nowhere"]`, "loading.gauge_direction=[0.0, 1.0]"},
+			[]string{"loading.gauge", `no named point "nowhere"`, "named points: tip"}},
+		{"gauge without direction", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", `loading.gauge=["tip"]`},
+			[]string{"loading.gauge", "gauge_direction = [x, y]"}},
 		{"porosity order", strings.Replace(goodElastic, `model = "elastic"`, "model = \"gtn\"\nfc = 0.3\nff = 0.2", 1), nil,
 			[]string{"f0 < fc < ff"}},
 	}

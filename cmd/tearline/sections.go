@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"math"
 	"strings"
 )
@@ -44,11 +45,16 @@ type loadingSection struct {
 	Value     float64    `toml:"value"` // displacement or pressure at t = 1
 	Fix       []fixEntry `toml:"fix"`   // extra supports
 	// Control is "load" (t is the load factor) or "opening" (t drives the
-	// crack opening at the point OpeningAt behind the initial tip, which
-	// reaches Opening at t = 1; the load factor is solved for).
-	Control   string  `toml:"control"`
-	OpeningAt float64 `toml:"opening_at"`
-	Opening   float64 `toml:"opening"`
+	// specimen's gauge, which opens by Opening at t = 1; the load factor
+	// is solved for). The gauge is the specimen's natural one (K field:
+	// the crack opening OpeningAt behind the initial tip), or Gauge: the
+	// displacement of one named point along GaugeDirection, or of the
+	// second named point relative to the first.
+	Control        string    `toml:"control"`
+	OpeningAt      float64   `toml:"opening_at"`
+	Opening        float64   `toml:"opening"`
+	Gauge          []string  `toml:"gauge"`
+	GaugeDirection []float64 `toml:"gauge_direction"`
 }
 
 // fixEntry is one support: a component of the displacement held at zero on a label.
@@ -207,6 +213,43 @@ func (m *materialSection) complete(src *caseSource) error {
 	return nil
 }
 
+// completeOpening checks the keys of an opening control and fills the
+// crack-opening distance of a K field.
+func (l *loadingSection) completeOpening(src *caseSource, unit float64) error {
+	if l.Control != "opening" {
+		if l.Opening != 0 || l.OpeningAt != 0 || len(l.Gauge) > 0 || len(l.GaugeDirection) > 0 {
+			return badInput("%s: loading.opening, opening_at, gauge and gauge_direction need control = \"opening\"", src.where("loading.control"))
+		}
+		return nil
+	}
+	if err := positive(l.Opening, src, "loading.opening"); err != nil {
+		return err
+	}
+	if len(l.Gauge) > 0 || len(l.GaugeDirection) > 0 {
+		if len(l.Gauge) < 1 || len(l.Gauge) > 2 || len(l.GaugeDirection) != 2 || (l.GaugeDirection[0] == 0 && l.GaugeDirection[1] == 0) {
+			return badInput("%s: a gauge names one or two points (gauge = [\"a\"] or [\"a\", \"b\"]) and a non-zero direction (gauge_direction = [x, y])", src.where("loading.gauge"))
+		}
+	}
+	if l.Kind != "k_field" || len(l.Gauge) > 0 {
+		if l.OpeningAt != 0 {
+			return badInput("%s: opening_at places the crack-opening gauge of a K field; this control reads %s", src.where("loading.opening_at"), l.gaugeName())
+		}
+		return nil
+	}
+	if l.OpeningAt == 0 {
+		l.OpeningAt = defaultOpeningAt * unit
+	}
+	return positive(l.OpeningAt, src, "loading.opening_at")
+}
+
+// gaugeName says which gauge an opening control reads.
+func (l *loadingSection) gaugeName() string {
+	if len(l.Gauge) > 0 {
+		return fmt.Sprintf("the named gauge %v", l.Gauge)
+	}
+	return "the specimen's natural gauge"
+}
+
 func (l *loadingSection) complete(src *caseSource, natural string, unit float64) error {
 	if l.Kind == "" {
 		l.Kind = natural
@@ -220,18 +263,8 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 	if err := choice(l.Control, []string{"load", "opening"}, src, "loading.control"); err != nil {
 		return err
 	}
-	if l.Control == "opening" {
-		if l.Kind != "k_field" {
-			return badInput("%s: control = \"opening\" drives a remote K field (kind = \"k_field\"); kind %q is displacement-driven already or not supported", src.where("loading.control"), l.Kind)
-		}
-		if l.OpeningAt == 0 {
-			l.OpeningAt = defaultOpeningAt * unit
-		}
-		if err := checkEach(src, "loading", positive, []keyValue{{"opening", l.Opening}, {"opening_at", l.OpeningAt}}); err != nil {
-			return err
-		}
-	} else if l.Opening != 0 || l.OpeningAt != 0 {
-		return badInput("%s: loading.opening and loading.opening_at need control = \"opening\"", src.where("loading.control"))
+	if err := l.completeOpening(src, unit); err != nil {
+		return err
 	}
 	switch l.Kind {
 	case "k_field":

@@ -26,17 +26,21 @@ const (
 // Names of the points the built-in specimens and the opening control attach
 // to a domain. A "_lower" twin is the mirror image of a point in a full model.
 const (
-	PointTip           = "tip"            // crack tip (growth direction in Point.Dir)
-	PointTipRight      = "tip_right"      // second crack tip (right notch of the DENT)
-	PointLoad          = "load"           // pin centre (reference point inside the hole)
-	PointLoadLower     = "load_lower"     // lower pin centre (full C(T))
-	PointMouth         = "mouth"          // notch mouth on the front face
-	PointMouthLower    = "mouth_lower"    // lower notch mouth (full C(T))
-	PointLoadLine      = "loadline"       // load line on the notch face (clip gauge)
-	PointLoadLineLower = "loadline_lower" // load line on the lower notch face (full C(T))
-	PointRoot          = "root"           // notch root of the round bar
-	PointOpening       = "opening"        // opening-control point on the upper crack face
-	PointOpeningLower  = "opening_lower"  // opening-control point on the lower crack face
+	PointTip        = "tip"         // crack tip (growth direction in Point.Dir)
+	PointTipRight   = "tip_right"   // second crack tip (right notch of the DENT)
+	PointLoad       = "load"        // pin centre (reference point inside the hole)
+	PointLoadLower  = "load_lower"  // lower pin centre (full C(T))
+	PointMouth      = "mouth"       // notch mouth on the front face
+	PointMouthLower = "mouth_lower" // lower notch mouth (full C(T), left notch of the DENT)
+	// PointMouthRight and PointMouthRightLower are the mouth corners of the
+	// DENT's right notch.
+	PointMouthRight      = "mouth_right"
+	PointMouthRightLower = "mouth_right_lower"
+	PointLoadLine        = "loadline"       // load line on the notch face (clip gauge)
+	PointLoadLineLower   = "loadline_lower" // load line on the lower notch face (full C(T))
+	PointRoot            = "root"           // notch root of the round bar
+	PointOpening         = "opening"        // opening-control point on the upper crack face
+	PointOpeningLower    = "opening_lower"  // opening-control point on the lower crack face
 )
 
 func line(a, b [2]float64, label string) Piece {
@@ -397,6 +401,11 @@ func (p DENT) Domain() (*Domain, error) {
 	d := &Domain{Points: map[string]Point{
 		PointTip:      {X: [2]float64{-w + a, 0}, Tip: true, Dir: [2]float64{1, 0}},
 		PointTipRight: {X: [2]float64{w - a, 0}, Tip: true, Dir: [2]float64{-1, 0}},
+		// the notch mouths' corners: where a clip gauge across each notch sits
+		PointMouth:           {X: [2]float64{-w, r}},
+		PointMouthLower:      {X: [2]float64{-w, -r}},
+		PointMouthRight:      {X: [2]float64{w, r}},
+		PointMouthRightLower: {X: [2]float64{w, -r}},
 	}}
 	d.Outer = Loop{
 		line([2]float64{-w, -h}, [2]float64{w, -h}, LabelBottom),

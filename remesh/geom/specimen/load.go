@@ -29,10 +29,9 @@ type Load struct {
 	Comp int
 	// Fix holds extra supports on boundary labels.
 	Fix []fem.Displacement
-	// Opening, when > 0, makes the pseudo-time drive the crack opening at
-	// the points geom.PointOpening (and geom.PointOpeningLower) that
-	// AddOpeningPoints placed to Opening at t = 1; the load factor is then
-	// solved for (K-field only). 0 means load control.
+	// Opening, when > 0, makes the pseudo-time drive the specimen's gauge
+	// (Specimen.Gauge) from its reading at the start to that plus Opening
+	// at t = 1; the load factor is then solved for. 0 means load control.
 	Opening float64
 }
 
@@ -151,8 +150,10 @@ func (s *Specimen) Apply(l Load, el criteria.Elastic) (*Setup, error) {
 	if l.Comp != 0 && l.Comp != 1 {
 		return nil, &LoadError{FieldComp, fmt.Errorf("component %d must be 0 (x or r) or 1 (y or z)", l.Comp)}
 	}
-	if l.Opening != 0 && (l.Kind != KField || !(l.Opening > 0) || math.IsInf(l.Opening, 0)) {
-		return nil, &LoadError{FieldOpening, fmt.Errorf("an opening control of %g needs a K-field load and a positive finite opening", l.Opening)}
+	if l.Opening != 0 {
+		if err := s.checkGauge(l.Opening); err != nil {
+			return nil, err
+		}
 	}
 	var err error
 	switch l.Kind {
@@ -168,7 +169,25 @@ func (s *Specimen) Apply(l Load, el criteria.Elastic) (*Setup, error) {
 	if err != nil {
 		return nil, err
 	}
+	if l.Opening != 0 {
+		su.Control = s.Gauge.Control(l.Opening)
+	}
 	return su, nil
+}
+
+// checkGauge checks that an opening control of opening can drive the
+// specimen's gauge.
+func (s *Specimen) checkGauge(opening float64) error {
+	if !(opening > 0) || math.IsInf(opening, 0) {
+		return &LoadError{FieldOpening, fmt.Errorf("the opening at t = 1 is %g; it must be positive and finite", opening)}
+	}
+	if s.Gauge == nil {
+		return &LoadError{FieldOpening, fmt.Errorf("this geometry has no natural gauge for an opening control; name its points (loading.gauge)")}
+	}
+	if err := s.Gauge.Validate(s.Domain); err != nil {
+		return &LoadError{FieldOpening, err}
+	}
+	return nil
 }
 
 // need checks that the domain has a boundary label.
@@ -215,9 +234,6 @@ func (s *Specimen) kField(su *Setup, l Load, el criteria.Elastic) error {
 	su.Measure = func(p *fem.Problem) (float64, float64, error) {
 		r, err := p.Reaction(geom.LabelRemote)
 		return k * p.TCommitted, (r[0]*normal[0] + r[1]*normal[1]) * thick, err
-	}
-	if l.Opening > 0 {
-		su.Control = openingControl(tip.Dir, l.Opening)
 	}
 	return nil
 }

@@ -4,8 +4,6 @@ import (
 	"fmt"
 
 	"tearline/remesh/geom"
-	"tearline/solver"
-	"tearline/solver/fem"
 )
 
 // AddOpeningPoints adds the named points of an opening control to the
@@ -14,7 +12,8 @@ import (
 // geom.LabelCrack), geom.PointOpening on the side the normal (−dir_y,
 // dir_x) points to and geom.PointOpeningLower on the other (full models).
 // The mesher keeps named points as vertices, so the controlled node
-// survives every remesh.
+// survives every remesh. The crack opening there becomes the specimen's
+// gauge.
 func (s *Specimen) AddOpeningPoints(behind float64) error {
 	d := s.Domain
 	tip, ok := d.Points[geom.PointTip]
@@ -54,36 +53,7 @@ func (s *Specimen) AddOpeningPoints(behind float64) error {
 	if _, ok := d.Points[geom.PointOpening]; !ok || found == 0 {
 		return fmt.Errorf("no straight crack face at %g behind the tip (the opening point must lie on a straight crack face, between the tip's rounding and the outer boundary)", behind)
 	}
+	_, full := d.Points[geom.PointOpeningLower]
+	s.Gauge = crackOpening(n, full)
 	return nil
-}
-
-// openingControl returns the control of the crack opening at the points
-// geom.PointOpening (and geom.PointOpeningLower of a full model) that
-// AddOpeningPoints placed: the displacement along the crack normal n, twice
-// the upper face's in a half model (mirror plane), upper minus lower
-// otherwise; it reaches opening at t = 1.
-func openingControl(dir [2]float64, opening float64) func(p *fem.Problem) (*solver.Control, error) {
-	n := [2]float64{-dir[1], dir[0]}
-	return func(p *fem.Problem) (*solver.Control, error) {
-		up, ok := p.Mesh.Points[geom.PointOpening]
-		if !ok {
-			return nil, fmt.Errorf("the mesh has no point %q", geom.PointOpening)
-		}
-		c := &solver.Control{Rate: opening}
-		add := func(node int, sign float64) {
-			for k, f := range [2]fem.Field{fem.Ux, fem.Uy} {
-				if n[k] != 0 {
-					c.Dofs = append(c.Dofs, p.Dofs.Of(node, f))
-					c.Weights = append(c.Weights, sign*n[k])
-				}
-			}
-		}
-		if lo, ok := p.Mesh.Points[geom.PointOpeningLower]; ok {
-			add(up, 1)
-			add(lo, -1)
-		} else {
-			add(up, 2)
-		}
-		return c, nil
-	}
 }

@@ -51,6 +51,12 @@ type Specimen struct {
 	// CT is set for a compact-tension specimen: a pin load then gives the
 	// record of the ASTM E1820 J.
 	CT *geom.CT
+	// Gauge is the specimen's natural opening gauge, which an opening
+	// control drives: the load-line opening of a C(T), the reduction of a
+	// notched bar's minimum diameter, the mean notch-mouth opening of a
+	// DENT, the crack opening behind the tip of a boundary-layer disk
+	// (AddOpeningPoints); nil where there is none (a polygon names its own).
+	Gauge *Gauge
 }
 
 // build completes a specimen of a freshly built domain.
@@ -73,7 +79,8 @@ func NewSSY(p geom.SSY) (*Specimen, error) {
 // model unless p.Full.
 func NewCT(p geom.CT) (*Specimen, error) {
 	d, err := p.Domain()
-	return build(d, err, Specimen{Natural: Pin, Symmetric: !p.Full, CT: &p})
+	g := pairOpening("load-line opening", geom.PointLoadLine, geom.PointLoadLineLower, [2]float64{0, 1}, p.Full)
+	return build(d, err, Specimen{Natural: Pin, Symmetric: !p.Full, CT: &p, Gauge: g})
 }
 
 // NewNotchedBar returns the round bar pulled at its end. Its half model has
@@ -81,14 +88,21 @@ func NewCT(p geom.CT) (*Specimen, error) {
 // evaluated in axisymmetry and the CTOD is taken without mirroring.
 func NewNotchedBar(p geom.NotchedBar) (*Specimen, error) {
 	d, err := p.Domain()
-	return build(d, err, Specimen{Natural: Displacement})
+	// ΔD = −2·u_r at the notch root on the minimum section
+	g := &Gauge{Name: "diameter reduction", Terms: []GaugeTerm{{geom.PointRoot, [2]float64{1, 0}, -2}}}
+	return build(d, err, Specimen{Natural: Displacement, Gauge: g})
 }
 
 // NewDENT returns the double-edge-notched plate pulled by clamped grips on
 // its top and bottom edges.
 func NewDENT(p geom.DENT) (*Specimen, error) {
 	d, err := p.Domain()
-	return build(d, err, Specimen{Natural: Displacement, Clamped: true})
+	// the mean of the two notches' mouth openings, upper minus lower face
+	up := [2]float64{0, 1}
+	g := &Gauge{Name: "notch-mouth opening", Terms: []GaugeTerm{
+		{geom.PointMouth, up, 0.5}, {geom.PointMouthLower, up, -0.5},
+		{geom.PointMouthRight, up, 0.5}, {geom.PointMouthRightLower, up, -0.5}}}
+	return build(d, err, Specimen{Natural: Displacement, Clamped: true, Gauge: g})
 }
 
 // NewPolygon returns a general domain; its meaning follows its labels: the

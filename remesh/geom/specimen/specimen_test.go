@@ -196,7 +196,8 @@ func TestLoadErrors(t *testing.T) {
 		{"pressure on a missing label", poly, specimen.Load{Kind: specimen.Pressure, Value: 1, Label: "top"}, specimen.FieldLabel, `no boundary label "top"`},
 		{"fix on a missing label", poly, specimen.Load{Kind: specimen.Displacement, Label: "b", Value: 1, Fix: []fem.Displacement{{Label: "c", Fix: [2]bool{true, true}}}}, specimen.FieldFix, `no boundary label "c"`},
 		{"component", poly, specimen.Load{Kind: specimen.Displacement, Label: "b", Value: 1, Comp: 2}, specimen.FieldComp, "component 2"},
-		{"opening of a pin load", ct, specimen.Load{Kind: specimen.Pin, Value: 1, Opening: 0.1}, specimen.FieldOpening, "needs a K-field"},
+		{"opening of a polygon without gauge", poly, specimen.Load{Kind: specimen.Displacement, Label: "b", Value: 1, Opening: 0.1}, specimen.FieldOpening, "no natural gauge"},
+		{"negative opening", ct, specimen.Load{Kind: specimen.Pin, Value: 1, Opening: -0.1}, specimen.FieldOpening, "must be positive"},
 		{"no kind", ssy, specimen.Load{}, specimen.FieldKind, "not a load kind"},
 	}
 	for _, c := range cases {
