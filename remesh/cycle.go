@@ -37,6 +37,9 @@ type CycleConfig struct {
 	// BCs returns the boundary conditions of a mesh (labels and named
 	// points survive remeshing, so the same function serves every mesh).
 	BCs func(m *fem.Mesh) (fem.BCs, error)
+	// Gauge, when not nil, reads the specimen's gauge in a converged state
+	// (StepRecord.Gauge; NaN without one).
+	Gauge func(p *fem.Problem) (float64, error)
 	// Measure returns the history's control quantity (applied
 	// displacement, K, …) and force of the converged state; NaN where one
 	// does not apply.
@@ -92,6 +95,7 @@ type StepRecord struct {
 	Remeshes, Iters   int
 	Cutbacks          int
 	MaxPorosity       float64
+	Gauge             float64 // the specimen's gauge reading (NaN: none)
 	TipX              [2]float64
 	Residuals         []float64
 	StepWall, CumWall time.Duration
@@ -439,7 +443,7 @@ func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error)
 	rec := &StepRecord{
 		Step: c.steps, T: c.Tau(), Load: p.TCommitted, Dofs: p.Dofs.N, Elements: len(c.mesh.Tri) - c.releasedCount(),
 		Remeshes: c.remeshes, Iters: st.Iterations, Cutbacks: st.Cutbacks,
-		JFar: math.NaN(), JDomain: math.NaN(), CTOD: math.NaN(),
+		JFar: math.NaN(), JDomain: math.NaN(), CTOD: math.NaN(), Gauge: math.NaN(),
 		Residuals: append([]float64(nil), st.Residuals...),
 		StepWall:  st.Wall, CumWall: c.wall,
 	}
@@ -450,6 +454,11 @@ func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error)
 	}
 	for i := range gp.Points {
 		rec.MaxPorosity = math.Max(rec.MaxPorosity, gp.Points[i].State.F)
+	}
+	if c.cfg.Gauge != nil {
+		if rec.Gauge, err = c.cfg.Gauge(p); err != nil {
+			return nil, fmt.Errorf("step %d: gauge: %w", c.steps, err)
+		}
 	}
 	if k := c.cfg.KField; k != nil {
 		rec.JFar = criteria.FarFieldJMixed(k.K*p.TCommitted, k.KII*p.TCommitted, k.El)
@@ -462,7 +471,7 @@ func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error)
 	if c.cfg.J != nil {
 		js, err := c.domainJ(gp)
 		if err != nil {
-			rec.Unmeasured = append(rec.Unmeasured, fmt.Errorf("domain J: %w", err))
+			rec.Unmeasured = append(rec.Unmeasured, err) // criteria names it
 		}
 		if len(js) > 0 {
 			rec.JRings = js

@@ -214,6 +214,9 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 	cfg.BCs = func(m *fem.Mesh) (fem.BCs, error) { return bcs, nil }
 	cfg.Measure, cfg.Control, cfg.KField = su.Measure, su.Control, su.KField
 	cfg.Symmetric = c.specimen.Symmetric
+	if g := c.specimen.Gauge; g != nil && g.Validate(c.specimen.Domain) == nil {
+		cfg.Gauge = g.Reading
+	}
 	rs.ct = su.CT
 	return nil
 }

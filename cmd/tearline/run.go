@@ -257,7 +257,7 @@ func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 	row := historyRow{Step: r.Step, T: r.T, Control: r.Control, Force: r.Force, JFar: r.JFar, JDomain: r.JDomain,
 		Da: r.Da, DaProj: r.DaProj, CTOD: r.CTOD, Dofs: r.Dofs, Elements: r.Elements, Remeshes: r.Remeshes,
 		Iters: r.Iters, Wall: r.CumWall.Seconds(), RSS: peakRSSMB(), JE1820: math.NaN(), Tearing: math.NaN(),
-		MaxPorosity: r.MaxPorosity}
+		MaxPorosity: r.MaxPorosity, Cutbacks: r.Cutbacks, LoadFactor: r.Load, Gauge: r.Gauge}
 	if !view.Progress().Tracked {
 		row.Da, row.DaProj = math.NaN(), math.NaN()
 	}

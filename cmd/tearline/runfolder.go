@@ -20,6 +20,7 @@ var historyColumns = []string{
 	"step", "t", "control", "force", "J_far", "J_domain", "da", "da_proj", "ctod",
 	"dofs", "elements", "remeshes", "iters", "wall_s", "rss_mb",
 	"J_E1820", "tearing_modulus", "max_porosity",
+	"cutbacks", "load_factor", "gauge",
 }
 
 // historyRow is one converged step. NaN marks a quantity that does not
@@ -30,6 +31,11 @@ type historyRow struct {
 	Da, DaProj, CTOD                        float64
 	Dofs, Elements, Remeshes, Iters         int
 	Wall, RSS, JE1820, Tearing, MaxPorosity float64
+	// Cutbacks are the failed attempts before the step converged;
+	// LoadFactor the load factor reached (t under load control); Gauge
+	// the reading of the specimen's gauge (what an opening control drives).
+	Cutbacks          int
+	LoadFactor, Gauge float64
 }
 
 func (r historyRow) fields() []string {
@@ -42,7 +48,7 @@ func (r historyRow) fields() []string {
 	i := strconv.Itoa
 	return []string{i(r.Step), f(r.T), f(r.Control), f(r.Force), f(r.JFar), f(r.JDomain), f(r.Da), f(r.DaProj),
 		f(r.CTOD), i(r.Dofs), i(r.Elements), i(r.Remeshes), i(r.Iters), f(r.Wall), f(r.RSS), f(r.JE1820),
-		f(r.Tearing), f(r.MaxPorosity)}
+		f(r.Tearing), f(r.MaxPorosity), i(r.Cutbacks), f(r.LoadFactor), f(r.Gauge)}
 }
 
 // readHistory reads the first n data rows of history.csv.
@@ -85,7 +91,7 @@ func parseHistoryRow(line string) (historyRow, error) {
 	return historyRow{Step: in(f[0]), T: num(f[1]), Control: num(f[2]), Force: num(f[3]), JFar: num(f[4]),
 		JDomain: num(f[5]), Da: num(f[6]), DaProj: num(f[7]), CTOD: num(f[8]), Dofs: in(f[9]), Elements: in(f[10]),
 		Remeshes: in(f[11]), Iters: in(f[12]), Wall: num(f[13]), RSS: num(f[14]), JE1820: num(f[15]),
-		Tearing: num(f[16]), MaxPorosity: num(f[17])}, nil
+		Tearing: num(f[16]), MaxPorosity: num(f[17]), Cutbacks: in(f[18]), LoadFactor: num(f[19]), Gauge: num(f[20])}, nil
 }
 
 // csvTable appends rows to a CSV file, flushing and syncing each row so that
