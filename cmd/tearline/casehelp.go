@@ -51,10 +51,15 @@ penalty                                augmentation penalty r, in units of σ₀
 kind         "k_field" (remote Williams field: k, t_stress), "pin" (C(T) pin: value),
              "displacement" (label, component, value), "pressure" (label, value);
              default: the specimen's natural load. Magnitudes are those at t = 1.
-control      "load" (t scales the load) or "opening" (k_field only: t drives the crack
-             opening at opening_at behind the initial tip (default {opening_at}ℓ), which reaches
-             opening at t = 1; the load factor K/k is solved for — for tearing at
-             nearly constant K, where load control stalls)
+control      "load" (t scales the load) or "opening": t drives the specimen's gauge, which
+             opens by "opening" at t = 1, and the load factor is solved for — for tearing
+             past the maximum load and through load drops, where load control stalls.
+             Natural gauges: ssy/k_field the crack opening at opening_at behind the initial
+             tip (default {opening_at}ℓ); ct the load-line opening (clip gauge); notched_bar the
+             reduction of the minimum diameter; dent the mean notch-mouth opening;
+             gauge = ["a"] or ["a", "b"] with gauge_direction = [x, y] reads named points
+             instead (one point's displacement, or b's relative to a, along the direction).
+             history.csv records the gauge reading (column gauge) and the load factor.
 [[loading.fix]]  label, component ("x", "y", "r", "z", "both") — extra supports
 
 [solver]
