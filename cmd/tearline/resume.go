@@ -24,6 +24,16 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 	if done {
 		return code
 	}
+	if _, err := os.Stat(filepath.Join(dir, "case.toml")); err != nil {
+		fmt.Fprintf(stderr, "tearline: %s is not a run folder: %v\n", dir, err)
+		return 2
+	}
+	unlock, err := lockRunFolder(dir)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: run folder %s: %v\n", dir, err)
+		return 2
+	}
+	defer unlock()
 	casePath := filepath.Join(dir, "case.toml")
 	c, _, rs, err := prepareCase(casePath, nil)
 	if err != nil {

@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"os/signal"
@@ -75,6 +76,12 @@ func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int
 		fmt.Fprintf(stderr, "tearline: run folder %s: %v\n", dir, err)
 		return 2
 	}
+	unlock, err := lockRunFolder(dir)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: run folder %s: %v\n", dir, err)
+		return 2
+	}
+	defer unlock()
 	text, err := c.encode()
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
@@ -106,13 +113,21 @@ func exitFor(err error) int {
 	return 1
 }
 
-// prepareRunFolder creates dir and its sub-folders; a folder that already
-// holds a run is refused, so that no result is ever overwritten.
+// prepareRunFolder creates dir and its sub-folders. A folder that exists
+// and is not empty is refused (DESIGN.md §6), so that nothing in it — a
+// run, or the user's own files — is ever written over.
 func prepareRunFolder(dir string) error {
+	entries, err := os.ReadDir(dir)
+	if err != nil && !errors.Is(err, fs.ErrNotExist) {
+		return err
+	}
 	for _, f := range []string{"history.csv", "summary.json", "checkpoint"} {
 		if _, err := os.Stat(filepath.Join(dir, f)); err == nil {
 			return fmt.Errorf("already holds a run (%s); use 'tearline resume %s' or choose another folder", f, dir)
 		}
+	}
+	if len(entries) > 0 {
+		return fmt.Errorf("exists and is not empty (it holds %s); a run writes only into a new or empty folder, so that nothing is written over", entries[0].Name())
 	}
 	for _, sub := range []string{"", "fields", "checkpoint", "plots"} {
 		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
