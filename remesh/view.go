@@ -20,9 +20,7 @@ type Progress struct {
 	Steps, Remeshes int
 	// T is the committed pseudo-time (the load factor, or under an
 	// opening control the pseudo-time that drives the opening).
-	T float64
-	// Load is the committed load factor (equal to T under load control).
-	Load       float64
+	T          float64
 	Da, DaProj float64
 	PeakDofs   int
 	Wall       time.Duration // wall time so far, resumes included
@@ -34,7 +32,7 @@ type Progress struct {
 // Progress returns the run's counters.
 func (v View) Progress() Progress {
 	c := v.c
-	return Progress{Steps: c.steps, Remeshes: c.remeshes, T: c.Tau(), Load: c.prob.TCommitted, Da: c.da, DaProj: c.daProj,
+	return Progress{Steps: c.steps, Remeshes: c.remeshes, T: c.Tau(), Da: c.da, DaProj: c.daProj,
 		PeakDofs: c.peakDofs, Wall: c.wall, Tracked: len(c.seeds) > 0}
 }
 

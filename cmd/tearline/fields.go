@@ -84,7 +84,7 @@ func (ob *observer) writeFields(view remesh.View) error {
 	if err := vtu.WriteFile(filepath.Join(dir, fmt.Sprintf("boundary_mesh%03d.vtu", pr.Remeshes)), func(w io.Writer) error { return vtu.WriteBoundary(w, m, nil) }); err != nil {
 		return err
 	}
-	ob.pvd = append(ob.pvd, pvdEntry{T: pr.Load, File: ref})
+	ob.pvd = append(ob.pvd, pvdEntry{T: pr.T, File: ref})
 	var cr, cd vtu.Collection
 	for _, e := range ob.pvd {
 		cr.Add(e.T, e.File)

@@ -91,6 +91,9 @@ func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
 	}
+	if *c.Adapt.Enabled && !rs.cfg.Adapt && c.Material.Model == "elastic" {
+		fmt.Fprintln(stdout, "tearline: adaptivity is off for an elastic body: it has no damage front to follow")
+	}
 	rs.cfg.Solver.Failed = retryReporter(stdout)
 	cyc, err := remesh.NewCycle(rs.cfg)
 	if err != nil {

@@ -187,6 +187,9 @@ func writeFileAtomic(path string, write func(io.Writer) error) error {
 	if err := bw.Flush(); err != nil {
 		return fail(err)
 	}
+	if err := tmp.Chmod(0o644); err != nil { // CreateTemp makes 0600
+		return fail(err)
+	}
 	if err := tmp.Sync(); err != nil {
 		return fail(err)
 	}

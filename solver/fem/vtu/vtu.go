@@ -369,6 +369,9 @@ func WriteFile(path string, fn func(io.Writer) error) error {
 	if err := fn(f); err != nil {
 		return fail(err)
 	}
+	if err := f.Chmod(0o644); err != nil { // CreateTemp makes 0600
+		return fail(fmt.Errorf("vtu: %w", err))
+	}
 	if err := f.Sync(); err != nil {
 		return fail(fmt.Errorf("vtu: %w", err))
 	}
