@@ -164,7 +164,7 @@ type Cycle struct {
 	seeds []criteria.Tip
 	// tips are the current crack tips (initially the domain's).
 	tips []criteria.Tip
-	// steps, remeshes count converged steps and remeshes; PeakDofs is the
+	// steps, remeshes count converged steps and remeshes; peakDofs is the
 	// largest problem so far.
 	steps, remeshes int
 	peakDofs        int
