@@ -6,23 +6,34 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"tearline/remesh"
 )
 
-const resumeUsage = `usage: tearline resume DIR
+const resumeUsage = `usage: tearline resume DIR [--set stop.key=value|output.key=value ...]
 
 Continues the run in DIR from its last checkpoint (DIR/checkpoint/state.gob)
 with the case as run (DIR/case.toml). Rows of history.csv written after the
 checkpoint are dropped and computed again, so the folder ends as if the run
-had never stopped. Exit status as for 'tearline run'.
+had never stopped. A case whose model changed since the checkpoint is
+refused; --set changes [stop] and [output] keys only (to take a completed
+run further, raise a stop key) and records them in DIR/case.toml.
+Exit status as for 'tearline run'.
 `
 
 func resumeCommand(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("resume", resumeUsage, stderr)
+	sets := setOverrides(fs)
 	dir, code, done := oneArgument(fs, args, "tearline resume: need the run folder", resumeUsage, stderr)
 	if done {
 		return code
+	}
+	for _, s := range *sets {
+		if !strings.HasPrefix(s, "stop.") && !strings.HasPrefix(s, "output.") {
+			fmt.Fprintf(stderr, "tearline resume: --set %s: a resumed run takes stop.* and output.* keys only (the model must stay as checkpointed)\n", s)
+			return 2
+		}
 	}
 	if _, err := os.Stat(filepath.Join(dir, "case.toml")); err != nil {
 		fmt.Fprintf(stderr, "tearline: %s is not a run folder: %v\n", dir, err)
@@ -35,7 +46,7 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	defer unlock()
 	casePath := filepath.Join(dir, "case.toml")
-	c, _, rs, err := prepareCase(casePath, nil)
+	c, _, rs, err := prepareCase(casePath, *sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %s is not a run folder: %v\n", dir, err)
 		return 2
@@ -58,10 +69,20 @@ func resumeCommand(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "tearline: %s: observer state: %v\n", cpPath, err)
 		return 1
 	}
-	text, err := os.ReadFile(casePath)
+	if code := checkModel(c, st, casePath, stderr); code != 0 {
+		return code
+	}
+	text, err := c.encode()
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
+	}
+	if len(*sets) > 0 {
+		if err := writeFileAtomic(casePath, func(w io.Writer) error { _, err := w.Write(text); return err }); err != nil {
+			fmt.Fprintf(stderr, "tearline: %v\n", err)
+			return 1
+		}
+		fmt.Fprintf(stdout, "tearline: %s records %s\n", casePath, strings.Join(*sets, ", "))
 	}
 	ob, err := newObserver(dir, c, rs, hashBytes(text), stdout, true)
 	if err != nil {
@@ -96,4 +117,19 @@ func (ob *observer) restore(st observerState) error {
 	ob.pvd = st.Fields
 	ob.iters = st.Iters
 	return nil
+}
+
+// checkModel refuses (exit 2) a case whose model — everything but [stop]
+// and [output] — differs from the one the checkpoint was written under.
+func checkModel(c *caseFile, st observerState, casePath string, stderr io.Writer) int {
+	model, err := modelHash(c)
+	if err != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return 1
+	}
+	if st.ModelHash != model {
+		fmt.Fprintf(stderr, "tearline: %s has changed since the checkpoint (keys outside [stop] and [output]); restore it, or start a new run with the new case\n", casePath)
+		return 2
+	}
+	return 0
 }

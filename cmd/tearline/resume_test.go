@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"errors"
+	"io"
 	"math"
 	"math/rand"
 	"os"
@@ -183,5 +184,50 @@ func TestInterruptStopsCleanly(t *testing.T) {
 	}
 	if out, err := exec.Command(bin, "resume", dir).CombinedOutput(); err != nil {
 		t.Fatalf("resume after Ctrl-C: %v\n%s", err, out)
+	}
+}
+
+// TestResumeGuardsTheModel: a resumed run must be the checkpointed model.
+// After case.toml is edited (Young's modulus) resume refuses with exit 2
+// and leaves history.csv as it was; `resume --set` takes stop.* and
+// output.* keys only, and raising stop.t continues a completed run to the
+// new end, recording the key in case.toml (common practice: a restart
+// continues the same analysis).
+func TestResumeGuardsTheModel(t *testing.T) {
+	casePath := writeCase(t, plasticCase)
+	dir := filepath.Join(t.TempDir(), "run")
+	if code := dispatch([]string{"run", casePath, "-o", dir, "--set", "stop.t=0.3"}, io.Discard, os.Stderr); code != 0 {
+		t.Fatalf("run: exit %d", code)
+	}
+	hist := filepath.Join(dir, "history.csv")
+	before, _ := os.ReadFile(hist)
+	caseFile := filepath.Join(dir, "case.toml")
+	orig, _ := os.ReadFile(caseFile)
+	edited := strings.Replace(string(orig), "young = 200000.0", "young = 210000.0", 1)
+	if edited == string(orig) {
+		t.Fatalf("case.toml has no young = 200000.0 line:\n%s", orig)
+	}
+	os.WriteFile(caseFile, []byte(edited), 0o644)
+	var stderr strings.Builder
+	if code := dispatch([]string{"resume", dir}, io.Discard, &stderr); code != 2 || !strings.Contains(stderr.String(), "has changed since the checkpoint") {
+		t.Fatalf("resume of an edited case: exit %d, %q; want exit 2", code, stderr.String())
+	}
+	if after, _ := os.ReadFile(hist); string(after) != string(before) {
+		t.Error("the refused resume changed history.csv")
+	}
+	os.WriteFile(caseFile, orig, 0o644)
+	stderr.Reset()
+	if code := dispatch([]string{"resume", dir, "--set", "material.young=1"}, io.Discard, &stderr); code != 2 || !strings.Contains(stderr.String(), "stop.* and output.*") {
+		t.Fatalf("resume --set material.young: exit %d, %q; want exit 2", code, stderr.String())
+	}
+	if code := dispatch([]string{"resume", dir, "--set", "stop.t=0.5"}, io.Discard, os.Stderr); code != 0 {
+		t.Fatalf("resume --set stop.t=0.5: exit %d", code)
+	}
+	_, rows := readCSV(t, hist)
+	if got := rows[len(rows)-1][1]; got != "0.5" {
+		t.Errorf("the continued run ends at t = %s, want 0.5", got)
+	}
+	if text, _ := os.ReadFile(caseFile); !strings.Contains(string(text), "t = 0.5") {
+		t.Errorf("case.toml does not record stop.t = 0.5:\n%s", text)
 	}
 }

@@ -174,6 +174,9 @@ type observerState struct {
 	RemeshRows  int        `json:"remesh_rows"`
 	Fields      []pvdEntry `json:"fields"`
 	Iters       []int      `json:"iters"`
+	// ModelHash is modelHash of the case the checkpoint was written under:
+	// resume refuses a case whose model has changed since.
+	ModelHash string `json:"model_hash"`
 }
 
 var remeshColumns = []string{
@@ -400,7 +403,11 @@ func (ob *observer) RemeshFailed(index, step int, err error) error {
 
 // checkpoint writes the committed state atomically.
 func (ob *observer) checkpoint(view remesh.View) error {
-	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters})
+	model, err := modelHash(ob.c)
+	if err != nil {
+		return err
+	}
+	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters, ModelHash: model})
 	if err != nil {
 		return err
 	}

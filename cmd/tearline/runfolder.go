@@ -240,6 +240,18 @@ func writeSummary(dir string, s summary) error {
 	})
 }
 
+// modelHash is the hash of the case with its [stop] and [output] sections
+// left out: what a resumed run must share with the checkpointed one.
+func modelHash(c *caseFile) (string, error) {
+	m := *c
+	m.Stop, m.Output = stopSection{}, outputSection{}
+	text, err := m.encode()
+	if err != nil {
+		return "", err
+	}
+	return hashBytes(text), nil
+}
+
 func hashBytes(b []byte) string {
 	h := sha256.Sum256(b)
 	return hex.EncodeToString(h[:])
