@@ -42,6 +42,16 @@ type caseSource struct {
 	sets  map[string]string // dotted key → the --set argument that overrode it
 }
 
+// given reports whether the case file or a --set gave the dotted key.
+func (s *caseSource) given(key string) bool {
+	if s == nil {
+		return false
+	}
+	_, inFile := s.lines[key]
+	_, set := s.sets[key]
+	return inFile || set
+}
+
 // where names the place of a dotted key for an error message.
 func (s *caseSource) where(key string) string {
 	if s == nil {

@@ -138,12 +138,7 @@ func (m *materialSection) complete(src *caseSource) error {
 	if err := choice(m.Model, []string{"gtn", "elastic"}, src, "material.model"); err != nil {
 		return err
 	}
-	if m.Young == 0 {
-		m.Young = def.Young
-	}
-	if src.lines["material.poisson"] == 0 && src.sets["material.poisson"] == "" && m.Poisson == 0 {
-		m.Poisson = def.Poisson
-	}
+	fillAbsent(src, "material", []defaultValue{{"young", &m.Young, def.Young}, {"poisson", &m.Poisson, def.Poisson}})
 	if err := positive(m.Young, src, "material.young"); err != nil {
 		return err
 	}
@@ -153,9 +148,10 @@ func (m *materialSection) complete(src *caseSource) error {
 	if m.Model == "elastic" {
 		return nil
 	}
-	fillZero([]defaultValue{
-		{&m.Yield, def.Yield}, {&m.Q1, def.Q1}, {&m.Q2, def.Q2}, {&m.F0, def.F0}, {&m.Fc, def.Fc}, {&m.Ff, def.Ff},
-		{&m.RefStrain, def.RefStrain}, {&m.Exponent, def.Exponent}, {&m.Penalty, def.Penalty},
+	fillAbsent(src, "material", []defaultValue{
+		{"yield_stress", &m.Yield, def.Yield}, {"q1", &m.Q1, def.Q1}, {"q2", &m.Q2, def.Q2}, {"f0", &m.F0, def.F0},
+		{"fc", &m.Fc, def.Fc}, {"ff", &m.Ff, def.Ff}, {"reference_strain", &m.RefStrain, def.RefStrain},
+		{"hardening_exponent", &m.Exponent, def.Exponent}, {"penalty", &m.Penalty, def.Penalty},
 	})
 	if m.Hardening == "" {
 		m.Hardening = def.Hardening
@@ -294,11 +290,11 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 
 func (s *solverSection) complete(src *caseSource) error {
 	def := solverDefaults()
-	fillZero([]defaultValue{
-		{&s.Increment, def.Increment}, {&s.MaxIncrement, def.MaxIncrement},
-		{&s.MinIncrement, def.MinIncrement}, {&s.Tolerance, def.Tolerance},
+	fillAbsent(src, "solver", []defaultValue{
+		{"increment", &s.Increment, def.Increment}, {"max_increment", &s.MaxIncrement, def.MaxIncrement},
+		{"min_increment", &s.MinIncrement, def.MinIncrement}, {"tolerance", &s.Tolerance, def.Tolerance},
 	})
-	if s.MaxIter == 0 {
+	if !src.given("solver.max_iterations") {
 		s.MaxIter = def.MaxIter
 	}
 	if s.Mixed == nil {
@@ -333,10 +329,8 @@ func (s *solverSection) complete(src *caseSource) error {
 
 func (s *stopSection) complete(src *caseSource) error {
 	def := stopDefaults()
-	if s.T == 0 {
-		s.T = def.T
-	}
-	if s.MaxSteps == 0 {
+	fillAbsent(src, "stop", []defaultValue{{"t", &s.T, def.T}})
+	if !src.given("stop.max_steps") {
 		s.MaxSteps = def.MaxSteps
 	}
 	if err := positive(s.T, src, "stop.t"); err != nil {
@@ -345,7 +339,7 @@ func (s *stopSection) complete(src *caseSource) error {
 	if err := checkEach(src, "stop", nonNegative, []keyValue{{"da", s.Da}, {"hours", s.Hours}}); err != nil {
 		return err
 	}
-	if s.MaxSteps < 0 {
+	if s.MaxSteps < 1 {
 		return badInput("%s: %d must be positive", src.where("stop.max_steps"), s.MaxSteps)
 	}
 	return nil
@@ -353,13 +347,11 @@ func (s *stopSection) complete(src *caseSource) error {
 
 func (o *outputSection) complete(src *caseSource) error {
 	def := outputDefaults()
-	if o.FieldsEvery == 0 {
+	if !src.given("output.fields_every") {
 		o.FieldsEvery = def.FieldsEvery
 	}
-	if o.CheckpointMinutes == 0 {
-		o.CheckpointMinutes = def.CheckpointMinutes
-	}
-	if o.FieldsEvery < 0 {
+	fillAbsent(src, "output", []defaultValue{{"checkpoint_minutes", &o.CheckpointMinutes, def.CheckpointMinutes}})
+	if o.FieldsEvery < 1 {
 		return badInput("%s: %d must be positive", src.where("output.fields_every"), o.FieldsEvery)
 	}
 	return positive(o.CheckpointMinutes, src, "output.checkpoint_minutes")
@@ -373,9 +365,9 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 	if a.Coarsen == nil {
 		a.Coarsen = def.Coarsen
 	}
-	fillZero([]defaultValue{
-		{&a.Margin, def.Margin}, {&a.Ahead, def.Ahead}, {&a.Wake, def.Wake},
-		{&a.AlertP, def.AlertP}, {&a.Simplify, def.Simplify},
+	fillAbsent(src, "adapt", []defaultValue{
+		{"margin", &a.Margin, def.Margin}, {"ahead", &a.Ahead, def.Ahead}, {"wake", &a.Wake, def.Wake},
+		{"alert_plastic_strain", &a.AlertP, def.AlertP}, {"simplify", &a.Simplify, def.Simplify},
 	})
 	if err := checkEach(src, "adapt", positive, []keyValue{
 		{"margin", a.Margin},
@@ -395,16 +387,19 @@ func (a *adaptSection) complete(src *caseSource, hasCrack bool) error {
 	return nil
 }
 
-// defaultValue is a number of a section and its default.
+// defaultValue is a number of a section, its key and its default.
 type defaultValue struct {
+	key string
 	v   *float64
 	def float64
 }
 
-// fillZero sets every value that is zero (not given) to its default.
-func fillZero(vals []defaultValue) {
+// fillAbsent sets every value whose key the case does not give to its
+// default. A written value — zero included — is kept and validated as
+// written.
+func fillAbsent(src *caseSource, section string, vals []defaultValue) {
 	for _, d := range vals {
-		if *d.v == 0 {
+		if !src.given(section + "." + d.key) {
 			*d.v = d.def
 		}
 	}
