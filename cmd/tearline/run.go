@@ -421,9 +421,12 @@ func (ob *observer) checkpoint(view remesh.View) error {
 
 // progress prints one line per step: rewritten in place on a terminal,
 // plain log lines otherwise.
+// The J is that of the resistance curve (resistanceJ: far field, ASTM
+// E1820, else the domain integral), the force that of the history.
 func (ob *observer) progress(r *remesh.StepRecord) {
-	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  cuts %d  Δa %8.4g  J %10.4g  %7.1fs",
-		r.Step, r.T, r.Dofs, r.Iters, r.Cutbacks, nanZero(r.Da), nanZero(r.JDomain), r.CumWall.Seconds())
+	row := ob.rows[len(ob.rows)-1]
+	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  cuts %d  Δa %8.4g  J %10.4g  F %10.4g  %7.1fs",
+		r.Step, r.T, r.Dofs, r.Iters, r.Cutbacks, nanZero(r.Da), nanZero(resistanceJ(row)), nanZero(r.Force), r.CumWall.Seconds())
 	if ob.tty {
 		fmt.Fprintf(ob.stdout, "\r%s", line)
 		return
