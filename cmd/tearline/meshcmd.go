@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"tearline/remesh/meshing"
+	"tearline/remesh/size"
 	"tearline/solver/fem"
 	"tearline/solver/fem/vtu"
 )
@@ -105,7 +106,9 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 	if !strings.HasSuffix(out, ".vtu") {
 		return fail(2, "output %q must end in .vtu", out)
 	}
-	c, src, err := loadCase(casePath, sets)
+	// The mesh a run starts with: the run's own domain and size options
+	// (an adaptive run's first fine zone follows adapt.ahead).
+	c, src, rs, err := prepareCase(casePath, sets)
 	if err != nil {
 		code := 1
 		if isInputError(err) {
@@ -113,20 +116,16 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		}
 		return fail(code, "%v", err)
 	}
-	sp, err := c.Geometry.specimen(src)
-	if err != nil {
-		return fail(2, "%v", err)
-	}
-	d := sp.Domain
+	d := rs.cfg.Domain
 	for _, n := range c.Geometry.notes {
 		fmt.Fprintf(stderr, "tearline mesh: note: %s: %s\n", src.where("geometry.polygon.loop"), n)
 	}
-	size, err := c.Mesh.sizeField(d, src, c.Material.Length)
+	field, err := size.NewField(d, rs.cfg.Size)
 	if err != nil {
 		return fail(2, "%v", err)
 	}
 	t0 := time.Now()
-	m, q, err := meshing.Mesh(d, size.At, c.Mesh.options())
+	m, q, err := meshing.Mesh(d, field.At, rs.cfg.Mesh)
 	secs := time.Since(t0).Seconds()
 	if err != nil {
 		if strings.HasPrefix(err.Error(), "geometry:") {
@@ -135,7 +134,7 @@ func meshCommand(args []string, stdout, stderr io.Writer) int {
 		return fail(1, "%s: meshing failed: %v (mesh.h_fine = %g, mesh.h_far = %g, mesh.max_points = %d)", filepath.Base(casePath), err, c.Mesh.HFine, c.Mesh.HFar, c.Mesh.MaxPoints)
 	}
 	bout := strings.TrimSuffix(out, ".vtu") + "-boundary.vtu"
-	if err := writeMeshFiles(out, bout, m, size.At); err != nil {
+	if err := writeMeshFiles(out, bout, m, field.At); err != nil {
 		return fail(1, "%v", err)
 	}
 	rep := meshReport{
