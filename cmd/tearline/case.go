@@ -42,6 +42,19 @@ type caseSource struct {
 	sets  map[string]string // dotted key → the --set argument that overrode it
 }
 
+// keyAt returns the dotted key written on line n of the case file, or "".
+func (s *caseSource) keyAt(n int) string {
+	if s == nil {
+		return ""
+	}
+	for k, l := range s.lines {
+		if l == n {
+			return k
+		}
+	}
+	return ""
+}
+
 // given reports whether the case file or a --set gave the dotted key.
 func (s *caseSource) given(key string) bool {
 	if s == nil {
@@ -127,7 +140,7 @@ func loadCase(path string, sets []string) (*caseFile, *caseSource, error) {
 	c := &caseFile{}
 	md, err := toml.Decode(string(data), c)
 	if err != nil {
-		return nil, nil, badInput("%s: %s", filepath.Base(path), tomlMessage(err))
+		return nil, nil, badInput("%s: %s", filepath.Base(path), tomlMessage(err, src))
 	}
 	if err := unknownKeys(md, func(k string) string { return src.where(k) }); err != nil {
 		return nil, nil, err
@@ -143,13 +156,58 @@ func loadCase(path string, sets []string) (*caseFile, *caseSource, error) {
 	return c, src, nil
 }
 
-// tomlMessage shortens the decoder's message, keeping its line and key.
-func tomlMessage(err error) string {
+// tomlMessage turns the decoder's message into the case's words: the line,
+// the key written there and what the key takes.
+func tomlMessage(err error, src *caseSource) string {
 	var pe toml.ParseError
 	if errors.As(err, &pe) {
-		return fmt.Sprintf("line %d: %s", pe.Position.Line, pe.Message)
+		line := pe.Position.Line
+		msg := pe.Message
+		if strings.Contains(msg, "out of range") {
+			msg += " (a finite number is needed)"
+		}
+		if key := src.keyAt(line); key != "" {
+			return fmt.Sprintf("line %d (%s): %s", line, key, msg)
+		}
+		return fmt.Sprintf("line %d: %s", line, msg)
 	}
-	return strings.TrimPrefix(err.Error(), "toml: ")
+	msg := strings.TrimPrefix(err.Error(), "toml: ")
+	if m := typeMismatch.FindStringSubmatch(msg); m != nil {
+		return fmt.Sprintf("%s(%s): the value is %s; this key takes %s", m[1], m[2], typeWords(m[3]), typeWords(m[4]))
+	}
+	return msg
+}
+
+// setMessage drops the place of a --set's one-line document from a
+// decoder message (the --set argument names it).
+func setMessage(msg string) string {
+	if i := strings.Index(msg, "): "); strings.HasPrefix(msg, "line 2 (") && i > 0 {
+		return msg[i+3:]
+	}
+	return strings.TrimPrefix(msg, "line 2: ")
+}
+
+// typeMismatch matches the decoder's type error: its place, then the TOML
+// and the Go types.
+var typeMismatch = regexp.MustCompile(`^(line \d+ )\(last key "([^"]+)"\): incompatible types: TOML value has type ([\w\[\]]+); destination has type ([\w\[\]]+)`)
+
+// typeWords names a TOML or Go type the way the case-file help does.
+func typeWords(t string) string {
+	switch {
+	case strings.HasPrefix(t, "float"):
+		return "a number"
+	case strings.HasPrefix(t, "int"):
+		return "a whole number"
+	case t == "string":
+		return "a string (in quotes)"
+	case t == "bool":
+		return "true or false"
+	case strings.HasPrefix(t, "[]") || strings.HasPrefix(t, "array") || t == "slice":
+		return "a list [ … ]"
+	case strings.HasPrefix(t, "map") || t == "table" || t == "struct":
+		return "a table"
+	}
+	return t
 }
 
 // unknownKeys turns undecoded keys into one error listing each with its place.
@@ -186,7 +244,7 @@ func applySet(c *caseFile, arg string, src *caseSource) error {
 	}
 	md, err := toml.Decode(doc, c)
 	if err != nil {
-		return badInput("--set %s: %s", arg, strings.TrimPrefix(strings.TrimPrefix(tomlMessage(err), "line 2: "), "line 2 "))
+		return badInput("--set %s: %s", arg, setMessage(tomlMessage(err, nil)))
 	}
 	if len(md.Undecoded()) > 0 {
 		return badInput("--set %s: unknown key %s", arg, key)

@@ -109,6 +109,8 @@ func TestBadInput(t *testing.T) {
 		{"opening point off the crack faces", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", "loading.opening_at=20"},
 			[]string{"loading.opening_at", "no straight crack face"}},
 		{"opening without control", goodElastic, []string{"loading.opening=0.1"}, []string{"loading.opening", `control = "opening"`}},
+		{"type error", strings.Replace(goodElastic, "young = 200000.0", `young = "steel"`, 1), nil, []string{"material.young", "a string", "takes a number"}},
+		{"out of range", strings.Replace(goodElastic, "young = 200000.0", "young = 1e400", 1), nil, []string{"material.young", "finite number"}},
 		{"written zero Young's modulus", goodElastic, []string{"material.young=0"}, []string{"material.young", "positive"}},
 		{"written zero end time", goodElastic, []string{"stop.t=0"}, []string{"stop.t", "positive"}},
 		{"written zero increment", goodElastic, []string{"solver.increment=0"}, []string{"solver.increment", "positive"}},
