@@ -22,14 +22,7 @@ type runRecord struct {
 // and reads its tables back.
 func runFolder(tb testing.TB, casePath string, sets ...string) runRecord {
 	tb.Helper()
-	out := filepath.Join(tb.TempDir(), "run")
-	args := []string{"run", casePath, "-o", out}
-	for _, s := range sets {
-		args = append(args, "--set", s)
-	}
-	if code := dispatch(args, io.Discard, os.Stderr); code != 0 {
-		tb.Fatalf("%v: exit %d", args, code)
-	}
+	out := runCase(tb, casePath, sets...)
 	var r runRecord
 	data, err := os.ReadFile(filepath.Join(out, "summary.json"))
 	if err != nil {
@@ -60,6 +53,21 @@ func runFolder(tb testing.TB, casePath string, sets ...string) runRecord {
 		}
 	}
 	return r
+}
+
+// runCase runs a case through the command line into a fresh run folder
+// and returns the folder.
+func runCase(tb testing.TB, casePath string, sets ...string) string {
+	tb.Helper()
+	out := filepath.Join(tb.TempDir(), "run")
+	args := []string{"run", casePath, "-o", out}
+	for _, s := range sets {
+		args = append(args, "--set", s)
+	}
+	if code := dispatch(args, io.Discard, os.Stderr); code != 0 {
+		tb.Fatalf("%v: exit %d", args, code)
+	}
+	return out
 }
 
 // jAt is J_far where the crack first reaches Δa = a (linear interpolation

@@ -1,9 +1,7 @@
 package main
 
 import (
-	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"testing"
@@ -46,14 +44,7 @@ enabled = false
 // columns.
 func forceCurve(t *testing.T, casePath string, sets ...string) (x, f []float64) {
 	t.Helper()
-	out := filepath.Join(t.TempDir(), "run")
-	args := []string{"run", casePath, "-o", out}
-	for _, s := range sets {
-		args = append(args, "--set", s)
-	}
-	if code := dispatch(args, io.Discard, os.Stderr); code != 0 {
-		t.Fatalf("%v: exit %d", args, code)
-	}
+	out := runCase(t, casePath, sets...)
 	h, rows := readCSV(t, filepath.Join(out, "history.csv"))
 	ic, ifo := column(t, h, "control"), column(t, h, "force")
 	for _, r := range rows {

@@ -6,10 +6,8 @@ import (
 
 	"tearline/remesh/geom"
 	"tearline/remesh/geom/specimen"
-	"tearline/remesh/meshing"
 	"tearline/remesh/size"
 	"tearline/solver/fem"
-	"tearline/solver/material"
 )
 
 // TestNaturalGauges reads each built-in specimen's gauge in the homogeneous
@@ -62,25 +60,9 @@ func TestNaturalGauges(t *testing.T) {
 // u = (ex·x, ey·y) at every node.
 func homogeneousField(t *testing.T, d *geom.Domain, kin fem.Kinematics, ex, ey float64) *fem.Problem {
 	t.Helper()
-	sf, err := size.NewField(d, size.Options{HFine: 0.5, HFar: 5})
-	if err != nil {
-		t.Fatal(err)
-	}
-	m, _, err := meshing.Mesh(d, sf.At, meshing.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	mat, err := material.NewHencky(material.Elastic{Young: steel.E, Poisson: steel.Nu})
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := fem.NewProblem(m, mat, fem.Options{Kinematics: kin, DisplacementOnly: true}, fem.BCs{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(p.Close)
-	ux, uy := make([]float64, len(m.X)), make([]float64, len(m.X))
-	for i, x := range m.X {
+	p := elasticProblem(t, d, size.Options{HFine: 0.5, HFar: 5}, kin, fem.BCs{})
+	ux, uy := make([]float64, len(p.Mesh.X)), make([]float64, len(p.Mesh.X))
+	for i, x := range p.Mesh.X {
 		ux[i], uy[i] = ex*x[0], ey*x[1]
 	}
 	if err := p.SetNodalField(fem.Ux, ux); err != nil {

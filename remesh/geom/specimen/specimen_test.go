@@ -319,12 +319,11 @@ func TestWilliamsForce(t *testing.T) {
 	}
 }
 
-// solveElastic meshes d (fine at the tip) and solves it in one increment
-// to t = 1 with a Hencky material of the constants steel (small strains:
-// linear elasticity).
-func solveElastic(t *testing.T, d *geom.Domain, bcs fem.BCs) *fem.Problem {
+// elasticProblem meshes d to the size options and sets up a Hencky problem
+// of the constants steel (small strains: linear elasticity) with bcs.
+func elasticProblem(t *testing.T, d *geom.Domain, so size.Options, kin fem.Kinematics, bcs fem.BCs) *fem.Problem {
 	t.Helper()
-	sf, err := size.NewField(d, size.Options{HFine: 0.02, HFar: 1})
+	sf, err := size.NewField(d, so)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -336,11 +335,20 @@ func solveElastic(t *testing.T, d *geom.Domain, bcs fem.BCs) *fem.Problem {
 	if err != nil {
 		t.Fatal(err)
 	}
-	p, err := fem.NewProblem(m, mat, fem.Options{Kinematics: fem.PlaneStrain, DisplacementOnly: true}, bcs)
+	p, err := fem.NewProblem(m, mat, fem.Options{Kinematics: kin, DisplacementOnly: true}, bcs)
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(p.Close)
+	return p
+}
+
+// solveElastic meshes d (fine at the tip) and solves it in one increment
+// to t = 1 with a Hencky material of the constants steel (small strains:
+// linear elasticity).
+func solveElastic(t *testing.T, d *geom.Domain, bcs fem.BCs) *fem.Problem {
+	t.Helper()
+	p := elasticProblem(t, d, size.Options{HFine: 0.02, HFar: 1}, fem.PlaneStrain, bcs)
 	opt := solver.DefaultOptions()
 	opt.Dt = 1
 	sv, err := solver.New(p, opt)
