@@ -226,6 +226,17 @@ func (lu *LU) NNZ() int {
 	return lu.num.nnz
 }
 
+// Estimate returns what the symbolic analysis predicts of a factorisation:
+// the entries of L and U (without delayed pivots, which add some) and the
+// floating-point operations; zeros before Analyze. It lets a caller size a
+// problem without factorising it.
+func (lu *LU) Estimate() (nnz int, flops float64) {
+	if lu.sym == nil {
+		return 0, 0
+	}
+	return lu.sym.nnzEst, lu.sym.flops
+}
+
 // Solve solves A·x = b for x, stored in dst, using the last factorisation,
 // followed by up to Options.RefineSteps steps of iterative refinement
 // (Wilkinson; see Higham 2002, Accuracy and Stability of Numerical
