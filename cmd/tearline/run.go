@@ -478,9 +478,22 @@ func resistanceJ(r historyRow) float64 {
 // newFlags returns the flag set of a subcommand; -h prints its usage.
 func newFlags(name, usage string, stderr io.Writer) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
-	fs.SetOutput(stderr)
+	fs.SetOutput(flagMessages{stderr})
 	fs.Usage = func() { fmt.Fprint(stderr, usage) }
 	return fs
+}
+
+// flagMessages writes the flag package's messages in the command line's
+// own words and spelling (--name).
+type flagMessages struct{ w io.Writer }
+
+func (f flagMessages) Write(p []byte) (int, error) {
+	s := strings.Replace(string(p), "flag provided but not defined: -", "unknown option --", 1)
+	s = strings.Replace(s, "flag needs an argument: -", "option needs a value: --", 1)
+	if _, err := io.WriteString(f.w, s); err != nil {
+		return 0, err
+	}
+	return len(p), nil
 }
 
 // setOverrides registers the repeatable --set flag.

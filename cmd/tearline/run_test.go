@@ -319,3 +319,21 @@ func TestElasticCaseRunsWithDefaults(t *testing.T) {
 		t.Errorf("summary: %s, want status completed", data)
 	}
 }
+
+// TestOptionMessages: an unknown option and an option without its value
+// are refused with exit 2 in the command line's own words, spelt --name.
+func TestOptionMessages(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"run", "case.toml", "--bogus"}, "unknown option --bogus"},
+		{[]string{"run", "case.toml", "-o"}, "option needs a value: --o"},
+		{[]string{"check", "--strict", "case.toml"}, "unknown option --strict"},
+	} {
+		var stderr bytes.Buffer
+		if code := dispatch(c.args, io.Discard, &stderr); code != 2 || !strings.Contains(stderr.String(), c.want) {
+			t.Errorf("%v: exit %d, %q; want exit 2 and %q", c.args, code, stderr.String(), c.want)
+		}
+	}
+}
