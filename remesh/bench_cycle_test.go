@@ -51,7 +51,7 @@ func benchCycle(b *testing.B) *Cycle {
 	// pipeline, and re-equilibration at the same load.
 	c.cfg.Adapt = true
 	c.cfg.Follow = benchFollow(cfg.Follow.Length, tc.HFar)
-	if _, err := c.remesh(trigger.Decision{Reason: "benchmark set-up"}); err != nil {
+	if _, err := c.remesh(trigger.Decision{Reason: "benchmark set-up"}, c.GaussPoints()); err != nil {
 		b.Fatal(err)
 	}
 	b.Logf("set-up: Δa = %.3g mm after %d steps, %d unknowns, %d elements, max f %.3g (%v)",
@@ -107,7 +107,7 @@ func remeshOnce(c *Cycle, tips []criteria.Tip) (p *fem.Problem, ph [4]time.Durat
 	}
 	ph[1] = time.Since(t0)
 	t0 = time.Now()
-	from, err := c.fields()
+	from, err := c.fields(c.GaussPoints())
 	if err != nil {
 		return nil, ph, err
 	}

@@ -50,7 +50,7 @@ type checkpoint struct {
 // WriteCheckpoint writes the committed state of the run to w (encoding/gob).
 // The caller makes the write atomic (temporary file, sync, rename).
 func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
-	f, err := c.fields()
+	f, err := c.fields(c.GaussPoints())
 	if err != nil {
 		return err
 	}
@@ -59,11 +59,9 @@ func (c *Cycle) WriteCheckpoint(w io.Writer, extra []byte) error {
 		Steps: c.steps, Remeshes: c.remeshes, PeakDofs: c.peakDofs, Da: c.da, DaProj: c.daProj,
 		Tips: c.tips, Zone: c.zone, Wall: c.wall, Extra: extra, Releases: c.prob.Releases(),
 	}
-	if c.solver.P == c.prob {
-		cp.Prev = c.solver.PreviousIncrement()
-		if ctl := c.solver.Controlled(); ctl != nil {
-			cp.Offset = ctl.Offset
-		}
+	cp.Prev = c.solver.PreviousIncrement()
+	if ctl := c.solver.Controlled(); ctl != nil {
+		cp.Offset = ctl.Offset
 	}
 	return gob.NewEncoder(w).Encode(&cp)
 }

@@ -326,7 +326,7 @@ func (c *Cycle) Run(obs Observer) (Outcome, error) {
 		if !v.remesh.Remesh {
 			continue
 		}
-		if v, err := c.remeshOrRetry(v.remesh, obs); err != nil || v.stop {
+		if v, err := c.remeshOrRetry(v.remesh, gp, obs); err != nil || v.stop {
 			return c.outcome(v), err
 		}
 	}
@@ -405,8 +405,8 @@ func (c *Cycle) decide(gp *fem.GaussPoints) (verdict, error) {
 // its old mesh and state, to try again after the next step (a transient
 // failure, typically in re-equilibration), unless it has failed
 // remeshAttempts times in a row.
-func (c *Cycle) remeshOrRetry(d trigger.Decision, obs Observer) (verdict, error) {
-	rr, err := c.remesh(d)
+func (c *Cycle) remeshOrRetry(d trigger.Decision, gp *fem.GaussPoints, obs Observer) (verdict, error) {
+	rr, err := c.remesh(d, gp)
 	if err == nil {
 		c.remeshFails = 0
 		return verdict{}, obs.Remesh(rr, View{c})

@@ -213,7 +213,7 @@ func TestRemeshReaction(t *testing.T) {
 		t.Fatalf("no plastic void growth before the remesh (max f %g)", rec.steps[len(rec.steps)-1].MaxPorosity)
 	}
 	c.cfg.Adapt = true
-	rr, err := c.remesh(trigger.Decision{Reason: "test"})
+	rr, err := c.remesh(trigger.Decision{Reason: "test"}, c.GaussPoints())
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -17,7 +17,7 @@ import (
 // state onto it and re-establishes equilibrium at the same load. The new
 // mesh replaces the current one only once it is in equilibrium: a failed
 // remesh leaves the run at its last converged state.
-func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
+func (c *Cycle) remesh(d trigger.Decision, gp *fem.GaussPoints) (*RemeshRecord, error) {
 	rr := &RemeshRecord{
 		Index: c.remeshes + 1, Step: c.steps, T: c.Tau(), Da: c.da, Reason: d.Reason,
 		DofsBefore: c.prob.Dofs.N, ElemsBefore: len(c.mesh.Tri),
@@ -27,7 +27,7 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 		return nil, err
 	}
 	t0 := time.Now()
-	field, released, err := c.sizeField()
+	field, released, err := c.sizeField(gp)
 	if err != nil {
 		return nil, err
 	}
@@ -43,7 +43,7 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 	}
 	rr.MeshWall = time.Since(t0)
 	t0 = time.Now()
-	next, err := c.transferTo(m, rr)
+	next, err := c.transferTo(m, gp, rr)
 	if err != nil {
 		return nil, err
 	}
@@ -60,8 +60,7 @@ func (c *Cycle) remesh(d trigger.Decision) (*RemeshRecord, error) {
 // elements that leave the geometry: those out of the assembly (broken,
 // or releasing their force; what force they still held is part of the
 // out-of-balance force re-equilibration relaxes).
-func (c *Cycle) sizeField() (*size.TipField, []bool, error) {
-	gp := c.GaussPoints()
+func (c *Cycle) sizeField(gp *fem.GaussPoints) (*size.TipField, []bool, error) {
 	released := make([]bool, len(c.mesh.Tri))
 	for e := range released {
 		released[e] = c.prob.Released(e)
@@ -109,8 +108,8 @@ func (c *Cycle) newMesh(dom *geom.Domain, field *size.TipField, rr *RemeshRecord
 // transferTo maps the committed state onto mesh m: the new problem, its
 // committed state the transferred one, made compatible with the
 // transferred displacement (volume projection, plastic strain).
-func (c *Cycle) transferTo(m *fem.Mesh, rr *RemeshRecord) (*stage, error) {
-	from, err := c.fields()
+func (c *Cycle) transferTo(m *fem.Mesh, gp *fem.GaussPoints, rr *RemeshRecord) (*stage, error) {
+	from, err := c.fields(gp)
 	if err != nil {
 		return nil, err
 	}

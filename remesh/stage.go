@@ -34,7 +34,7 @@ func linearFields() [4]fem.Field {
 }
 
 // fields collects the committed state of the current problem for a transfer.
-func (c *stage) fields() (*transfer.Fields, error) {
+func (c *stage) fields(gp *fem.GaussPoints) (*transfer.Fields, error) {
 	f := &transfer.Fields{U: c.prob.Displacement()}
 	nn := len(c.mesh.X)
 	for _, fd := range linearFields() {
@@ -47,7 +47,6 @@ func (c *stage) fields() (*transfer.Fields, error) {
 		}
 		f.Linear = append(f.Linear, v[:c.mesh.NumCorners])
 	}
-	gp := c.GaussPoints()
 	n := len(gp.Points)
 	f.State = make([]material.State, n)
 	f.Gauss = make([]transfer.GaussData, n)
@@ -210,16 +209,25 @@ func (c *stage) settleTransferred() (int, error) {
 	}
 }
 
-// gaussData unpacks the Gauss-point data of f into W, F and P in the
-// layout of fem.Problem.SetGaussData.
-func gaussData(f *transfer.Fields) (F, P [][5]float64, W []float64, err error) {
+// gaussData unpacks the Gauss-point data of f into W and, for an exact
+// (checkpointed) state, F and P, in the layout of
+// fem.Problem.SetGaussData. Transferred F and P are not those of the
+// transferred displacement: they stay nil, and the caller adopts the
+// assembled ones instead.
+func gaussData(f *transfer.Fields, exact bool) (F, P [][5]float64, W []float64, err error) {
 	if f.Gauss == nil {
 		return nil, nil, nil, errors.New("the state holds no Gauss-point data (W, F, P)")
 	}
 	n := len(f.Gauss)
-	F, P, W = make([][5]float64, n), make([][5]float64, n), make([]float64, n)
+	W = make([]float64, n)
+	if exact {
+		F, P = make([][5]float64, n), make([][5]float64, n)
+	}
 	for i, d := range f.Gauss {
-		F[i], P[i], W[i] = d.F, d.P, d.W
+		W[i] = d.W
+		if exact {
+			F[i], P[i] = d.F, d.P
+		}
 	}
 	return F, P, W, nil
 }
@@ -262,14 +270,9 @@ func (c *stage) install(f *transfer.Fields, t float64, exact bool) error {
 	if err := p.SetState(st); err != nil {
 		return err
 	}
-	F, P, W, err := gaussData(f)
+	F, P, W, err := gaussData(f, exact)
 	if err != nil {
 		return err
-	}
-	if !exact {
-		// Transferred F and P are not those of the transferred
-		// displacement: the caller adopts the assembled ones instead.
-		F, P = nil, nil
 	}
 	if err := p.SetGaussData(F, P, W); err != nil {
 		return err
