@@ -214,7 +214,7 @@ func (rs *runSetup) loading(c *caseFile, src *caseSource, cfg *remesh.CycleConfi
 	cfg.BCs = func(m *fem.Mesh) (fem.BCs, error) { return bcs, nil }
 	cfg.Measure, cfg.Control, cfg.KField = su.Measure, su.Control, su.KField
 	cfg.Symmetric = c.specimen.Symmetric
-	if g := c.specimen.Gauge; g != nil && g.Validate(c.specimen.Domain) == nil {
+	if g := c.specimen.Gauge; g != nil { // checked where it was placed
 		cfg.Gauge = g.Reading
 	}
 	rs.ct = su.CT

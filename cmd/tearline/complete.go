@@ -86,11 +86,13 @@ func (l *loadingSection) placeGauge(sp *specimen.Specimen, src *caseSource) erro
 	return nil
 }
 
-// pointNames lists a domain's named points in name order.
+// pointNames lists the named points of a domain's mesh in name order.
 func pointNames(d *geom.Domain) []string {
 	var names []string
-	for n := range d.Points {
-		names = append(names, n)
+	for n, p := range d.Points {
+		if !p.Ref {
+			names = append(names, n)
+		}
 	}
 	sort.Strings(names)
 	return names

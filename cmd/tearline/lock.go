@@ -20,17 +20,16 @@ const lockName = "run.lock"
 // The returned function removes the lock.
 func lockRunFolder(dir string) (func(), error) {
 	path := filepath.Join(dir, lockName)
+	// The lock appears with its process id already in it (a hard link of a
+	// written temporary file), so no reader ever sees an empty lock.
+	tmp := filepath.Join(dir, fmt.Sprintf(".%s.%d", lockName, os.Getpid()))
+	if err := os.WriteFile(tmp, []byte(fmt.Sprintf("%d\n", os.Getpid())), 0o644); err != nil {
+		return nil, err
+	}
+	defer os.Remove(tmp)
 	for attempt := 0; attempt < 2; attempt++ {
-		f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		err := os.Link(tmp, path)
 		if err == nil {
-			_, werr := fmt.Fprintf(f, "%d\n", os.Getpid())
-			if cerr := f.Close(); werr == nil {
-				werr = cerr
-			}
-			if werr != nil {
-				os.Remove(path)
-				return nil, werr
-			}
 			return func() { os.Remove(path) }, nil
 		}
 		if !errors.Is(err, fs.ErrExist) {

@@ -146,6 +146,7 @@ type observer struct {
 	c        *caseFile
 	rs       *runSetup
 	hash     string
+	model    string // modelHash of the case, kept in every checkpoint
 	stdout   io.Writer
 	tty      bool
 	history  *csvTable
@@ -188,7 +189,11 @@ var remeshColumns = []string{
 }
 
 func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.Writer, resume bool) (*observer, error) {
-	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, stdout: stdout, lastCP: time.Now(),
+	model, err := modelHash(c)
+	if err != nil {
+		return nil, err
+	}
+	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, model: model, stdout: stdout, lastCP: time.Now(),
 		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute))}
 	if f, ok := stdout.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
@@ -198,7 +203,6 @@ func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.W
 	if resume {
 		return ob, nil
 	}
-	var err error
 	if ob.history, err = createCSV(filepath.Join(dir, "history.csv"), historyColumns); err != nil {
 		return nil, err
 	}
@@ -403,11 +407,7 @@ func (ob *observer) RemeshFailed(index, step int, err error) error {
 
 // checkpoint writes the committed state atomically.
 func (ob *observer) checkpoint(view remesh.View) error {
-	model, err := modelHash(ob.c)
-	if err != nil {
-		return err
-	}
-	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters, ModelHash: model})
+	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters, ModelHash: ob.model})
 	if err != nil {
 		return err
 	}

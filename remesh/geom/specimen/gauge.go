@@ -36,10 +36,19 @@ func (g *Gauge) Validate(d *geom.Domain) error {
 	if len(g.Terms) == 0 {
 		return fmt.Errorf("gauge %q reads no point", g.Name)
 	}
+	seen := map[string]bool{}
 	for _, t := range g.Terms {
-		if _, ok := d.Points[t.Point]; !ok {
+		p, ok := d.Points[t.Point]
+		if !ok {
 			return fmt.Errorf("gauge %q: the geometry has no named point %q", g.Name, t.Point)
 		}
+		if p.Ref {
+			return fmt.Errorf("gauge %q: %q is a reference point, not a point of the body's mesh", g.Name, t.Point)
+		}
+		if seen[t.Point] {
+			return fmt.Errorf("gauge %q reads point %q twice (a relative displacement needs two different points)", g.Name, t.Point)
+		}
+		seen[t.Point] = true
 		if n := math.Hypot(t.Dir[0], t.Dir[1]); !(n > 0) || math.IsInf(n, 0) || !(t.Weight != 0) || math.IsInf(t.Weight, 0) {
 			return fmt.Errorf("gauge %q at %q: direction %v and weight %g must be finite and non-zero", g.Name, t.Point, t.Dir, t.Weight)
 		}

@@ -2,6 +2,7 @@ package specimen_test
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"tearline/remesh/geom"
@@ -72,4 +73,28 @@ func homogeneousField(t *testing.T, d *geom.Domain, kin fem.Kinematics, ex, ey f
 		t.Fatal(err)
 	}
 	return p
+}
+
+// TestGaugeValidate: a gauge reads distinct named points of the body's
+// mesh along finite non-zero directions (a reference point such as the
+// C(T) pin centre is not a mesh node; common practice: refuse it before
+// the run, not inside the solver).
+func TestGaugeValidate(t *testing.T) {
+	ct := built(t)(specimen.NewCT(geom.DefaultCT()))
+	up := [2]float64{0, 1}
+	for _, c := range []struct {
+		name string
+		g    specimen.Gauge
+		want string
+	}{
+		{"missing point", specimen.Gauge{Name: "g", Terms: []specimen.GaugeTerm{{"nowhere", up, 1}}}, "no named point"},
+		{"reference point", specimen.Gauge{Name: "g", Terms: []specimen.GaugeTerm{{geom.PointLoad, up, 1}}}, "reference point"},
+		{"same point twice", specimen.Gauge{Name: "g", Terms: []specimen.GaugeTerm{{geom.PointMouth, up, 1}, {geom.PointMouth, up, -1}}}, "twice"},
+		{"zero direction", specimen.Gauge{Name: "g", Terms: []specimen.GaugeTerm{{geom.PointMouth, [2]float64{}, 1}}}, "non-zero"},
+		{"no terms", specimen.Gauge{Name: "g"}, "reads no point"},
+	} {
+		if err := c.g.Validate(ct.Domain); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want an error containing %q", c.name, err, c.want)
+		}
+	}
 }
