@@ -23,6 +23,9 @@ type CTODOptions struct {
 	Symmetric bool
 	// Label names the crack-face boundary label; "" means "crack".
 	Label string
+	// Locator, when not nil, is m.CornerLocator() built once by a caller
+	// that measures the same mesh step after step; nil builds it.
+	Locator *plane.Locator
 }
 
 // Opening is the result of CTOD: the opening δ, the vertex (deformed tip)
@@ -59,7 +62,11 @@ func CTOD(m *fem.Mesh, u [][2]float64, opt CTODOptions) (Opening, error) {
 	if li < 0 {
 		return o, fmt.Errorf("CTOD: the mesh has no boundary label %q for the crack faces (labels: %v)", label, m.Labels)
 	}
-	ut, err := displacementAt(m, u, opt.Tip)
+	loc := opt.Locator
+	if loc == nil {
+		loc = m.CornerLocator()
+	}
+	ut, err := displacementAt(m, loc, u, opt.Tip)
 	if err != nil {
 		return o, fmt.Errorf("CTOD: %w", err)
 	}
@@ -168,8 +175,7 @@ func cutQuadratic(p [3][2]float64, v, d [2]float64) [][2]float64 {
 // x with the quadratic shape functions of the triangle that contains it
 // (straight-sided location; the nearest triangle within a small tolerance
 // for points on the boundary).
-func displacementAt(m *fem.Mesh, u [][2]float64, x [2]float64) ([2]float64, error) {
-	loc := m.CornerLocator()
+func displacementAt(m *fem.Mesh, loc *plane.Locator, u [][2]float64, x [2]float64) ([2]float64, error) {
 	e, l, ok := loc.FindFirst(x, 0)
 	if !ok {
 		// just outside, by round-off on a curved or carved boundary:

@@ -533,7 +533,7 @@ func (c *Cycle) domainJ(gp *fem.GaussPoints) ([]float64, error) {
 // ctod measures the crack-tip opening at the first tip.
 func (c *Cycle) ctod() (float64, error) {
 	t := c.tips[0]
-	op, err := criteria.CTOD(c.mesh, c.prob.Displacement(), criteria.CTODOptions{Tip: t.X, Dir: t.Dir, Symmetric: c.cfg.Symmetric})
+	op, err := criteria.CTOD(c.mesh, c.prob.Displacement(), criteria.CTODOptions{Tip: t.X, Dir: t.Dir, Symmetric: c.cfg.Symmetric, Locator: c.locator()})
 	return op.Delta, err
 }
 

@@ -8,6 +8,7 @@ import (
 	"tearline/solver"
 	"tearline/solver/fem"
 	"tearline/solver/material"
+	"tearline/solver/plane"
 	"tearline/transfer"
 )
 
@@ -18,6 +19,16 @@ type stage struct {
 	mesh *fem.Mesh
 	prob *fem.Problem
 	gp   fem.GaussPoints
+	// loc is the point locator of mesh, built on first use.
+	loc *plane.Locator
+}
+
+// locator returns the stage's point locator on its mesh.
+func (c *stage) locator() *plane.Locator {
+	if c.loc == nil {
+		c.loc = c.mesh.CornerLocator()
+	}
+	return c.loc
 }
 
 // GaussPoints returns the committed Gauss-point data of the stage's
