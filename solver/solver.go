@@ -257,11 +257,15 @@ func (e *attemptError) Unwrap() error { return e.err }
 // problem is rolled back to the committed state and the error says why.
 // t equal to the committed time re-establishes equilibrium at fixed load
 // (after a state transfer).
-func (s *Solver) Increment(t float64) (Step, error) {
+func (s *Solver) Increment(t float64) (Step, error) { return s.increment(t, s.Time()) }
+
+// increment attempts one increment from pseudo-time from (the committed
+// one) to t.
+func (s *Solver) increment(t, from float64) (Step, error) {
 	p := s.P
-	st := Step{T: t, Dt: t - s.Time()}
+	st := Step{T: t, Dt: t - from}
 	s.history = s.history[:0]
-	it, err := s.newton(t)
+	it, err := s.newton(t, from)
 	st.Iterations = it
 	st.Residuals = s.history
 	if err != nil {
@@ -284,9 +288,9 @@ func (s *Solver) Increment(t float64) (Step, error) {
 
 // newton runs the iterations of one attempt; it returns the number of
 // linear solves.
-func (s *Solver) newton(t float64) (int, error) {
+func (s *Solver) newton(t, from float64) (int, error) {
 	o := s.Opt
-	m0, err := s.begin(t)
+	m0, err := s.begin(t, from)
 	if err != nil {
 		return 0, err
 	}
@@ -340,16 +344,17 @@ func (s *Solver) newton(t float64) (int, error) {
 	}
 }
 
-// begin starts an attempt to pseudo-time t from the committed state: it
+// begin starts an attempt to pseudo-time t from the committed state (at
+// pseudo-time from): it
 // extrapolates the last converged increment (Options.Extrapolate),
 // assembles, analyses the tangent's pattern the first time, and returns the
 // scaled residual m0 it starts from (recorded in the history).
-func (s *Solver) begin(t float64) (float64, error) {
+func (s *Solver) begin(t, from float64) (float64, error) {
 	p, o := s.P, s.Opt
 	p.Rollback()
 	load := s.startLoad(t)
 	extrapolated := false
-	if dt := t - s.Time(); o.Extrapolate && s.dtPrev > 0 && dt > 0 {
+	if dt := t - from; o.Extrapolate && s.dtPrev > 0 && dt > 0 {
 		extrapolated = true
 		f := dt / s.dtPrev
 		for i, d := range s.dPrev {
@@ -748,11 +753,8 @@ func (s *Solver) Settle() (Step, error) {
 	if s.ctl != nil {
 		return Step{}, errors.New("solver: Settle is for a rebound solver, before its control is anchored")
 	}
-	pending := s.pending
-	s.pending = nil // the increment is in the load factor
-	st, err := s.Increment(s.P.TCommitted)
-	s.pending = pending
-	return st, err
+	// the increment is in the load factor, from its committed value
+	return s.increment(s.P.TCommitted, s.P.TCommitted)
 }
 
 // NextDt returns the increment the next step will try.
