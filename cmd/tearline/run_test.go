@@ -301,8 +301,9 @@ func TestCTE1820AgainstDomainJ(t *testing.T) {
 
 // TestElasticCaseRunsWithDefaults: an elastic case on a cracked geometry,
 // with the [adapt] section left out, runs to completion on its first mesh
-// (an elastic body has no damage front to follow; it used to be refused
-// with an unset trigger front level).
+// (an elastic body has no damage front to follow, so nothing is remeshed:
+// common practice; it used to be refused with an unset trigger front
+// level).
 func TestElasticCaseRunsWithDefaults(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "run")
 	var stderr bytes.Buffer
@@ -323,7 +324,8 @@ func TestElasticCaseRunsWithDefaults(t *testing.T) {
 }
 
 // TestOptionMessages: an unknown option and an option without its value
-// are refused with exit 2 in the command line's own words, spelt --name.
+// are refused with exit 2 in the command line's own words, spelt --name
+// (DESIGN.md §7: every error names what, where and what is allowed).
 func TestOptionMessages(t *testing.T) {
 	for _, c := range []struct {
 		args []string
