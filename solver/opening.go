@@ -28,6 +28,10 @@ type Control struct {
 	Weights []float64
 	Rate    float64 // change of the controlled value per unit pseudo-time
 	Offset  float64 // controlled value at τ = 0 (SetControl sets it)
+	// zone: the controlled quantity is the process zone's plastic strain
+	// over the increment (dissipation-driven control, see zone.go), not
+	// the combination of unknowns.
+	zone bool
 }
 
 // Value is the controlled combination at the unknowns u.
@@ -49,8 +53,10 @@ func (s *Solver) SetControl(c *Control, tau float64) error {
 		s.ctl = nil
 		return nil
 	}
-	if err := s.checkControl(c); err != nil {
-		return err
+	if !c.zone {
+		if err := s.checkControl(c); err != nil {
+			return err
+		}
 	}
 	p := s.P
 	if err := p.TrackLoadRate(); err != nil {
@@ -120,12 +126,14 @@ func (s *Solver) borderedStep(t float64) (float64, error) {
 	if err := s.lin.Solve(s.x2, s.u0); err != nil {
 		return 0, err
 	}
-	g := c.Value(p.U) - (c.Offset + c.Rate*t)
-	den := c.Value(s.x2)
+	g, ax1, den := s.border(t)
 	if !(math.Abs(den) > 0) || math.IsInf(den, 0) {
+		if c.zone {
+			return 0, errors.New("the process zone's plastic strain does not respond to the load factor")
+		}
 		return 0, errors.New("the controlled opening does not respond to the load factor")
 	}
-	dT := -(g + c.Value(s.du)) / den
+	dT := -(g + ax1) / den
 	if math.IsNaN(dT) || math.IsInf(dT, 0) {
 		return 0, errors.New("load-factor correction is not finite")
 	}
@@ -135,6 +143,33 @@ func (s *Solver) borderedStep(t float64) (float64, error) {
 	return dT, nil
 }
 
+// gap is the constraint's residual g at pseudo-time t: the controlled
+// value less its target.
+func (s *Solver) gap(t float64) float64 {
+	c := s.ctl
+	if c.zone {
+		v, _, _, _ := s.P.ProcessZone()
+		return v - c.Rate*(t-s.tauC)
+	}
+	return c.Value(s.P.U) - (c.Offset + c.Rate*t)
+}
+
+// border returns the constraint's residual g at pseudo-time t and its
+// linearisation along the corrections x₁ = s.du (a·x₁) and x₂ = s.x2 plus
+// the load factor's own contribution (a·x₂ + ∂g/∂T).
+func (s *Solver) border(t float64) (g, ax1, ax2 float64) {
+	c := s.ctl
+	if !c.zone {
+		return s.gap(t), c.Value(s.du), c.Value(s.x2)
+	}
+	_, grad, dT, _ := s.P.ProcessZone()
+	for i, a := range grad {
+		ax1 += a * s.du[i]
+		ax2 += a * s.x2[i]
+	}
+	return s.gap(t), ax1, ax2 + dT
+}
+
 // controlResidual is |g| of the constraint at pseudo-time t relative to the
 // controlled change over the increment (0 without a control).
 func (s *Solver) controlResidual(t float64) float64 {
@@ -142,7 +177,7 @@ func (s *Solver) controlResidual(t float64) float64 {
 	if c == nil {
 		return 0
 	}
-	g := c.Value(s.P.U) - (c.Offset + c.Rate*t)
+	g := s.gap(t)
 	d := math.Abs(c.Rate * (t - s.tauC))
 	if d == 0 {
 		d = math.Max(math.Abs(c.Value(s.P.Committed)), 1e-300)

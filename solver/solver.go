@@ -60,6 +60,18 @@ type Options struct {
 	Grow        float64 // increment growth factor after an easy step
 	EasyIter    int     // a step is easy if it converged in at most this many iterations
 	Cut         float64 // increment reduction factor after a failure
+	// PorosityStep, if > 0, is the largest porosity increase of any point
+	// per increment the step size aims at: after a converged increment
+	// the next is scaled to it (porosity growth taken as proportional to
+	// the increment), never by less than Cut. Tearing steps whose
+	// porosity jumps are the ones Newton fails on (see DEVELOPERS.md).
+	PorosityStep float64
+	// ProcessZone, if > 0, is the porosity from which a point belongs to
+	// the process zone, and switches on the dissipation-driven control
+	// (zone.go): once the zone exists, each increment prescribes the
+	// growth of its plastic strain and the load factor may fall. The run
+	// then ends when the load factor reaches TEnd.
+	ProcessZone float64
 	// LineSearch enables backtracking on the scaled residual norm
 	// (Armijo condition, quadratic interpolation, α ≥ 0.1·previous α).
 	LineSearch    bool
@@ -152,6 +164,9 @@ type Step struct {
 	Load       float64 // load factor reached (= T unless under a Control)
 	Iterations int     // Newton iterations (linear solves) of the converged attempt
 	Cutbacks   int     // failed attempts before it
+	// PorosityGrowth is the largest porosity increase of a point of an
+	// active element over the increment (fem.Problem.PorosityGrowth).
+	PorosityGrowth float64
 	// Residuals is the scaled residual norm at each iteration of the
 	// converged attempt (before each solve, and the final one); it is
 	// reused by the next step: copy it to keep it.
@@ -201,6 +216,12 @@ type Solver struct {
 	dPrev    []float64 // last converged increment of the unknowns
 	dtPrev   float64   // and its time increment (0: none usable)
 	dLamPrev float64   // and its load-factor increment (under a Control)
+	// zoneLast is the process zone's plastic strain V of the last
+	// converged increment, zoneLastDt that increment.
+	zoneLast, zoneLastDt float64
+	// zoneSearch: the line search applies under the dissipation-driven
+	// control although its constraint is not yet met (it is nonlinear)
+	zoneSearch bool
 
 	ctl *Control // nil: the pseudo-time is the load factor
 	// pending is the control of a problem the solver was rebound to,
@@ -224,6 +245,9 @@ func New(p *fem.Problem, opt Options) (*Solver, error) {
 	}
 	s.allocate(p.Dofs.N)
 	s.history = make([]float64, 0, opt.MaxIter+1)
+	if err := s.trackZone(); err != nil {
+		return nil, err
+	}
 	return s, nil
 }
 
@@ -273,6 +297,9 @@ func (s *Solver) increment(t, from float64) (Step, error) {
 		s.dtPrev = 0 // retry from the converged state
 		return st, err
 	}
+	st.PorosityGrowth = p.PorosityGrowth()
+	s.zoneLast, _, _, _ = p.ProcessZone()
+	s.zoneLastDt = st.Dt
 	for i := range s.dPrev {
 		s.dPrev[i] = p.U[i] - p.Committed[i]
 	}
@@ -318,6 +345,7 @@ func (s *Solver) newton(t, from float64) (int, error) {
 				dLoad *= f
 			}
 		}
+		s.zoneSearch = !first
 		alpha, m, mBase, err := s.lineSearch(t, dLoad)
 		if err != nil {
 			return it + 1, err
@@ -427,7 +455,7 @@ func (s *Solver) lineSearch(t, dLoad float64) (alpha, m, mBase float64, err erro
 	// Under a Control the first correction brings the load in: its
 	// base may be in equilibrium, so the residual cannot judge it;
 	// the line search starts once the constraint holds.
-	search := o.LineSearch && s.controlResidual(t) <= o.UTol
+	search := o.LineSearch && (s.controlResidual(t) <= o.UTol || (s.ctl != nil && s.ctl.zone && s.zoneSearch))
 	copy(s.u0, p.U)
 	copy(s.rBase, p.Res)
 	alpha = 1.0
@@ -617,7 +645,12 @@ func (e *StallError) Error() string {
 func (e *StallError) Unwrap() error { return e.Last }
 
 // Done reports whether the committed pseudo-time has reached Opt.TEnd.
-func (s *Solver) Done() bool { return s.Time() >= s.Opt.TEnd*(1-1e-12) }
+func (s *Solver) Done() bool {
+	if s.ZoneControlled() {
+		return s.P.TCommitted >= s.Opt.TEnd*(1-1e-12)
+	}
+	return s.Time() >= s.Opt.TEnd*(1-1e-12)
+}
 
 // Next advances by one converged increment: it tries the current increment
 // size (no further than Opt.TEnd), cuts it back by Opt.Cut and retries from
@@ -629,9 +662,15 @@ func (s *Solver) Next() (Step, error) {
 	if err := s.anchor(); err != nil {
 		return Step{}, err
 	}
+	if err := s.zoneSwitch(); err != nil {
+		return Step{}, err
+	}
 	o := s.Opt
 	start := time.Now()
-	dt := math.Min(s.dt, o.TEnd-s.Time())
+	dt := s.dt
+	if !s.ZoneControlled() {
+		dt = math.Min(dt, o.TEnd-s.Time())
+	}
 	cuts := 0
 	for {
 		st, err := s.Increment(s.Time() + dt)
@@ -643,6 +682,7 @@ func (s *Solver) Next() (Step, error) {
 			} else {
 				s.dt = dt
 			}
+			s.dt = math.Min(s.dt, s.porosityDt(dt, st.PorosityGrowth))
 			return st, nil
 		}
 		if o.Failed != nil {
@@ -655,6 +695,18 @@ func (s *Solver) Next() (Step, error) {
 			return Step{T: s.Time(), Cutbacks: cuts, Wall: time.Since(start)}, &StallError{T: s.Time(), Dt: dt, DtMin: o.DtMin, Cutbacks: cuts, Last: err}
 		}
 	}
+}
+
+// porosityDt is the increment that would have grown the porosity by
+// Opt.PorosityStep, from the increment dt just taken and the growth df it
+// gave (porosity growth taken as proportional to the increment), never
+// below dt·Opt.Cut; +Inf when there is no target or no growth.
+func (s *Solver) porosityDt(dt, df float64) float64 {
+	o := s.Opt
+	if !(o.PorosityStep > 0) || !(df > 0) {
+		return math.Inf(1)
+	}
+	return math.Max(dt*o.PorosityStep/df, dt*o.Cut)
 }
 
 // Run advances from the committed time to Opt.TEnd by Next, calling each
@@ -720,6 +772,20 @@ func (s *Solver) Rebind(p *fem.Problem, ctl *Control) error {
 	s.analysed = false
 	s.allocate(p.Dofs.N)
 	s.dtPrev, s.dLamPrev = 0, 0
+	s.zoneLast, s.zoneLastDt = 0, 0
+	if err := s.trackZone(); err != nil {
+		return err
+	}
+	if s.ZoneControlled() {
+		// the dissipation-driven control goes on, at its rate
+		zc := s.ctl
+		if zc == nil {
+			zc = s.pending
+		}
+		s.ctl, s.x2, s.pending = nil, nil, &Control{Rate: zc.Rate, zone: true}
+		s.tauC = tau
+		return nil
+	}
 	s.ctl, s.x2, s.pending = nil, nil, nil
 	if ctl == nil {
 		return nil

@@ -148,6 +148,7 @@ func (p *Problem) Assemble(tangent bool) error {
 	if tangent {
 		clear(p.K.Val)
 	}
+	p.processZoneStart(tangent)
 	if err := p.assembleElements(tangent); err != nil {
 		return err
 	}
@@ -163,6 +164,7 @@ func (p *Problem) Assemble(tangent bool) error {
 		}
 	}
 	p.refreshConstraints(true)
+	p.processZoneFinish(tangent)
 	copy(p.Res, p.Full)
 	for _, d := range p.Full {
 		if math.IsNaN(d) || math.IsInf(d, 0) {
@@ -322,6 +324,12 @@ func (p *Problem) scatter(e int, w *worker, tangent bool) {
 	}
 	if !tangent {
 		return
+	}
+	if z := p.pz; z != nil {
+		for a := 0; a < nd; a++ {
+			z.grad[w.gd[a]] += w.pzGrad[a]
+		}
+		z.elemValue[e] = w.pzValue
 	}
 	tri := &p.Mesh.Tri[e]
 	for ka := 0; ka < 6; ka++ {

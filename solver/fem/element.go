@@ -47,10 +47,13 @@ type worker struct {
 	in   material.Input
 	resp material.Response
 	// per-worker partial sums and the first error
-	scale  [NumFields]float64
-	err    error
-	pos    [6][6]int     // row offsets of node pairs (assembly)
-	colOff [6][maxND]int // column offsets of the element's unknowns in the rows of each node
+	scale [NumFields]float64
+	err   error
+	// process-zone sums of the element (Problem.TrackProcessZone)
+	pzGrad  [maxND]float64
+	pzValue float64
+	pos     [6][6]int     // row offsets of node pairs (assembly)
+	colOff  [6][maxND]int // column offsets of the element's unknowns in the rows of each node
 }
 
 // ElementError reports a failure at a Gauss point: det F ≤ 0, a non-finite
@@ -107,6 +110,10 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 				row[b] = 0
 			}
 		}
+	}
+	zone := p.pz != nil && tangent
+	if zone {
+		w.pzGrad, w.pzValue = [maxND]float64{}, 0
 	}
 	var xe, ue [6][2]float64
 	for k := 0; k < 6; k++ {
@@ -376,6 +383,9 @@ func (p *Problem) element(e int, u []float64, w *worker, tangent bool) error {
 		}
 		if !tangent {
 			continue
+		}
+		if zone && p.pz.in[i] {
+			p.processZonePoint(e, g, w, pE, pth, dV)
 		}
 		// K = ∫ Bᵀ D B dV + geometric part. The displacement block is formed
 		// in C-space: K_uu = ∂C/∂uᵀ [dEdCᵀ D_EE dEdC + T_E:∂²E/∂C²] ∂C/∂u

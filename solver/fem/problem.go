@@ -153,6 +153,7 @@ type Problem struct {
 	pinComp       []int
 	label         map[string][]int // label → nodes
 	rate          []float64        // dR/dT of the free unknowns, when tracked
+	pz            *processZone     // process-zone plastic strain, when tracked
 	imbalance     []float64        // out-of-balance force held (SetImbalance)
 	imbScale      float64
 }
@@ -368,6 +369,27 @@ func (p *Problem) Commit() {
 	copy(p.Committed, p.U)
 	p.TCommitted = p.T
 	p.updateConstraints()
+	p.updateProcessZone()
+}
+
+// PorosityGrowth returns the largest porosity increase over the points of
+// the active elements between the committed state and the last assembly
+// (0 for a material without porosity). The solver sizes its increments by
+// it: the GTN response turns steeply once f passes f_c, and an increment
+// that lets a point's porosity jump is the one Newton fails on.
+func (p *Problem) PorosityGrowth() float64 {
+	var m float64
+	for e := range p.Mesh.Tri {
+		if !p.active[e] {
+			continue
+		}
+		for g := 0; g < perElem; g++ {
+			if d := p.newState[e][g].F - p.oldState[e][g].F; d > m {
+				m = d
+			}
+		}
+	}
+	return m
 }
 
 // Restart declares the current unknowns and state converged at time t
@@ -479,6 +501,7 @@ func (p *Problem) SetState(s [][]material.State) error {
 	}
 	p.release = p.release[:0]
 	p.updateConstraints()
+	p.updateProcessZone()
 	return nil
 }
 
