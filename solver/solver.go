@@ -217,8 +217,8 @@ type Solver struct {
 	dtPrev   float64   // and its time increment (0: none usable)
 	dLamPrev float64   // and its load-factor increment (under a Control)
 	// zoneLast is the process zone's plastic strain V of the last
-	// converged increment, zoneLastDt that increment.
-	zoneLast, zoneLastDt float64
+	// converged increment, zoneLoad its load-factor increment.
+	zoneLast, zoneLoad float64
 	// zoneSearch: the line search applies under the dissipation-driven
 	// control although its constraint is not yet met (it is nonlinear)
 	zoneSearch bool
@@ -299,7 +299,7 @@ func (s *Solver) increment(t, from float64) (Step, error) {
 	}
 	st.PorosityGrowth = p.PorosityGrowth()
 	s.zoneLast, _, _, _ = p.ProcessZone()
-	s.zoneLastDt = st.Dt
+	s.zoneLoad = p.T - p.TCommitted
 	for i := range s.dPrev {
 		s.dPrev[i] = p.U[i] - p.Committed[i]
 	}
@@ -683,6 +683,7 @@ func (s *Solver) Next() (Step, error) {
 				s.dt = dt
 			}
 			s.dt = math.Min(s.dt, s.porosityDt(dt, st.PorosityGrowth))
+			s.zonePace()
 			return st, nil
 		}
 		if o.Failed != nil {
@@ -772,7 +773,7 @@ func (s *Solver) Rebind(p *fem.Problem, ctl *Control) error {
 	s.analysed = false
 	s.allocate(p.Dofs.N)
 	s.dtPrev, s.dLamPrev = 0, 0
-	s.zoneLast, s.zoneLastDt = 0, 0
+	s.zoneLast, s.zoneLoad = 0, 0
 	if err := s.trackZone(); err != nil {
 		return err
 	}

@@ -1,5 +1,7 @@
 package solver
 
+import "math"
+
 // The dissipation-driven control. Once the process zone exists — points
 // whose porosity has passed Options.ProcessZone (the onset of
 // coalescence) — each increment prescribes how much the zone's matrix
@@ -17,22 +19,38 @@ package solver
 
 // zoneSwitch puts the dissipation-driven control in use when
 // Options.ProcessZone asks for it, the committed state has a process zone
-// and the last increment strained it. Its rate is that increment's
-// V per unit pseudo-time, so the pseudo-time goes on at the pace it had.
+// and the last increment strained it while the load rose (zonePace).
 func (s *Solver) zoneSwitch() error {
 	if !(s.Opt.ProcessZone > 0) || s.pending != nil || (s.ctl != nil && s.ctl.zone) {
 		return nil
 	}
-	if _, _, _, n := s.P.ProcessZone(); n == 0 || !(s.zoneLast > 0) || !(s.zoneLastDt > 0) {
+	if _, _, _, n := s.P.ProcessZone(); n == 0 || !(s.zoneLast > 0) || !(s.zoneLoad > 0) {
 		return nil
 	}
 	// the last increment, scaled, is still the best start of the next
 	dtPrev := s.dtPrev
-	if err := s.SetControl(&Control{Rate: s.zoneLast / s.zoneLastDt, zone: true}, s.Time()); err != nil {
+	if err := s.SetControl(&Control{Rate: s.zoneLast / s.zoneLoad, zone: true}, s.Time()); err != nil {
 		return err
 	}
 	s.dtPrev = dtPrev
 	return nil
+}
+
+// zonePace re-sets the rate of the dissipation-driven control in use to
+// the zone's plastic strain per unit load factor over the increment just
+// converged, when the load rose in it: an increment of pseudo-time then
+// asks for about as much straining as the same increment of load would
+// give, and Options.DtMax bounds the steps as under load control. Near a
+// load maximum that ratio grows without bound, and the straining asked of
+// the next increment would jump with it: the rate grows by at most
+// Options.Grow per increment. Where the load falls (a snap-back) the rate
+// stays.
+func (s *Solver) zonePace() {
+	c := s.ctl
+	if c == nil || !c.zone || !(s.zoneLast > 0) || !(s.zoneLoad > 0) {
+		return
+	}
+	c.Rate = math.Min(s.zoneLast/s.zoneLoad, s.Opt.Grow*c.Rate)
 }
 
 // ZoneControlled reports whether the dissipation-driven control is in use.
