@@ -80,6 +80,14 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	so.EasyIter = caseEasyIter
 	so.TEnd, so.Dt, so.DtMin, so.DtMax = c.Stop.T, c.Solver.Increment, c.Solver.MinIncrement, c.Solver.MaxIncrement
 	so.MaxSteps, so.MaxIter, so.RTol = c.Stop.MaxSteps, c.Solver.MaxIter, c.Solver.Tolerance
+	so.PorosityStep = c.Solver.PorosityStep
+	if c.Loading.Control == "dissipation" {
+		if c.Material.Model == "elastic" {
+			return nil, badInput("%s: control = \"dissipation\" follows the process zone of a damage model; material.model = \"elastic\" has none (use \"load\" or \"opening\")", src.where("loading.control"))
+		}
+		// the process zone: points past the onset of coalescence
+		so.ProcessZone = c.Material.Fc
+	}
 	cfg.Solver = so
 
 	tipNames := d.Tips()

@@ -59,6 +59,11 @@ control      "load" (t scales the load) or "opening": t drives the specimen's ga
              reduction of the minimum diameter; dent the mean notch-mouth opening;
              gauge = ["a"] or ["a", "b"] with gauge_direction = [x, y] reads named points
              instead (one point's displacement, or b's relative to a, along the direction).
+             "dissipation": load control until the process zone exists (points past fc),
+             then each increment prescribes how much the zone strains plastically and the
+             load factor is solved for, falling where the body snaps back (a long bar whose
+             neck breaks, a crack that runs); the run ends at stop.t in the load factor, at
+             stop.da or when the increments stall at final fracture.
              history.csv records the gauge reading (column gauge) and the load factor.
 [[loading.fix]]  label, component ("x", "y", "r", "z", "both") — extra supports
 
@@ -67,6 +72,8 @@ increment, min_increment, max_increment   of the pseudo-time t (defaults {increm
 max_iterations ({max_iterations}), tolerance ({tolerance}, relative to each field's force scale), mixed ({mixed}: u–θ–P element), workers (0 = all cores)
 release_steps ({release_steps}): converged steps over which an element with a broken point gives up its force
              (element vanish); 0 = an element leaves only once all its points are broken
+porosity_step (0 = off): the largest porosity growth of a point per increment that the next
+             increment aims at; with control = "dissipation" the growth follows the increment
 
 [stop]
 t ({t}), da (0 = no limit), max_steps ({max_steps}), hours (0 = no limit)

@@ -105,6 +105,8 @@ func TestBadInput(t *testing.T) {
 		{"bad --set value", goodElastic, []string{"mesh.h_far=[1,2]"}, []string{"--set mesh.h_far=[1,2]"}},
 		{"--set without section", goodElastic, []string{"h_far=1"}, []string{"section.key"}},
 		{"unknown control", goodElastic, []string{`loading.control="arc"`}, []string{"loading.control", "opening"}},
+		{"dissipation control of an elastic body", goodElastic, []string{`loading.control="dissipation"`}, []string{"loading.control", "elastic", "process zone"}},
+		{"porosity step of 1", goodElastic, []string{"solver.porosity_step=1"}, []string{"solver.porosity_step", "[0, 1)"}},
 		{"opening control without opening", goodElastic, []string{`loading.control="opening"`}, []string{"loading.opening", "positive"}},
 		{"opening point off the crack faces", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", "loading.opening_at=20"},
 			[]string{"loading.opening_at", "no straight crack face"}},

@@ -44,9 +44,11 @@ type loadingSection struct {
 	Component string     `toml:"component"`
 	Value     float64    `toml:"value"` // displacement or pressure at t = 1
 	Fix       []fixEntry `toml:"fix"`   // extra supports
-	// Control is "load" (t is the load factor) or "opening" (t drives the
+	// Control is "load" (t is the load factor), "opening" (t drives the
 	// specimen's gauge, which opens by Opening at t = 1; the load factor
-	// is solved for). The gauge is the specimen's natural one (K field:
+	// is solved for) or "dissipation" (load control until the process
+	// zone exists, then each increment prescribes its plastic straining
+	// and the load factor is solved for). The gauge is the specimen's natural one (K field:
 	// the crack opening OpeningAt behind the initial tip), or Gauge: the
 	// displacement of one named point along GaugeDirection, or of the
 	// second named point relative to the first.
@@ -76,6 +78,9 @@ type solverSection struct {
 	// point gives up its force (element vanish); 0 = an element leaves
 	// only when all its points are broken.
 	ReleaseSteps *int `toml:"release_steps"`
+	// PorosityStep: the largest porosity growth of a point per increment
+	// the step size aims at (0 = increments sized by iterations alone).
+	PorosityStep float64 `toml:"porosity_step"`
 }
 
 // stopSection is [stop]: when the run ends.
@@ -256,7 +261,7 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 	if l.Control == "" {
 		l.Control = "load"
 	}
-	if err := choice(l.Control, []string{"load", "opening"}, src, "loading.control"); err != nil {
+	if err := choice(l.Control, []string{"load", "opening", "dissipation"}, src, "loading.control"); err != nil {
 		return err
 	}
 	if err := l.completeOpening(src, unit); err != nil {
@@ -320,6 +325,9 @@ func (s *solverSection) complete(src *caseSource) error {
 	}
 	if s.Workers < 0 {
 		return badInput("%s: %d must be ≥ 0 (0 = all cores)", src.where("solver.workers"), s.Workers)
+	}
+	if p := s.PorosityStep; !(p >= 0 && p < 1) {
+		return badInput("%s: %g must be in [0, 1) (0 = increments sized by Newton iterations alone)", src.where("solver.porosity_step"), p)
 	}
 	if n := *s.ReleaseSteps; n < 0 || n > 100 {
 		return badInput("%s: %d must be between 0 and 100 (0 = an element leaves when all its points are broken)", src.where("solver.release_steps"), n)
