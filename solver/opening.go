@@ -34,6 +34,11 @@ type Control struct {
 	zone bool
 }
 
+// ErrHeldControl is the error of a control whose unknowns are prescribed
+// (a support, a symmetry plane) or belong to no element: it cannot follow
+// the load.
+var ErrHeldControl = errors.New("the controlled displacement is prescribed or belongs to no element; it must be free to move")
+
 // Value is the controlled combination at the unknowns u.
 func (c *Control) Value(u []float64) float64 {
 	var v float64
@@ -89,7 +94,7 @@ func (s *Solver) checkControl(c *Control) error {
 			return fmt.Errorf("solver: control unknown %d outside 0…%d", d, p.Dofs.N-1)
 		}
 		if p.Constrained(d) {
-			return fmt.Errorf("solver: control unknown %d (node %d) is prescribed or orphaned; the controlled opening must be free", d, p.Dofs.NodeOf[d])
+			return fmt.Errorf("solver: control unknown %d (node %d): %w", d, p.Dofs.NodeOf[d], ErrHeldControl)
 		}
 		if w := c.Weights[i]; w == 0 || math.IsNaN(w) || math.IsInf(w, 0) {
 			return fmt.Errorf("solver: control weight %d is %g; must be finite and non-zero", i, w)

@@ -67,10 +67,19 @@ func runCommand(args []string, stdout, stderr io.Writer) int {
 
 // startRun validates a case and runs it into dir.
 func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int {
-	c, _, rs, err := prepareCase(casePath, sets)
+	c, src, rs, err := prepareCase(casePath, sets)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 2
+	}
+	// the first mesh, problem and control are made before the folder, so
+	// that a control the case cannot use leaves nothing behind
+	rs.cfg.Solver.Failed = retryReporter(stdout)
+	cyc, err := remesh.NewCycle(rs.cfg)
+	if err != nil {
+		err = controlInputError(err, c, src)
+		fmt.Fprintf(stderr, "tearline: %v\n", err)
+		return exitFor(err)
 	}
 	if err := prepareRunFolder(dir); err != nil {
 		fmt.Fprintf(stderr, "tearline: run folder %s: %v\n", dir, err)
@@ -94,18 +103,25 @@ func startRun(casePath, dir string, sets []string, stdout, stderr io.Writer) int
 	if *c.Adapt.Enabled && !rs.cfg.Adapt && c.Material.Model == "elastic" {
 		fmt.Fprintln(stdout, "tearline: adaptivity is off for an elastic body: it has no damage front to follow")
 	}
-	rs.cfg.Solver.Failed = retryReporter(stdout)
-	cyc, err := remesh.NewCycle(rs.cfg)
-	if err != nil {
-		fmt.Fprintf(stderr, "tearline: %v\n", err)
-		return exitFor(err)
-	}
 	ob, err := newObserver(dir, c, rs, hashBytes(text), stdout, false)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
 	}
 	return ob.run(cyc, stderr)
+}
+
+// controlInputError turns the solver's refusal of a held gauge into the
+// case's error: the key, and what is allowed.
+func controlInputError(err error, c *caseFile, src *caseSource) error {
+	if !errors.Is(err, solver.ErrHeldControl) {
+		return err
+	}
+	key := "loading.control"
+	if len(c.Loading.Gauge) > 0 {
+		key = "loading.gauge"
+	}
+	return badInput("%s: the gauge reads a displacement held by a support or the symmetry plane, which cannot follow the load; name points, and a gauge_direction, free to move", src.where(key))
 }
 
 // exitFor maps an error to the exit status.

@@ -120,6 +120,8 @@ func TestBadInput(t *testing.T) {
 			[]string{"loading.gauge", `no named point "nowhere"`, "named points: tip"}},
 		{"gauge reads one point twice", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", `loading.gauge=["tip", "tip"]`, "loading.gauge_direction=[0.0, 1.0]"},
 			[]string{"loading.gauge", "twice"}},
+		{"gauge held by the symmetry plane", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", `loading.gauge=["tip"]`, "loading.gauge_direction=[0.0, 1.0]"},
+			[]string{"loading.gauge", "held by a support or the symmetry plane", "free to move"}},
 		{"gauge without direction", goodElastic, []string{`loading.control="opening"`, "loading.opening=0.1", `loading.gauge=["tip"]`},
 			[]string{"loading.gauge", "gauge_direction = [x, y]"}},
 		{"porosity order", strings.Replace(goodElastic, `model = "elastic"`, "model = \"gtn\"\nfc = 0.3\nff = 0.2", 1), nil,
