@@ -49,6 +49,7 @@ func TestGoldenAdaptiveRun(t *testing.T) {
 		}
 		compareTables(t, want, got)
 	}
+	checkPlots(t, out, ssyPlots)
 }
 
 // compareTables reports every cell of got that differs from want, except

@@ -251,7 +251,7 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	if ferr := ob.writeFields(view); ferr != nil {
 		fmt.Fprintf(stderr, "tearline: fields: %v\n", ferr)
 	}
-	if perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows); perr != nil {
+	if _, perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows, newPlotSetup(ob.c, ob.rs, defaultUnits())); perr != nil {
 		fmt.Fprintf(stderr, "tearline: plots: %v\n", perr)
 	}
 	pr := view.Progress()
