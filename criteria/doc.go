@@ -2,7 +2,8 @@
 // remote Williams mode-I field and its far-field J, the domain-integral J,
 // the damage front and the crack tip(s) with the crack extension Δa, the
 // crack-tip opening displacement by the 90° intercept, and the ASTM E1820
-// J–R evaluation of a compact-tension C(T) record with the tearing modulus.
+// J–R evaluation of a compact-tension C(T) record with the tearing modulus
+// and the J_Q construction.
 //
 // Everything works on the reference configuration of a fem.Mesh and on the
 // Gauss-point data fem.GaussPoints the solver produces; nodal displacements
@@ -28,6 +29,10 @@
 //     specimen with the incremental crack-growth correction (ASTM E1820,
 //     Annex A1), and TearingModulus T = (E/σ₀²) dJ/da (Paris, Tada, Zahoor &
 //     Ernst 1979, ASTM STP 668).
+//   - E1820JQ: the J_Q construction on a J–Δa record (ASTM E1820 Annex A9):
+//     construction and exclusion lines, power-law fit, the 0.2 mm offset
+//     line, and the specimen's measurement capacity. It lives here, beside
+//     the J it is made on, so that plots and reports draw one algorithm.
 //
 // Bad input gives an error value that says what, where and what is allowed;
 // nothing here panics on input.

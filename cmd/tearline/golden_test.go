@@ -49,6 +49,8 @@ func TestGoldenAdaptiveRun(t *testing.T) {
 		}
 		compareTables(t, want, got)
 	}
+	checkPlots(t, out, ssyPlots)
+	t.Run("report in a browser", func(t *testing.T) { checkReportInBrowser(t, out) })
 }
 
 // compareTables reports every cell of got that differs from want, except

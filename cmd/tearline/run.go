@@ -48,7 +48,8 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 const runUsage = `usage: tearline run CASE.toml -o DIR [--set section.key=value ...]
 
 Runs a case into the run folder DIR (created; it must not hold a run already):
-case.toml, history.csv, remesh.csv, summary.json, fields/, checkpoint/, plots/.
+case.toml, history.csv, remesh.csv, summary.json, report.html, fields/,
+checkpoint/, plots/.
 Ctrl-C stops cleanly with a checkpoint; 'tearline resume DIR' continues.
 Exit status: 0 completed, 1 stopped early (results so far kept), 2 bad input.
 `
@@ -177,6 +178,7 @@ type observer struct {
 	// unmeasured is the last step's list of measures that could not be
 	// evaluated, logged whenever it changes.
 	unmeasured string
+	report     *runReport
 }
 
 // pvdEntry is one field file of the collection.
@@ -211,6 +213,7 @@ func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.W
 	}
 	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, model: model, stdout: stdout, lastCP: time.Now(),
 		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute))}
+	ob.report = newRunReport(dir, c, newPlotSetup(c, rs, defaultUnits()))
 	if f, ok := stdout.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			ob.tty = true
@@ -267,7 +270,8 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	if ferr := ob.writeFields(view); ferr != nil {
 		fmt.Fprintf(stderr, "tearline: fields: %v\n", ferr)
 	}
-	if perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows); perr != nil {
+	figs, perr := writePlots(filepath.Join(ob.dir, "plots"), ob.rows, ob.report.setup)
+	if perr != nil {
 		fmt.Fprintf(stderr, "tearline: plots: %v\n", perr)
 	}
 	pr := view.Progress()
@@ -280,6 +284,9 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	if err := writeSummary(ob.dir, s); err != nil {
 		fmt.Fprintf(stderr, "tearline: summary: %v\n", err)
 		code = 1
+	}
+	if rerr := ob.report.write(ob.rows, figs, stateOf(s)); rerr != nil {
+		fmt.Fprintf(stderr, "tearline: %v\n", rerr)
 	}
 	ob.history.Close()
 	ob.remeshes.Close()
@@ -320,6 +327,7 @@ func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 	}
 	ob.progress(r)
 	ob.noteUnmeasured(r)
+	ob.updateReport(view)
 	if ob.stopping.Load() {
 		return errInterrupted
 	}

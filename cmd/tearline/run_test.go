@@ -216,6 +216,7 @@ func TestWilliamsRunFolder(t *testing.T) {
 			t.Errorf("run folder lacks %s: %v", f, err)
 		}
 	}
+	checkPlots(t, out, elasticPlots)
 	// The case as run reads back and carries the defaults.
 	c, _, err := loadCase(filepath.Join(out, "case.toml"), nil)
 	if err != nil {
@@ -301,6 +302,7 @@ func TestCTE1820AgainstDomainJ(t *testing.T) {
 	if checked < 4 {
 		t.Fatalf("only %d rows before growth, want at least 4", checked)
 	}
+	checkPlots(t, out, ctPlots)
 }
 
 // TestElasticCaseRunsWithDefaults: an elastic case on a cracked geometry,
