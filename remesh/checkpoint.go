@@ -120,8 +120,13 @@ func (c *Cycle) resumeSolver(cp *checkpoint) error {
 	if ctl := c.solver.Controlled(); ctl != nil {
 		ctl.Offset = cp.Offset
 	}
-	if cp.Prev.Dt > 0 {
-		return c.solver.SetPreviousIncrement(cp.Prev)
+	if cp.Prev.Dt > 0 || cp.Prev.ZoneRate > 0 || cp.Prev.ZoneStrain > 0 {
+		if err := c.solver.SetPreviousIncrement(cp.Prev); err != nil {
+			return err
+		}
+	}
+	if c.solver.ZoneControlled() {
+		c.solver.SetTime(cp.Tau)
 	}
 	return nil
 }

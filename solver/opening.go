@@ -32,6 +32,9 @@ type Control struct {
 	// over the increment (dissipation-driven control, see zone.go), not
 	// the combination of unknowns.
 	zone bool
+	// hold: this attempt of a zone-controlled step holds the load factor
+	// instead (see Solver.zoneHold).
+	hold bool
 }
 
 // ErrHeldControl is the error of a control whose unknowns are prescribed
@@ -152,6 +155,9 @@ func (s *Solver) borderedStep(t float64) (float64, error) {
 // value less its target.
 func (s *Solver) gap(t float64) float64 {
 	c := s.ctl
+	if c.hold {
+		return s.P.T - s.P.TCommitted
+	}
 	if c.zone {
 		v, _, _, _ := s.P.ProcessZone()
 		return v - c.Rate*(t-s.tauC)
@@ -164,6 +170,9 @@ func (s *Solver) gap(t float64) float64 {
 // the load factor's own contribution (a·x₂ + ∂g/∂T).
 func (s *Solver) border(t float64) (g, ax1, ax2 float64) {
 	c := s.ctl
+	if c.hold {
+		return s.gap(t), 0, 1
+	}
 	if !c.zone {
 		return s.gap(t), c.Value(s.du), c.Value(s.x2)
 	}
@@ -184,6 +193,9 @@ func (s *Solver) controlResidual(t float64) float64 {
 	}
 	g := s.gap(t)
 	d := math.Abs(c.Rate * (t - s.tauC))
+	if c.hold {
+		d = math.Max(math.Abs(s.P.TCommitted), 1)
+	}
 	if d == 0 {
 		d = math.Max(math.Abs(c.Value(s.P.Committed)), 1e-300)
 	}

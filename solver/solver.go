@@ -674,6 +674,9 @@ func (s *Solver) Next() (Step, error) {
 	cuts := 0
 	for {
 		st, err := s.Increment(s.Time() + dt)
+		if s.ctl != nil {
+			s.ctl.hold = false
+		}
 		if err == nil {
 			st.Cutbacks = cuts
 			st.Wall = time.Since(start)
@@ -690,6 +693,9 @@ func (s *Solver) Next() (Step, error) {
 			o.Failed(s.Time(), dt, err)
 		}
 		cuts++
+		if s.zoneHold(cuts) {
+			continue // the same increment, at the committed load
+		}
 		dt *= o.Cut
 		s.dt = dt
 		if dt < o.DtMin {

@@ -53,6 +53,27 @@ func (s *Solver) zonePace() {
 	c.Rate = math.Min(s.zoneLast/s.zoneLoad, s.Opt.Grow*c.Rate)
 }
 
+// zoneHold turns the next attempt of a zone-controlled step that has
+// failed zoneHoldAfter times into one that holds the load factor. An
+// element giving up its force (fem.Options.ReleaseSteps) changes the
+// equilibrium by a finite amount each converged step however small the
+// increment, and the zone may have to strain by more than the increment
+// asks to take it up, so no cut-back converges; at the committed load the
+// body redistributes it. The increment of pseudo-time is taken all the
+// same (zone.go).
+func (s *Solver) zoneHold(cuts int) bool {
+	c := s.ctl
+	if c == nil || !c.zone || cuts != zoneHoldAfter {
+		return false
+	}
+	c.hold = true
+	return true
+}
+
+// zoneHoldAfter is the number of failed attempts of a zone-controlled
+// step after which one attempt holds the load factor.
+const zoneHoldAfter = 2
+
 // ZoneControlled reports whether the dissipation-driven control is in use.
 func (s *Solver) ZoneControlled() bool {
 	return (s.ctl != nil && s.ctl.zone) || (s.pending != nil && s.pending.zone)

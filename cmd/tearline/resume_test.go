@@ -231,3 +231,46 @@ func TestResumeGuardsTheModel(t *testing.T) {
 		t.Errorf("case.toml does not record stop.t = 0.5:\n%s", text)
 	}
 }
+
+// TestResumeUnderDissipationControl: a run stopped by its step limit while
+// the dissipation-driven control is in use and resumed with a higher limit
+// ends with the same history.csv rows as an uninterrupted run, to 1e-10
+// relative (the control's rate and pseudo-time are part of the checkpoint);
+// and the control did take over (the pseudo-time and the load factor part).
+func TestResumeUnderDissipationControl(t *testing.T) {
+	casePath := writeCase(t, plasticCase)
+	sets := []string{"--set", `loading.control="dissipation"`, "--set", "stop.t=1.5"}
+	ref := filepath.Join(t.TempDir(), "ref")
+	if code := dispatch(append([]string{"run", casePath, "-o", ref}, sets...), io.Discard, os.Stderr); code != 0 {
+		t.Fatalf("uninterrupted run: exit %d", code)
+	}
+	dir := filepath.Join(t.TempDir(), "stopped")
+	// a run stopped before its end exits with status 1
+	if code := dispatch(append([]string{"run", casePath, "-o", dir, "--set", "stop.max_steps=14"}, sets...), io.Discard, io.Discard); code != 1 {
+		t.Fatalf("run to 14 steps: exit %d, want 1 (stopped by the step limit)", code)
+	}
+	if code := dispatch([]string{"resume", dir, "--set", "stop.max_steps=100000"}, io.Discard, os.Stderr); code != 0 {
+		t.Fatalf("resume: exit %d", code)
+	}
+	want := comparableRows(t, filepath.Join(ref, "history.csv"))
+	got := comparableRows(t, filepath.Join(dir, "history.csv"))
+	if len(got) != len(want) || len(want) < 16 {
+		t.Fatalf("%d rows after resume, %d uninterrupted; want equal and at least 16", len(got), len(want))
+	}
+	header, _ := readCSV(t, filepath.Join(ref, "history.csv"))
+	tc, lc := column(t, header, "t"), column(t, header, "load_factor")
+	// comparableRows drops wall_s and rss_mb, which come after t and before load_factor
+	lc -= 2
+	last := want[len(want)-1]
+	if !(last[tc] > last[lc]*1.05) {
+		t.Errorf("last row: t = %g, load factor %g; the dissipation-driven control never took over", last[tc], last[lc])
+	}
+	for i := range got {
+		for j := range got[i] {
+			a, b := got[i][j], want[i][j]
+			if math.IsNaN(a) != math.IsNaN(b) || math.Abs(a-b) > 1e-10*math.Max(math.Abs(b), 1e-300) && math.Abs(a-b) > 1e-14 {
+				t.Errorf("row %d column %d: resumed %.15g, uninterrupted %.15g", i+1, j, a, b)
+			}
+		}
+	}
+}
