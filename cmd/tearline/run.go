@@ -213,7 +213,7 @@ func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.W
 	}
 	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, model: model, stdout: stdout, lastCP: time.Now(),
 		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute))}
-	ob.report = newRunReport(dir, c, newPlotSetup(c, rs, defaultUnits()))
+	ob.report = newRunReport(dir, c, newPlotSetup(c, rs, c.Units.labels()))
 	if f, ok := stdout.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			ob.tty = true
