@@ -37,7 +37,8 @@ kind = "ssy" | "ct" | "notched_bar" | "dent" | "polygon"
 h_fine       size in the fine zone at each crack tip (default material.length/{kappa})
 h_far        largest size (default {far_factor} h_fine, at most the domain's size/{far_scale})
 fine_radius ({fine_radius} h_fine), ahead (0), grading (0, 1] ({grading}),
-min_angle [{min_angle_lo}, {min_angle_hi}] ({min_angle}), max_points ({max_points})
+min_angle [{min_angle_lo}, {min_angle_hi}] ({min_angle}), max_points ({max_points}),
+max_triangles ({max_triangles}): the largest first mesh, estimated from the size field before meshing
 
 [material]
 model        "gtn" (default) or "elastic"
@@ -101,7 +102,7 @@ func caseHelp() string {
 		"{kappa}", d(size.DefaultKappa), "{far_factor}", d(size.DefaultFarFactor), "{far_scale}", d(farScaleFraction),
 		"{fine_radius}", d(size.DefaultFineRadiusFactor), "{grading}", g(size.DefaultGrading),
 		"{min_angle_lo}", d(lowestMinAngle), "{min_angle_hi}", d(tri.MaxMinAngle), "{min_angle}", d(tri.DefaultMinAngle),
-		"{max_points}", d(tri.DefaultMaxPoints),
+		"{max_points}", d(tri.DefaultMaxPoints), "{max_triangles}", d(defaultMaxTriangles),
 		"{unit_systems}", unitSystemHelp(), "{unit_default}", defaultUnitSystem, "{yield}", g(m.Yield),
 		"{exponent}", g(m.Exponent), "{ref_strain}", g(m.RefStrain),
 		"{q1}", g(m.Q1), "{q2}", g(m.Q2), "{f0}", g(m.F0), "{fc}", g(m.Fc), "{ff}", g(m.Ff), "{penalty}", g(m.Penalty),
