@@ -27,6 +27,9 @@ type runSetup struct {
 	sigma0 float64
 	young  float64
 	length float64
+	// triangles is the first mesh's size estimated from the size field
+	// (estimateTriangles).
+	triangles float64
 }
 
 // prepareCase loads, validates and maps a case: what run, check and
@@ -40,7 +43,31 @@ func prepareCase(path string, sets []string) (*caseFile, *caseSource, *runSetup,
 	if err != nil {
 		return nil, nil, nil, err
 	}
+	if err := rs.checkMeshSize(c, src); err != nil {
+		return nil, nil, nil, err
+	}
 	return c, src, rs, nil
+}
+
+// checkMeshSize estimates the first mesh from the run's size field and
+// refuses a case whose mesh would exceed mesh.max_triangles, before any
+// meshing: a size field far too fine would otherwise mesh for minutes.
+func (rs *runSetup) checkMeshSize(c *caseFile, src *caseSource) error {
+	sf, err := size.NewField(rs.domain, rs.cfg.Size)
+	if err != nil {
+		return badInput("%s: %v", src.where("mesh"), err)
+	}
+	limit := float64(c.Mesh.MaxTriangles)
+	rs.triangles = estimateTriangles(rs.domain, sf.At, sf.Options.Grading, 2*limit)
+	if rs.triangles <= limit {
+		return nil
+	}
+	more := "about %.3g"
+	if rs.triangles > 2*limit {
+		more = "more than %.3g"
+	}
+	return badInput("%s: the first mesh would have "+more+" triangles (estimated from the size field), above the limit %d; make it coarser with a larger mesh.h_fine (%g), mesh.h_far (%g) or mesh.grading (%g), or raise mesh.max_triangles",
+		src.where("mesh.max_triangles"), rs.triangles, c.Mesh.MaxTriangles, c.Mesh.HFine, c.Mesh.HFar, c.Mesh.Grading)
 }
 
 // buildRun maps a validated case (from loadCase) onto the packages' typed

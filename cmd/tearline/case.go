@@ -20,6 +20,7 @@ import (
 // each section is mapped onto the typed options of the package that owns it.
 type caseFile struct {
 	Title    string          `toml:"title"`
+	Units    unitsSection    `toml:"units"`
 	Geometry geometrySection `toml:"geometry"`
 	Mesh     meshSection     `toml:"mesh"`
 	Material materialSection `toml:"material"`
@@ -78,6 +79,11 @@ func (s *caseSource) where(key string) string {
 		return fmt.Sprintf("%s line %d (%s)", name, n, key)
 	}
 	return fmt.Sprintf("%s (%s, default)", name, key)
+}
+
+// missing names a key the case must give and does not.
+func (s *caseSource) missing(key string) string {
+	return fmt.Sprintf("%s: %s is missing", filepath.Base(s.path), key)
 }
 
 // inputError marks an error caused by the user's input: exit status 2.

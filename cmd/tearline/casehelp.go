@@ -10,11 +10,16 @@ import (
 
 // caseHelpText lists the case-file keys (tearline help case); caseHelp
 // fills in the {defaults}.
-const caseHelpText = `tearline case file (TOML). Every key has a default except the geometry.
+const caseHelpText = `tearline case file (TOML). Every key has a default except the geometry and material.young, material.poisson.
 Unknown keys and invalid values are errors that name the file, line and key.
 Override any key on the command line with --set section.key=value.
 
 title = "…"                      free text
+
+[units]
+system       {unit_systems}
+             (default "{unit_default}"); names the units of labels and messages, and the
+             millimetre of ASTM E1820's fixed lengths — the numbers are taken as written
 
 [geometry]
 kind = "ssy" | "ct" | "notched_bar" | "dent" | "polygon"
@@ -32,11 +37,12 @@ kind = "ssy" | "ct" | "notched_bar" | "dent" | "polygon"
 h_fine       size in the fine zone at each crack tip (default material.length/{kappa})
 h_far        largest size (default {far_factor} h_fine, at most the domain's size/{far_scale})
 fine_radius ({fine_radius} h_fine), ahead (0), grading (0, 1] ({grading}),
-min_angle [{min_angle_lo}, {min_angle_hi}] ({min_angle}), max_points ({max_points})
+min_angle [{min_angle_lo}, {min_angle_hi}] ({min_angle}), max_points ({max_points}),
+max_triangles ({max_triangles}): the largest first mesh, estimated from the size field before meshing
 
 [material]
 model        "gtn" (default) or "elastic"
-young, poisson                         E > 0, ν in (−1, 0.5) (defaults {young}, {poisson})
+young, poisson                         E > 0, ν in (−1, 0.5) (required: no default)
 yield_stress                           σ₀ (default {yield})
 hardening    "power" σ₀(1 + p/ε₀)ⁿ (hardening_exponent n, reference_strain ε₀; defaults {exponent}, {ref_strain}),
              "voce" σ₀ + Q(1 − e^(−bp)) (voce_saturation Q, voce_rate b),
@@ -96,8 +102,8 @@ func caseHelp() string {
 		"{kappa}", d(size.DefaultKappa), "{far_factor}", d(size.DefaultFarFactor), "{far_scale}", d(farScaleFraction),
 		"{fine_radius}", d(size.DefaultFineRadiusFactor), "{grading}", g(size.DefaultGrading),
 		"{min_angle_lo}", d(lowestMinAngle), "{min_angle_hi}", d(tri.MaxMinAngle), "{min_angle}", d(tri.DefaultMinAngle),
-		"{max_points}", d(tri.DefaultMaxPoints),
-		"{young}", g(m.Young), "{poisson}", g(m.Poisson), "{yield}", g(m.Yield),
+		"{max_points}", d(tri.DefaultMaxPoints), "{max_triangles}", d(defaultMaxTriangles),
+		"{unit_systems}", unitSystemHelp(), "{unit_default}", defaultUnitSystem, "{yield}", g(m.Yield),
 		"{exponent}", g(m.Exponent), "{ref_strain}", g(m.RefStrain),
 		"{q1}", g(m.Q1), "{q2}", g(m.Q2), "{f0}", g(m.F0), "{fc}", g(m.Fc), "{ff}", g(m.Ff), "{penalty}", g(m.Penalty),
 		"{opening_at}", d(defaultOpeningAt),

@@ -72,17 +72,18 @@ func checkCommand(args []string, stdout, stderr io.Writer) int {
 	}
 	nnzK := len(p.K.Val)
 	nnzLU, flops := lu.Estimate()
-	// Memory: factors (value + index), the tangent (value + index), the
-	// Gauss-point state (old and new) and vectors — a rough but honest sum.
-	nq := fem.ElementRule().Len()
-	mb := (float64(nnzLU)*12 + float64(nnzK)*12 + float64(len(m.Tri)*nq)*2*80 + float64(p.Dofs.N)*8*12) / (1 << 20)
+	u := c.Units.labels()
 	fmt.Fprintf(stdout, "case %s: valid\n", path)
-	fmt.Fprintf(stdout, "  geometry     %s, %d boundary labels, %d named points, area %.6g\n", c.Geometry.Kind, len(rs.domain.Labels()), len(rs.domain.Points), rs.domain.Area())
-	fmt.Fprintf(stdout, "  first mesh   %d triangles, %d nodes, min angle %.1f°, size ratio max %.2f (%.2fs)\n",
-		rep.Triangles, rep.Nodes, rep.MinAngleDeg, rep.SizeRatioMax, meshTime.Seconds())
+	fmt.Fprintf(stdout, "  units        %s (length %s, force %s, stress %s, J %s)\n", c.Units.System, u.Length, u.Force, u.Stress, u.J)
+	fmt.Fprintf(stdout, "  geometry     %s, %d boundary labels, %d named points, area %.6g %s\n", c.Geometry.Kind, len(rs.domain.Labels()), len(rs.domain.Points), rs.domain.Area(), u.area())
+	fmt.Fprintf(stdout, "  first mesh   %d triangles (%.0f estimated from the size field, limit mesh.max_triangles = %d), %d nodes, min angle %.1f°, size ratio max %.2f (%.2fs)\n",
+		rep.Triangles, rs.triangles, c.Mesh.MaxTriangles, rep.Nodes, rep.MinAngleDeg, rep.SizeRatioMax, meshTime.Seconds())
 	fmt.Fprintf(stdout, "  unknowns     %d (mixed %v, regularised %v)\n", p.Dofs.N, p.Mixed(), p.Regularised())
 	fmt.Fprintf(stdout, "  tangent      %d non-zeros; LU factors about %d non-zeros, %.3g flops per factorisation (assembly and analysis %.2fs)\n", nnzK, nnzLU, flops, time.Since(t0).Seconds())
-	fmt.Fprintf(stdout, "  memory       about %.0f MB for the solve\n", mb)
+	fmt.Fprintf(stdout, "  memory       about %.0f MB at the peak of the run on this mesh\n", solveMemoryMB(nnzLU))
 	fmt.Fprintf(stdout, "  adaptive     %v\n", rs.cfg.Adapt)
+	if gap := supportGap(m, bcs, rs.domain.Axisymmetric); gap != "" {
+		fmt.Fprintf(stdout, "  warning      the supports leave %s of the body free: the solve will find no equilibrium; hold it with [[loading.fix]] entries (label, component)\n", gap)
+	}
 	return 0
 }

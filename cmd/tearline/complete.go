@@ -14,6 +14,9 @@ import (
 // can follow the specimen (a crack tip switches adaptivity on; the
 // boundary labels choose the natural load).
 func (c *caseFile) complete(src *caseSource) error {
+	if err := c.Units.complete(src); err != nil {
+		return err
+	}
 	if err := c.Material.complete(src); err != nil {
 		return err
 	}

@@ -18,12 +18,14 @@ import (
 	"tearline/transfer"
 )
 
-// bareCase gives only what has no default: the geometry, the internal
-// length (for h_fine) and the load.
+// bareCase gives only what has no default: the geometry, E and ν (those
+// of material.DefaultGTN), the internal length (for h_fine) and the load.
 const bareCase = `
 [geometry]
 kind = "ssy"
 [material]
+young = 200000.0
+poisson = 0.3
 length = 0.1
 [loading]
 k = 1000.0

@@ -321,6 +321,9 @@ type meshSection struct {
 	Grading    float64 `toml:"grading"`     // growth of h per unit distance, (0, 1] (default size.DefaultGrading)
 	MinAngle   float64 `toml:"min_angle"`   // minimum-angle bound in degrees (default tri.DefaultMinAngle)
 	MaxPoints  int     `toml:"max_points"`  // limit on inserted vertices (default tri.DefaultMaxPoints)
+	// MaxTriangles: the largest first mesh, estimated from the size field
+	// before meshing (default defaultMaxTriangles).
+	MaxTriangles int `toml:"max_triangles"`
 }
 
 // sizeField fills the defaults of the section and returns the size field.
@@ -374,6 +377,12 @@ func (m *meshSection) sizeField(d *geom.Domain, src *caseSource, length float64)
 	}
 	if m.MaxPoints < 0 {
 		return nil, badInput("%s: %d must be positive", src.where("mesh.max_points"), m.MaxPoints)
+	}
+	if !src.given("mesh.max_triangles") {
+		m.MaxTriangles = defaultMaxTriangles
+	}
+	if m.MaxTriangles < 1 {
+		return nil, badInput("%s: %d must be positive", src.where("mesh.max_triangles"), m.MaxTriangles)
 	}
 	s, err := size.NewField(d, size.Options{HFine: m.HFine, HFar: m.HFar, FineRadius: m.FineRadius, Ahead: m.Ahead, Grading: m.Grading})
 	if err != nil {

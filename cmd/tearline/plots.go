@@ -35,9 +35,7 @@ type unitLabels struct {
 }
 
 // defaultUnits is the mm–N–MPa set of the examples.
-func defaultUnits() unitLabels {
-	return unitLabels{Length: "mm", Force: "N", Stress: "MPa", J: "N/mm", Time: "s", JAlso: "kJ/m²", MM: 1}
-}
+func defaultUnits() unitLabels { return unitSystems[defaultUnitSystem] }
 
 // k is the unit of a stress intensity factor.
 func (u unitLabels) k() string { return u.Stress + "√" + u.Length }

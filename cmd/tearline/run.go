@@ -213,7 +213,7 @@ func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.W
 	}
 	ob := &observer{dir: dir, c: c, rs: rs, hash: hash, model: model, stdout: stdout, lastCP: time.Now(),
 		cpEvery: time.Duration(c.Output.CheckpointMinutes * float64(time.Minute))}
-	ob.report = newRunReport(dir, c, newPlotSetup(c, rs, defaultUnits()))
+	ob.report = newRunReport(dir, c, newPlotSetup(c, rs, c.Units.labels()))
 	if f, ok := stdout.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
 			ob.tty = true
@@ -290,8 +290,8 @@ func (ob *observer) run(cyc *remesh.Cycle, stderr io.Writer) int {
 	}
 	ob.history.Close()
 	ob.remeshes.Close()
-	fmt.Fprintf(ob.stdout, "tearline: %s after %d steps, %d remeshes, Δa = %.4g, t = %.4g (%s); results in %s\n",
-		status, pr.Steps, pr.Remeshes, pr.Da, pr.T, reason, ob.dir)
+	fmt.Fprintf(ob.stdout, "tearline: %s after %d steps, %d remeshes, Δa = %.4g %s, t = %.4g (%s); results in %s\n",
+		status, pr.Steps, pr.Remeshes, pr.Da, ob.report.setup.units.Length, pr.T, reason, ob.dir)
 	if status == "stopped" {
 		fmt.Fprintf(stderr, "tearline: stopped: %s\n", reason)
 	}
@@ -305,7 +305,8 @@ func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 	row := historyRow{Step: r.Step, T: r.T, Control: r.Control, Force: r.Force, JFar: r.JFar, JDomain: r.JDomain,
 		Da: r.Da, DaProj: r.DaProj, CTOD: r.CTOD, Dofs: r.Dofs, Elements: r.Elements, Remeshes: r.Remeshes,
 		Iters: r.Iters, Wall: r.CumWall.Seconds(), RSS: peakRSSMB(), JE1820: math.NaN(), Tearing: math.NaN(),
-		MaxPorosity: r.MaxPorosity, Cutbacks: r.Cutbacks, LoadFactor: r.Load, Gauge: r.Gauge}
+		MaxPorosity: r.MaxPorosity, Cutbacks: r.Cutbacks, LoadFactor: r.Load, Gauge: r.Gauge,
+		JDomainFlag: ob.jDomainFlag(r, view)}
 	if !view.Progress().Tracked {
 		row.Da, row.DaProj = math.NaN(), math.NaN()
 	}
@@ -414,8 +415,8 @@ func (ob *observer) Remesh(r *remesh.RemeshRecord, view remesh.View) error {
 		return fmt.Errorf("remesh.csv: %w", err)
 	}
 	ob.nRemesh++
-	ob.logf("remesh %d at step %d (Δa = %.4g): %s; unknowns %d → %d, elements %d → %d, min angle %.1f°",
-		r.Index, r.Step, r.Da, r.Reason, r.DofsBefore, r.DofsAfter, r.ElemsBefore, r.ElemsAfter, r.MinAngle)
+	ob.logf("remesh %d at step %d (Δa = %.4g %s): %s; unknowns %d → %d, elements %d → %d, min angle %.1f°",
+		r.Index, r.Step, r.Da, ob.report.setup.units.Length, r.Reason, r.DofsBefore, r.DofsAfter, r.ElemsBefore, r.ElemsAfter, r.MinAngle)
 	if err := ob.writeFields(view); err != nil {
 		return err
 	}
@@ -443,14 +444,52 @@ func (ob *observer) checkpoint(view remesh.View) error {
 	return nil
 }
 
+// jDomainFlag is the J_domain_flag of a step: 1 when the outermost ring,
+// whose J the history reports, holds process-zone material; NaN without a
+// domain J.
+func (ob *observer) jDomainFlag(r *remesh.StepRecord, view remesh.View) float64 {
+	jc := ob.rs.cfg.J
+	if math.IsNaN(r.JDomain) || jc == nil || len(jc.Rings) == 0 {
+		return math.NaN()
+	}
+	if !(ob.rs.cfg.Fc > 0) {
+		return 0 // an elastic body has no process zone
+	}
+	ring := jc.Rings[len(jc.Rings)-1]
+	if ringsInProcessZone(view.GaussPoints(), r.TipX, ring.In*jc.Unit, ring.Out*jc.Unit, ob.rs.cfg.Fc) {
+		return 1
+	}
+	return 0
+}
+
 // progress prints one line per step: rewritten in place on a terminal,
-// plain log lines otherwise.
+// plain log lines otherwise, with the case's units.
 // The J is that of the resistance curve (resistanceJ: far field, ASTM
-// E1820, else the domain integral), the force that of the history.
+// E1820, else the domain integral; a flagged domain J is not shown), the
+// force that of the history; the time to go is toward the stop criterion
+// that comes first.
 func (ob *observer) progress(r *remesh.StepRecord) {
-	row := ob.rows[len(ob.rows)-1]
-	line := fmt.Sprintf("step %5d  t %.5f  unknowns %7d  iters %2d  cuts %d  Δa %8.4g  J %10.4g  F %10.4g  %7.1fs",
-		r.Step, r.T, r.Dofs, r.Iters, r.Cutbacks, nanZero(r.Da), nanZero(resistanceJ(row)), nanZero(r.Force), r.CumWall.Seconds())
+	n := len(ob.rows)
+	row := ob.rows[n-1]
+	s := ob.report.setup
+	u := s.units
+	dt := row.T
+	if n > 1 {
+		dt -= ob.rows[n-2].T
+	}
+	da := fmt.Sprintf("Δa %8.4g %s", nanZero(r.Da), u.Length)
+	if ob.rs.length > 0 {
+		da += fmt.Sprintf(" (%.3gℓ)", nanZero(r.Da)/ob.rs.length)
+	}
+	j := fmt.Sprintf("J %10.4g %s", nanZero(resistanceJ(row)), u.J)
+	if math.IsNaN(row.JFar) && math.IsNaN(row.JE1820) && row.JDomainFlag == 1 {
+		j = "J (rings in the process zone)"
+	}
+	line := fmt.Sprintf("step %5d  t %.5f (+%.3g)  unknowns %7d  iters %2d  cuts %d  %s  %s  F %10.4g %s  %7.1f %s",
+		r.Step, r.T, dt, r.Dofs, r.Iters, r.Cutbacks, da, j, nanZero(r.Force), s.force.unit, r.CumWall.Seconds(), u.Time)
+	if secs, key, ok := timeToGo(ob.rows, ob.c.Stop); ok {
+		line += fmt.Sprintf("  about %s to %s", duration(secs), key)
+	}
 	if ob.tty {
 		fmt.Fprintf(ob.stdout, "\r%s", line)
 		return

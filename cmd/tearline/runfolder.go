@@ -21,6 +21,7 @@ var historyColumns = []string{
 	"dofs", "elements", "remeshes", "iters", "wall_s", "rss_mb",
 	"J_E1820", "tearing_modulus", "max_porosity",
 	"cutbacks", "load_factor", "gauge",
+	"J_domain_flag",
 }
 
 // historyRow is one converged step. NaN marks a quantity that does not
@@ -36,6 +37,9 @@ type historyRow struct {
 	// the reading of the specimen's gauge (what an opening control drives).
 	Cutbacks          int
 	LoadFactor, Gauge float64
+	// JDomainFlag is 1 when the rings of J_domain hold process-zone
+	// material (ringsInProcessZone), 0 when not, NaN without a domain J.
+	JDomainFlag float64
 }
 
 func (r historyRow) fields() []string {
@@ -48,7 +52,7 @@ func (r historyRow) fields() []string {
 	i := strconv.Itoa
 	return []string{i(r.Step), f(r.T), f(r.Control), f(r.Force), f(r.JFar), f(r.JDomain), f(r.Da), f(r.DaProj),
 		f(r.CTOD), i(r.Dofs), i(r.Elements), i(r.Remeshes), i(r.Iters), f(r.Wall), f(r.RSS), f(r.JE1820),
-		f(r.Tearing), f(r.MaxPorosity), i(r.Cutbacks), f(r.LoadFactor), f(r.Gauge)}
+		f(r.Tearing), f(r.MaxPorosity), i(r.Cutbacks), f(r.LoadFactor), f(r.Gauge), f(r.JDomainFlag)}
 }
 
 // readHistory reads the first n data rows of history.csv.
@@ -74,6 +78,9 @@ func readHistory(path string, n int) ([]historyRow, error) {
 
 func parseHistoryRow(line string) (historyRow, error) {
 	f := strings.Split(line, ",")
+	if len(f) == len(historyColumns)-1 { // a run folder from before J_domain_flag
+		f = append(f, "")
+	}
 	if len(f) != len(historyColumns) {
 		return historyRow{}, fmt.Errorf("%d fields, want %d", len(f), len(historyColumns))
 	}
@@ -91,7 +98,8 @@ func parseHistoryRow(line string) (historyRow, error) {
 	return historyRow{Step: in(f[0]), T: num(f[1]), Control: num(f[2]), Force: num(f[3]), JFar: num(f[4]),
 		JDomain: num(f[5]), Da: num(f[6]), DaProj: num(f[7]), CTOD: num(f[8]), Dofs: in(f[9]), Elements: in(f[10]),
 		Remeshes: in(f[11]), Iters: in(f[12]), Wall: num(f[13]), RSS: num(f[14]), JE1820: num(f[15]),
-		Tearing: num(f[16]), MaxPorosity: num(f[17]), Cutbacks: in(f[18]), LoadFactor: num(f[19]), Gauge: num(f[20])}, nil
+		Tearing: num(f[16]), MaxPorosity: num(f[17]), Cutbacks: in(f[18]), LoadFactor: num(f[19]), Gauge: num(f[20]),
+		JDomainFlag: num(f[21])}, nil
 }
 
 // csvTable appends rows to a CSV file, flushing and syncing each row so that

@@ -143,7 +143,13 @@ func (m *materialSection) complete(src *caseSource) error {
 	if err := choice(m.Model, []string{"gtn", "elastic"}, src, "material.model"); err != nil {
 		return err
 	}
-	fillAbsent(src, "material", []defaultValue{{"young", &m.Young, def.Young}, {"poisson", &m.Poisson, def.Poisson}})
+	// E and ν have no default: a default modulus would silently fix the
+	// unit system (DEVELOPERS.md, units).
+	for _, k := range []string{"young", "poisson"} {
+		if !src.given("material." + k) {
+			return badInput("%s; give Young's modulus (material.young > 0, a stress in the case's units) and Poisson's ratio (material.poisson in (−1, 0.5))", src.missing("material."+k))
+		}
+	}
 	if err := positive(m.Young, src, "material.young"); err != nil {
 		return err
 	}
