@@ -32,9 +32,11 @@ type Control struct {
 	// over the increment (dissipation-driven control, see zone.go), not
 	// the combination of unknowns.
 	zone bool
-	// hold: this attempt of a zone-controlled step holds the load factor
-	// instead (see Solver.zoneHold).
-	hold bool
+	// fallback: this attempt of a zone-controlled step prescribes the
+	// load factor instead, T = Tₙ + loadPace·(τ − τₙ) (see
+	// Solver.zoneFallback).
+	fallback bool
+	loadPace float64
 }
 
 // ErrHeldControl is the error of a control whose unknowns are prescribed
@@ -155,8 +157,8 @@ func (s *Solver) borderedStep(t float64) (float64, error) {
 // value less its target.
 func (s *Solver) gap(t float64) float64 {
 	c := s.ctl
-	if c.hold {
-		return s.P.T - s.P.TCommitted
+	if c.fallback {
+		return s.P.T - s.P.TCommitted - c.loadPace*(t-s.tauC)
 	}
 	if c.zone {
 		v, _, _, _ := s.P.ProcessZone()
@@ -170,7 +172,7 @@ func (s *Solver) gap(t float64) float64 {
 // the load factor's own contribution (a·x₂ + ∂g/∂T).
 func (s *Solver) border(t float64) (g, ax1, ax2 float64) {
 	c := s.ctl
-	if c.hold {
+	if c.fallback {
 		return s.gap(t), 0, 1
 	}
 	if !c.zone {
@@ -193,7 +195,7 @@ func (s *Solver) controlResidual(t float64) float64 {
 	}
 	g := s.gap(t)
 	d := math.Abs(c.Rate * (t - s.tauC))
-	if c.hold {
+	if c.fallback {
 		d = math.Max(math.Abs(s.P.TCommitted), 1)
 	}
 	if d == 0 {

@@ -674,10 +674,10 @@ func (s *Solver) Next() (Step, error) {
 	cuts := 0
 	for {
 		st, err := s.Increment(s.Time() + dt)
-		if s.ctl != nil {
-			s.ctl.hold = false
-		}
 		if err == nil {
+			if s.ctl != nil {
+				s.ctl.fallback = false
+			}
 			st.Cutbacks = cuts
 			st.Wall = time.Since(start)
 			if st.Iterations <= o.EasyIter && cuts == 0 {
@@ -693,12 +693,15 @@ func (s *Solver) Next() (Step, error) {
 			o.Failed(s.Time(), dt, err)
 		}
 		cuts++
-		if s.zoneHold(cuts) {
+		if s.zoneFallback(cuts) {
 			continue // the same increment, at the committed load
 		}
 		dt *= o.Cut
 		s.dt = dt
 		if dt < o.DtMin {
+			if s.ctl != nil {
+				s.ctl.fallback = false
+			}
 			return Step{T: s.Time(), Cutbacks: cuts, Wall: time.Since(start)}, &StallError{T: s.Time(), Dt: dt, DtMin: o.DtMin, Cutbacks: cuts, Last: err}
 		}
 	}

@@ -53,26 +53,38 @@ func (s *Solver) zonePace() {
 	c.Rate = math.Min(s.zoneLast/s.zoneLoad, s.Opt.Grow*c.Rate)
 }
 
-// zoneHold turns the next attempt of a zone-controlled step that has
-// failed zoneHoldAfter times into one that holds the load factor. An
-// element giving up its force (fem.Options.ReleaseSteps) changes the
-// equilibrium by a finite amount each converged step however small the
-// increment, and the zone may have to strain by more than the increment
-// asks to take it up, so no cut-back converges; at the committed load the
-// body redistributes it. The increment of pseudo-time is taken all the
-// same (zone.go).
-func (s *Solver) zoneHold(cuts int) bool {
+// zoneFallback changes how the attempts of a zone-controlled step go on
+// once zoneFallbackAfter of them have failed: the next attempt holds the
+// load factor at its committed value, and from then on each increment
+// size is tried twice, as a load step (the load factor rising with the
+// pseudo-time, as under load control) and under the zone constraint,
+// before it is cut back. An element giving up its force
+// (fem.Options.ReleaseSteps) changes the equilibrium by a finite amount
+// each converged step however small the increment, and the zone may have
+// to strain by more than the increment asks to take it up, so that no
+// cut-back of the zone constraint converges, while a hold or a small load
+// step lets the body redistribute it; through a snap-back only the zone
+// constraint passes. It reports whether to retry the same increment.
+func (s *Solver) zoneFallback(cuts int) bool {
 	c := s.ctl
-	if c == nil || !c.zone || cuts != zoneHoldAfter {
+	if c == nil || !c.zone || cuts < zoneFallbackAfter {
 		return false
 	}
-	c.hold = true
-	return true
+	switch k := cuts - zoneFallbackAfter; {
+	case k == 0:
+		c.fallback, c.loadPace = true, 0
+		return true
+	case k%2 == 1:
+		c.fallback, c.loadPace = true, 1
+		return true
+	}
+	c.fallback = false
+	return false
 }
 
-// zoneHoldAfter is the number of failed attempts of a zone-controlled
-// step after which one attempt holds the load factor.
-const zoneHoldAfter = 2
+// zoneFallbackAfter is the number of failed attempts of a zone-controlled
+// step after which the load factor is prescribed instead.
+const zoneFallbackAfter = 2
 
 // ZoneControlled reports whether the dissipation-driven control is in use.
 func (s *Solver) ZoneControlled() bool {
