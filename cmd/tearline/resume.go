@@ -122,13 +122,17 @@ func (ob *observer) restore(st observerState) error {
 // checkModel refuses (exit 2) a case whose model — everything but [stop]
 // and [output] — differs from the one the checkpoint was written under.
 func checkModel(c *caseFile, st observerState, casePath string, stderr io.Writer) int {
-	model, err := modelHash(c)
+	model, err := modelKeys(c)
 	if err != nil {
 		fmt.Fprintf(stderr, "tearline: %v\n", err)
 		return 1
 	}
-	if st.ModelHash != model {
-		fmt.Fprintf(stderr, "tearline: %s has changed since the checkpoint (keys outside [stop] and [output]); restore it, or start a new run with the new case\n", casePath)
+	if st.Model == nil {
+		fmt.Fprintf(stderr, "tearline: the checkpoint of %s records no model (written by an earlier version); start a new run\n", casePath)
+		return 2
+	}
+	if changed := changedKeys(st.Model, model); len(changed) > 0 {
+		fmt.Fprintf(stderr, "tearline: %s has changed since the checkpoint (keys outside [stop] and [output]): %s; restore it, or start a new run with the new case\n", casePath, strings.Join(changed, ", "))
 		return 2
 	}
 	return 0

@@ -209,7 +209,7 @@ func TestResumeGuardsTheModel(t *testing.T) {
 	}
 	os.WriteFile(caseFile, []byte(edited), 0o644)
 	var stderr strings.Builder
-	if code := dispatch([]string{"resume", dir}, io.Discard, &stderr); code != 2 || !strings.Contains(stderr.String(), "has changed since the checkpoint") {
+	if code := dispatch([]string{"resume", dir}, io.Discard, &stderr); code != 2 || !strings.Contains(stderr.String(), "has changed since the checkpoint") || !strings.Contains(stderr.String(), "material.young (was 200000, now 210000)") {
 		t.Fatalf("resume of an edited case: exit %d, %q; want exit 2", code, stderr.String())
 	}
 	if after, _ := os.ReadFile(hist); string(after) != string(before) {
@@ -271,6 +271,28 @@ func TestResumeUnderDissipationControl(t *testing.T) {
 			if math.IsNaN(a) != math.IsNaN(b) || math.Abs(a-b) > 1e-10*math.Max(math.Abs(b), 1e-300) && math.Abs(a-b) > 1e-14 {
 				t.Errorf("row %d column %d: resumed %.15g, uninterrupted %.15g", i+1, j, a, b)
 			}
+		}
+	}
+}
+
+// TestChangedKeys: resume compares the model key by key — a changed or
+// removed key is named with both values, a key only the newer program
+// writes (a default it added) does not count.
+func TestChangedKeys(t *testing.T) {
+	was := map[string]string{"material.young": "200000", "mesh.h_fine": "0.1", "loading.fix.1.label": "left"}
+	for _, tc := range []struct {
+		name string
+		now  map[string]string
+		want []string
+	}{
+		{"same", map[string]string{"material.young": "200000", "mesh.h_fine": "0.1", "loading.fix.1.label": "left"}, nil},
+		{"a key added by a later version", map[string]string{"material.young": "200000", "mesh.h_fine": "0.1", "loading.fix.1.label": "left", "units.system": "mm-N-MPa"}, nil},
+		{"changed and removed", map[string]string{"material.young": "210000", "mesh.h_fine": "0.1"},
+			[]string{"loading.fix.1.label (was left, now absent)", "material.young (was 200000, now 210000)"}},
+	} {
+		got := changedKeys(was, tc.now)
+		if strings.Join(got, "|") != strings.Join(tc.want, "|") {
+			t.Errorf("%s: %q, want %q", tc.name, got, tc.want)
 		}
 	}
 }

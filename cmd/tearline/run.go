@@ -163,7 +163,7 @@ type observer struct {
 	c        *caseFile
 	rs       *runSetup
 	hash     string
-	model    string // modelHash of the case, kept in every checkpoint
+	model    map[string]string // modelKeys of the case, kept in every checkpoint
 	stdout   io.Writer
 	tty      bool
 	history  *csvTable
@@ -193,9 +193,9 @@ type observerState struct {
 	RemeshRows  int        `json:"remesh_rows"`
 	Fields      []pvdEntry `json:"fields"`
 	Iters       []int      `json:"iters"`
-	// ModelHash is modelHash of the case the checkpoint was written under:
+	// Model is modelKeys of the case the checkpoint was written under:
 	// resume refuses a case whose model has changed since.
-	ModelHash string `json:"model_hash"`
+	Model map[string]string `json:"model"`
 }
 
 var remeshColumns = []string{
@@ -207,7 +207,7 @@ var remeshColumns = []string{
 }
 
 func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.Writer, resume bool) (*observer, error) {
-	model, err := modelHash(c)
+	model, err := modelKeys(c)
 	if err != nil {
 		return nil, err
 	}
@@ -432,7 +432,7 @@ func (ob *observer) RemeshFailed(index, step int, err error) error {
 
 // checkpoint writes the committed state atomically.
 func (ob *observer) checkpoint(view remesh.View) error {
-	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters, ModelHash: ob.model})
+	extra, err := json.Marshal(observerState{HistoryRows: len(ob.rows), RemeshRows: ob.nRemesh, Fields: ob.pvd, Iters: ob.iters, Model: ob.model})
 	if err != nil {
 		return err
 	}

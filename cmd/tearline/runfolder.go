@@ -10,8 +10,11 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"sort"
 	"strconv"
 	"strings"
+
+	"github.com/BurntSushi/toml"
 )
 
 // historyColumns is the stable header of history.csv (DESIGN.md §6). New
@@ -248,16 +251,66 @@ func writeSummary(dir string, s summary) error {
 	})
 }
 
-// modelHash is the hash of the case with its [stop] and [output] sections
-// left out: what a resumed run must share with the checkpointed one.
-func modelHash(c *caseFile) (string, error) {
+// modelKeys is the model of a case — every key but those of [stop] and
+// [output], defaults filled in — as a flat map from the dotted key to its
+// value's text. A checkpoint stores it, and resume compares key by key, so
+// that it names what changed and accepts the keys a later version of the
+// program added (a run folder written before them never set them).
+func modelKeys(c *caseFile) (map[string]string, error) {
 	m := *c
 	m.Stop, m.Output = stopSection{}, outputSection{}
 	text, err := m.encode()
 	if err != nil {
-		return "", err
+		return nil, err
 	}
-	return hashBytes(text), nil
+	var tree map[string]any
+	if _, err := toml.Decode(string(text), &tree); err != nil {
+		return nil, fmt.Errorf("model of the case: %w", err)
+	}
+	keys := map[string]string{}
+	flattenKeys("", tree, keys)
+	delete(keys, "stop")
+	delete(keys, "output")
+	return keys, nil
+}
+
+// flattenKeys adds the leaves of v under prefix to keys; arrays of tables
+// are numbered (loading.fix.1.label).
+func flattenKeys(prefix string, v any, keys map[string]string) {
+	join := func(k string) string {
+		if prefix == "" {
+			return k
+		}
+		return prefix + "." + k
+	}
+	switch x := v.(type) {
+	case map[string]any:
+		for k, e := range x {
+			flattenKeys(join(k), e, keys)
+		}
+	case []map[string]any:
+		for i, e := range x {
+			flattenKeys(join(strconv.Itoa(i+1)), e, keys)
+		}
+	default:
+		keys[prefix] = fmt.Sprint(x)
+	}
+}
+
+// changedKeys lists the keys of the model was whose values differ in now
+// or that now lacks, with both values, in key order; keys only now has are
+// new to the program and do not count.
+func changedKeys(was, now map[string]string) []string {
+	var out []string
+	for k, a := range was {
+		if b, ok := now[k]; !ok {
+			out = append(out, fmt.Sprintf("%s (was %s, now absent)", k, a))
+		} else if a != b {
+			out = append(out, fmt.Sprintf("%s (was %s, now %s)", k, a, b))
+		}
+	}
+	sort.Strings(out)
+	return out
 }
 
 func hashBytes(b []byte) string {
