@@ -57,7 +57,9 @@ penalty                                augmentation penalty r, in units of σ₀
 kind         "k_field" (remote Williams field: k, t_stress), "pin" (C(T) pin: value),
              "displacement" (label, component, value), "pressure" (label, value);
              default: the specimen's natural load. Magnitudes are those at t = 1.
-control      "load" (t scales the load) or "opening": t drives the specimen's gauge, which
+control      default "dissipation" for a GTN material on a built-in specimen (ssy, ct,
+             notched_bar, dent), else "load" (and always under a pressure);
+             "load" (t scales the load) or "opening": t drives the specimen's gauge, which
              opens by "opening" at t = 1, and the load factor is solved for — for tearing
              past the maximum load and through load drops, where load control stalls.
              Natural gauges: ssy/k_field the crack opening at opening_at behind the initial

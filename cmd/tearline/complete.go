@@ -9,6 +9,17 @@ import (
 	"tearline/remesh/size"
 )
 
+// naturalControl is loading.control when the case does not say: a damage
+// model on a built-in specimen tears through its load maximum and its load
+// drops, which only the dissipation-driven control follows (DEVELOPERS.md);
+// an elastic body and a polygon of the user's own stay under load control.
+func (c *caseFile) naturalControl() string {
+	if c.Material.Model == "gtn" && c.Geometry.Kind != "polygon" {
+		return "dissipation"
+	}
+	return "load"
+}
+
 // complete fills defaults and validates every section of the case. The
 // geometry is built once here so that the loading and adaptivity defaults
 // can follow the specimen (a crack tip switches adaptivity on; the
@@ -32,7 +43,7 @@ func (c *caseFile) complete(src *caseSource) error {
 	c.specimen, c.size = sp, sf
 	_, hasTip := d.Points[geom.PointTip]
 	natural := loadKindName(sp.Natural)
-	if err := c.Loading.complete(src, natural, c.unit()); err != nil {
+	if err := c.Loading.complete(src, natural, c.naturalControl(), c.unit()); err != nil {
 		return err
 	}
 	if err := c.Loading.placeGauge(sp, src); err != nil {

@@ -53,6 +53,7 @@ func TestCaseDefaults(t *testing.T) {
 
 	so := solver.DefaultOptions()
 	so.Dt, so.DtMax, so.EasyIter = caseIncrement, caseMaxIncrement, caseEasyIter
+	so.ProcessZone = caseFc // the natural control of a GTN specimen is dissipation-driven
 
 	fe := fem.Options{Kinematics: fem.PlaneStrain, ReleaseSteps: caseReleaseSteps, FlapPorosity: caseFc}
 

@@ -257,7 +257,7 @@ func (l *loadingSection) gaugeName() string {
 	return "the specimen's natural gauge"
 }
 
-func (l *loadingSection) complete(src *caseSource, natural string, unit float64) error {
+func (l *loadingSection) complete(src *caseSource, natural, naturalControl string, unit float64) error {
 	if l.Kind == "" {
 		l.Kind = natural
 	}
@@ -265,7 +265,11 @@ func (l *loadingSection) complete(src *caseSource, natural string, unit float64)
 		return err
 	}
 	if l.Control == "" {
-		l.Control = "load"
+		l.Control = naturalControl
+		if l.Kind == "pressure" {
+			// a follower pressure has no load rate for a bordered control
+			l.Control = "load"
+		}
 	}
 	if err := choice(l.Control, []string{"load", "opening", "dissipation"}, src, "loading.control"); err != nil {
 		return err
