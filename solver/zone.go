@@ -55,7 +55,8 @@ func (s *Solver) zonePace() {
 
 // zoneFallback changes how the attempts of a zone-controlled step go on
 // once zoneFallbackAfter of them have failed: the next attempt holds the
-// load factor at its committed value, and from then on each increment
+// load factor at its committed value if an element is releasing its force,
+// and from then on each increment
 // size is tried twice, as a load step (the load factor rising with the
 // pseudo-time, as under load control) and under the zone constraint,
 // before it is cut back. An element giving up its force
@@ -71,10 +72,12 @@ func (s *Solver) zoneFallback(cuts int) bool {
 		return false
 	}
 	switch k := cuts - zoneFallbackAfter; {
-	case k == 0:
+	case k == 0 && s.P.Releasing():
+		// (with no release under way the committed state is already in
+		// equilibrium at its load: a hold would be a step that does nothing)
 		c.fallback, c.loadPace = true, 0
 		return true
-	case k%2 == 1:
+	case k == 0 || k%2 == 1:
 		c.fallback, c.loadPace = true, 1
 		return true
 	}

@@ -82,6 +82,18 @@ func (p *Problem) addReleaseForces() {
 	}
 }
 
+// Releasing reports whether an element is still giving up its force: the
+// next step's residual then changes by its share even at unchanged
+// unknowns and load.
+func (p *Problem) Releasing() bool {
+	for i := range p.release {
+		if p.release[i].Done < p.Opt.ReleaseSteps {
+			return true
+		}
+	}
+	return false
+}
+
 // advanceReleases counts a converged step for every element still
 // releasing its force.
 func (p *Problem) advanceReleases() {

@@ -88,3 +88,32 @@ func TestFlaps(t *testing.T) {
 		t.Errorf("%d releases listed, want %d", n, len(damaged))
 	}
 }
+
+// TestReleasing: an element is releasing its force while it has counted
+// fewer converged steps than Options.ReleaseSteps (the residual of the next
+// step changes by its share, Release.Done), and no longer once it has.
+func TestReleasing(t *testing.T) {
+	m, err := Structured(2, 2, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := NewProblem(m, newHenckyT(200e3, 0.3), Options{ReleaseSteps: 3}, BCs{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		done []int
+		want bool
+	}{{nil, false}, {[]int{0}, true}, {[]int{2}, true}, {[]int{3}, false}, {[]int{3, 1}, true}} {
+		var rs []Release
+		for i, d := range tc.done {
+			rs = append(rs, Release{Elem: i, Done: d})
+		}
+		if err := p.SetReleases(rs); err != nil {
+			t.Fatal(err)
+		}
+		if got := p.Releasing(); got != tc.want {
+			t.Errorf("releases done %v: Releasing() = %v, want %v", tc.done, got, tc.want)
+		}
+	}
+}
