@@ -600,6 +600,33 @@ func (r *refiner) onlyKept() bool {
 	return true
 }
 
+// offCentre is the off-centre of triangle t (Üngör 2009, Comput. Geom. 42):
+// the point on the perpendicular bisector of its shortest edge, towards
+// the circumcentre c, at which that edge and the point make a triangle
+// whose apex angle is twice the angle bound, or c if that is nearer. It
+// lies inside t's circumcircle, so inserting it removes t, and it is much
+// nearer than c for a flat triangle, whose circumcentre lies far off.
+func (r *refiner) offCentre(t int32, c [2]float64) [2]float64 {
+	m := r.m
+	var p, q [2]float64
+	best := math.Inf(1)
+	for k := int32(0); k < 3; k++ {
+		a, b := m.xy[m.tv[3*t+k]], m.xy[m.tv[3*t+next3(k)]]
+		if l := plane.Dist(a, b); l < best {
+			best, p, q = l, a, b
+		}
+	}
+	mid := [2]float64{0.5 * (p[0] + q[0]), 0.5 * (p[1] + q[1])}
+	d := plane.Dist(mid, c)
+	// tan θ = sin θ / cos θ with sin² θ = r.sin2
+	height := 0.5 * best * math.Sqrt((1-r.sin2)/r.sin2)
+	if d <= height {
+		return c
+	}
+	f := height / d
+	return [2]float64{mid[0] + f*(c[0]-mid[0]), mid[1] + f*(c[1]-mid[1])}
+}
+
 // circumcentre of triangle t, computed relative to its first vertex.
 func (m *tmesh) circumcentre(t int32) [2]float64 {
 	a, b, c := m.xy[m.tv[3*t]], m.xy[m.tv[3*t+1]], m.xy[m.tv[3*t+2]]
@@ -622,11 +649,20 @@ func (r *refiner) splitTri(t int32) {
 	kind, ref := m.locate(c, t, true)
 	switch kind {
 	case locSeg:
-		if s := m.ts[ref]; !r.unsplittable(s) {
+		s := m.ts[ref]
+		if !r.unsplittable(s) {
 			r.pushSeg(s)
 			r.pushTri(t)
+			return
 		}
-		return
+		if r.keep == nil || !r.keep[m.sorig[s]] {
+			return
+		}
+		// Beyond a kept segment: try the off-centre instead.
+		c = r.offCentre(t, c)
+		if kind, ref = m.locate(c, t, true); kind != locIn && kind != locEdge {
+			return
+		}
 	case locVert, locOut:
 		return
 	}
