@@ -22,17 +22,23 @@ import (
 
 // PatchRule chooses the old triangles a local remesh rebuilds.
 type PatchRule struct {
-	// TipRadius is the radius, in units of h at the tip, of the disc
-	// around each tip whose triangles are rebuilt (0 = 2): the carve may
-	// move the tip vertex and the size field is centred on it, so the mesh
-	// right at the tip follows the new field.
+	// TipRadius is the radius, in units of h at the tip, of a disc around
+	// each tip whose triangles are always rebuilt (0 = none). The default
+	// rebuilds none: the carve puts each tip on an old vertex, the size
+	// rule below already rebuilds where the fine zone has moved, and
+	// rebuilding the process zone would smooth the very peaks a local
+	// remesh is meant to keep. A named point that is not a kept vertex
+	// makes the patch grow until it is inside.
 	TipRadius float64
 	// Coarse and Fine bound the ratio of a kept triangle's longest edge to
 	// h at its centroid (0 = 1.5 and 0.25). The refiner leaves edges of
 	// 0.4–1 h, so a ratio above Coarse means the fine zone has moved there
 	// (the old mesh is too coarse) and one below Fine a wake the field
 	// wants coarsened; triangles in between are as good as a new mesh
-	// would make them and are kept.
+	// would make them and are kept. Fine is not applied to triangles
+	// touching the boundary: next to small features (a blunted tip's arc,
+	// short pieces) the refiner leaves triangles far below h, and a new
+	// mesh would do the same.
 	Coarse, Fine float64
 	// Rings is how many times the patch may grow by a ring of triangles
 	// when it cannot be meshed with its boundary kept (0 = 3).
@@ -50,7 +56,6 @@ func (r PatchRule) withDefaults() PatchRule {
 			*v = d
 		}
 	}
-	def(&r.TipRadius, 2)
 	def(&r.Coarse, 1.5)
 	def(&r.Fine, 0.25)
 	def(&r.AcceptAngle, 15)
@@ -63,7 +68,8 @@ func (r PatchRule) withDefaults() PatchRule {
 // Patch marks the old triangles to rebuild: the removed ones and those
 // sharing a corner with one (the carve simplifies the new faces through
 // them), those with a corner within TipRadius·h(tip) of a tip, and those
-// whose longest edge lies outside [Fine, Coarse]·h(centroid).
+// whose longest edge lies outside [Fine, Coarse]·h(centroid) (see
+// PatchRule for the reasons).
 func Patch(old *fem.Mesh, removed []bool, tips [][2]float64, size func(x, y float64) float64, rule PatchRule) []bool {
 	rule = rule.withDefaults()
 	patch := make([]bool, len(old.Tri))
@@ -73,6 +79,10 @@ func Patch(old *fem.Mesh, removed []bool, tips [][2]float64, size func(x, y floa
 			patch[e] = true
 			touch[t[0]], touch[t[1]], touch[t[2]] = true, true, true
 		}
+	}
+	onBoundary := make([]bool, old.NumCorners)
+	for _, ed := range old.Boundary {
+		onBoundary[ed.A], onBoundary[ed.B] = true, true
 	}
 	radius := make([]float64, len(tips))
 	for i, p := range tips {
@@ -93,7 +103,8 @@ func Patch(old *fem.Mesh, removed []bool, tips [][2]float64, size func(x, y floa
 		}
 		l := math.Max(math.Hypot(b[0]-a[0], b[1]-a[1]), math.Max(math.Hypot(c[0]-b[0], c[1]-b[1]), math.Hypot(a[0]-c[0], a[1]-c[1])))
 		h := size((a[0]+b[0]+c[0])/3, (a[1]+b[1]+c[1])/3)
-		if l > rule.Coarse*h || l < rule.Fine*h {
+		fine := l < rule.Fine*h && !onBoundary[t[0]] && !onBoundary[t[1]] && !onBoundary[t[2]]
+		if l > rule.Coarse*h || fine {
 			patch[e] = true
 		}
 	}
