@@ -89,10 +89,7 @@ func (c *Cycle) remeshLocalProbe(t *testing.T, old map[[6][2]float64][]material.
 	if err != nil {
 		return nil, err
 	}
-	m, err := c.newLocalMesh(carved, field, rr)
-	if m == nil && err == nil {
-		m, err = c.newMesh(carved.Domain, field, rr)
-	}
+	m, err := c.newMeshOf(carved, field, rr)
 	if err != nil {
 		return nil, err
 	}

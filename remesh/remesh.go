@@ -38,10 +38,7 @@ func (c *Cycle) remesh(d trigger.Decision, gp *fem.GaussPoints) (*RemeshRecord, 
 	}
 	rr.GeomWall = time.Since(t0)
 	t0 = time.Now()
-	m, err := c.newLocalMesh(carved, field, rr)
-	if m == nil && err == nil {
-		m, err = c.newMesh(carved.Domain, field, rr)
-	}
+	m, err := c.newMeshOf(carved, field, rr)
 	if err != nil {
 		return nil, err
 	}
@@ -93,6 +90,16 @@ func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRec
 		}
 	}
 	return carved, nil
+}
+
+// newMeshOf is the new mesh: local when Local is on and the patch can be
+// meshed, else of the whole domain.
+func (c *Cycle) newMeshOf(carved *carve.Result, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
+	m, err := c.newLocalMesh(carved, field, rr)
+	if m == nil && err == nil {
+		m, err = c.newMesh(carved.Domain, field, rr)
+	}
+	return m, err
 }
 
 // newLocalMesh meshes the new domain by rebuilding only a patch of the
