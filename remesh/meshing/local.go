@@ -27,8 +27,8 @@ type PatchRule struct {
 	// rebuilds none: the carve puts each tip on an old vertex, the size
 	// rule below already rebuilds where the fine zone has moved, and
 	// rebuilding the process zone would smooth the very peaks a local
-	// remesh is meant to keep. A named point that is not a kept vertex
-	// makes the patch grow until it is inside.
+	// remesh is meant to keep. A tip that is not an old vertex (it has
+	// moved) gets a disc of at least one h, so that it becomes a vertex.
 	TipRadius float64
 	// Coarse and Fine bound the ratio of a kept triangle's longest edge to
 	// h at its centroid (0 = 1.5 and 0.25). The refiner leaves edges of
@@ -84,9 +84,17 @@ func Patch(old *fem.Mesh, removed []bool, tips [][2]float64, size func(x, y floa
 	for _, ed := range old.Boundary {
 		onBoundary[ed.A], onBoundary[ed.B] = true, true
 	}
+	corner := make(map[[2]float64]bool, old.NumCorners)
+	for v := 0; v < old.NumCorners; v++ {
+		corner[old.X[v]] = true
+	}
 	radius := make([]float64, len(tips))
 	for i, p := range tips {
-		radius[i] = rule.TipRadius * size(p[0], p[1])
+		f := rule.TipRadius
+		if !corner[p] {
+			f = math.Max(f, 1) // a moved tip must become a vertex
+		}
+		radius[i] = f * size(p[0], p[1])
 	}
 	for e, t := range old.Tri {
 		if patch[e] || touch[t[0]] || touch[t[1]] || touch[t[2]] {
