@@ -58,6 +58,12 @@ type CycleConfig struct {
 	Follow   size.FollowOptions
 	Carve    carve.Options
 	Transfer transfer.Options
+	// Local switches local remeshing on: a remesh rebuilds only a patch
+	// (chosen by Patch) and keeps every other element, its nodes and its
+	// state verbatim; when the patch cannot be meshed the remesh falls
+	// back to the whole mesh (RemeshRecord.LocalNote says why).
+	Local bool
+	Patch meshing.PatchRule
 
 	// J configures the domain integral (rings in units of ℓ, or of h_fine
 	// for a local model); nil switches J off (axisymmetric cases).
@@ -107,19 +113,27 @@ type StepRecord struct {
 
 // RemeshRecord is the record of one remesh (remesh.csv).
 type RemeshRecord struct {
-	Index                       int
-	Step                        int
-	T, Da                       float64
-	Reason                      string
-	DofsBefore, DofsAfter       int
-	ElemsBefore, ElemsAfter     int
-	MinSize, MinAngle           float64
-	ForceBefore, ForceTransfer  float64
-	ForceAfter                  float64
-	MaxFBefore, MaxFAfter       float64
-	IntPBefore, IntPAfter       float64
-	WorkBefore, WorkAfter       float64
-	Removed, Verbatim           int
+	Index                      int
+	Step                       int
+	T, Da                      float64
+	Reason                     string
+	DofsBefore, DofsAfter      int
+	ElemsBefore, ElemsAfter    int
+	MinSize, MinAngle          float64
+	ForceBefore, ForceTransfer float64
+	ForceAfter                 float64
+	MaxFBefore, MaxFAfter      float64
+	IntPBefore, IntPAfter      float64
+	WorkBefore, WorkAfter      float64
+	Removed, Verbatim          int
+	// VerbatimShare is the share of the new mesh's Gauss points kept
+	// verbatim (Verbatim over all of them).
+	VerbatimShare float64
+	// KeptElements counts the elements a local remesh kept; LocalNote
+	// says why a local remesh grew its patch or fell back to the whole
+	// mesh (empty when it did neither or was off).
+	KeptElements                int
+	LocalNote                   string
 	Iterations                  int
 	GeomWall, MeshWall, MapWall time.Duration
 	EquilWall                   time.Duration

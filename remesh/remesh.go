@@ -3,6 +3,7 @@ package remesh
 import (
 	"fmt"
 	"math"
+	"strings"
 	"tearline/remesh/carve"
 	"tearline/remesh/geom"
 	"tearline/remesh/meshing"
@@ -31,13 +32,13 @@ func (c *Cycle) remesh(d trigger.Decision, gp *fem.GaussPoints) (*RemeshRecord, 
 	if err != nil {
 		return nil, err
 	}
-	dom, err := c.newGeometry(field, released, rr)
+	carved, err := c.newGeometry(field, released, rr)
 	if err != nil {
 		return nil, err
 	}
 	rr.GeomWall = time.Since(t0)
 	t0 = time.Now()
-	m, err := c.newMesh(dom, field, rr)
+	m, err := c.newMeshOf(carved, field, rr)
 	if err != nil {
 		return nil, err
 	}
@@ -77,8 +78,8 @@ func (c *Cycle) sizeField(gp *fem.GaussPoints) (*size.TipField, []bool, error) {
 }
 
 // newGeometry is the domain of the material left when the released
-// elements are carved away.
-func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRecord) (*geom.Domain, error) {
+// elements are carved away, with the old elements it removed.
+func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRecord) (*carve.Result, error) {
 	carved, err := carve.Domain(c.mesh, released, c.cfg.Domain, c.tips, field.At, c.cfg.Carve)
 	if err != nil {
 		return nil, fmt.Errorf("new geometry: %w", err)
@@ -88,7 +89,51 @@ func (c *Cycle) newGeometry(field *size.TipField, released []bool, rr *RemeshRec
 			rr.Removed++
 		}
 	}
-	return carved.Domain, nil
+	return carved, nil
+}
+
+// newMeshOf is the new mesh: local when Local is on and the patch can be
+// meshed, else of the whole domain.
+func (c *Cycle) newMeshOf(carved *carve.Result, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
+	m, err := c.newLocalMesh(carved, field, rr)
+	if m == nil && err == nil {
+		m, err = c.newMesh(carved.Domain, field, rr)
+	}
+	return m, err
+}
+
+// newLocalMesh meshes the new domain by rebuilding only a patch of the
+// current mesh (when Local is on). It returns a nil mesh and no error when
+// the patch cannot be meshed: the caller then meshes the whole domain, and
+// rr.LocalNote says why.
+func (c *Cycle) newLocalMesh(carved *carve.Result, field *size.TipField, rr *RemeshRecord) (*fem.Mesh, error) {
+	if !c.cfg.Local {
+		return nil, nil
+	}
+	tips := make([][2]float64, len(c.tips))
+	for i, tp := range c.tips {
+		tips[i] = tp.X
+	}
+	patch := meshing.Patch(c.mesh, carved.Removed, tips, field.At, c.cfg.Patch)
+	m, rep, err := meshing.MeshLocal(c.mesh, carved.Domain, patch, field.At, c.cfg.Mesh, c.cfg.Patch)
+	if err != nil {
+		rr.LocalNote = "whole mesh: " + err.Error()
+		return nil, nil
+	}
+	rr.KeptElements = rep.Kept
+	rr.LocalNote = strings.Join(rep.Retries, "; ")
+	rr.MinAngle = rep.MinAngleDeg
+	rr.MinSize = minSize(m)
+	return m, nil
+}
+
+// minSize is the smallest longest edge of m's elements.
+func minSize(m *fem.Mesh) float64 {
+	s := math.Inf(1)
+	for e := range m.Tri {
+		s = math.Min(s, trigger.LongestEdge(m, e))
+	}
+	return s
 }
 
 // newMesh meshes the new domain to the size field.
@@ -98,10 +143,7 @@ func (c *Cycle) newMesh(dom *geom.Domain, field *size.TipField, rr *RemeshRecord
 		return nil, fmt.Errorf("new mesh: %w", err)
 	}
 	rr.MinAngle = rep.MinAngleDeg
-	rr.MinSize = math.Inf(1)
-	for e := range m.Tri {
-		rr.MinSize = math.Min(rr.MinSize, trigger.LongestEdge(m, e))
-	}
+	rr.MinSize = minSize(m)
 	return m, nil
 }
 
@@ -121,6 +163,9 @@ func (c *Cycle) transferTo(m *fem.Mesh, gp *fem.GaussPoints, rr *RemeshRecord) (
 	rr.IntPBefore, rr.IntPAfter = trec.Before.IntP, trec.After.IntP
 	rr.WorkBefore, rr.WorkAfter = trec.Before.Work, trec.After.Work
 	rr.Verbatim = trec.Verbatim
+	if n := trec.Verbatim + trec.Broken + trec.Projected + trec.Extrapolated; n > 0 {
+		rr.VerbatimShare = float64(trec.Verbatim) / float64(n)
+	}
 	next, err := c.newStage(m)
 	if err != nil {
 		return nil, err

@@ -203,7 +203,7 @@ var remeshColumns = []string{
 	"min_size", "min_angle_deg", "force_before", "force_after_transfer", "force_after_equilibrium",
 	"max_porosity_before", "max_porosity_after", "int_p_before", "int_p_after",
 	"work_before", "work_after", "removed_elements", "verbatim_points", "equilibrium_iters",
-	"geometry_s", "mesh_s", "transfer_s", "equilibrium_s",
+	"geometry_s", "mesh_s", "transfer_s", "equilibrium_s", "verbatim_share",
 }
 
 func newObserver(dir string, c *caseFile, rs *runSetup, hash string, stdout io.Writer, resume bool) (*observer, error) {
@@ -410,7 +410,7 @@ func (ob *observer) Remesh(r *remesh.RemeshRecord, view remesh.View) error {
 		f(r.MinSize), f(r.MinAngle), f(r.ForceBefore), f(r.ForceTransfer), f(r.ForceAfter),
 		f(r.MaxFBefore), f(r.MaxFAfter), f(r.IntPBefore), f(r.IntPAfter), f(r.WorkBefore), f(r.WorkAfter),
 		fmt.Sprint(r.Removed), fmt.Sprint(r.Verbatim), fmt.Sprint(r.Iterations),
-		s(r.GeomWall), s(r.MeshWall), s(r.MapWall), s(r.EquilWall)}
+		s(r.GeomWall), s(r.MeshWall), s(r.MapWall), s(r.EquilWall), f(r.VerbatimShare)}
 	if err := ob.remeshes.write(fields); err != nil {
 		return fmt.Errorf("remesh.csv: %w", err)
 	}

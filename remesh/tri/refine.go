@@ -22,6 +22,8 @@ type refiner struct {
 	// minLen: sub-segments shorter than this are not split, and triangles
 	// with a shorter edge are not split for their angles.
 	minLen float64
+	// keep flags the input segments that are never split (Options.Keep).
+	keep []bool
 
 	segQ    []segItem
 	segHead int
@@ -42,7 +44,7 @@ func newRefiner(m *tmesh, in *Input, opt *Options) *refiner {
 	r := &refiner{m: m, maxPts: DefaultMaxPoints, inSegs: in.Segments}
 	theta := float64(DefaultMinAngle)
 	if opt != nil {
-		r.size, r.split = opt.Size, opt.Split
+		r.size, r.split, r.keep = opt.Size, opt.Split, opt.Keep
 		if opt.MinAngle > 0 {
 			theta = opt.MinAngle
 		}
@@ -180,6 +182,10 @@ func (r *refiner) bad(t int32) bool {
 	ab, bc, ca := sub(b, a), sub(c, b), sub(a, c)
 	lab, lbc, lca := dot(ab, ab), dot(bc, bc), dot(ca, ca)
 	lmax := math.Max(lab, math.Max(lbc, lca))
+	lkept := 0.0
+	if r.keep != nil {
+		lmax, lkept = r.freeLongest(t, [3]float64{lbc, lca, lab})
+	}
 	if r.size != nil {
 		cx, cy := (a[0]+b[0]+c[0])/3, (a[1]+b[1]+c[1])/3
 		h := r.size(cx, cy)
@@ -189,7 +195,7 @@ func (r *refiner) bad(t int32) bool {
 			}
 			return false
 		}
-		if lmax > h*h {
+		if lmax > h*h && lmax > lkept {
 			return true
 		}
 	}
@@ -212,6 +218,22 @@ func (r *refiner) bad(t int32) bool {
 		return false
 	}
 	return !r.smallAngleCorner(u, v)
+}
+
+// freeLongest splits triangle t's squared edge lengths l (edge k opposite
+// vertex k) into the longest free one and the longest on a kept segment. A
+// kept edge longer than h cannot be split, so the triangle is measured
+// against that edge instead of h: splitting it for h would only crowd
+// vertices against the kept edge.
+func (r *refiner) freeLongest(t int32, l [3]float64) (free, kept float64) {
+	for k := int32(0); k < 3; k++ {
+		if s := r.m.ts[3*t+k]; s >= 0 && r.keep[r.m.sorig[s]] {
+			kept = math.Max(kept, l[k])
+		} else {
+			free = math.Max(free, l[k])
+		}
+	}
+	return free, kept
 }
 
 // smallAngleCorner reports whether edge u–v joins two vertices on two
@@ -287,11 +309,18 @@ func (r *refiner) splitPoint(a, b int32) [2]float64 {
 	return [2]float64{0.5 * (pa[0] + pb[0]), 0.5 * (pa[1] + pb[1])}
 }
 
-// splitSeg splits sub-segment s (unless it is shorter than minLen).
+// unsplittable reports whether sub-segment s stays whole: it is shorter
+// than minLen or lies on a kept input segment.
+func (r *refiner) unsplittable(s int32) bool {
+	m := r.m
+	return plane.Dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) < r.minLen || (r.keep != nil && r.keep[m.sorig[s]])
+}
+
+// splitSeg splits sub-segment s (unless it is unsplittable).
 func (r *refiner) splitSeg(s int32) error {
 	m := r.m
 	a, b := m.sa[s], m.sb[s]
-	if plane.Dist(m.xy[a], m.xy[b]) < r.minLen {
+	if r.unsplittable(s) {
 		return nil
 	}
 	e := m.findEdge(a, b)
@@ -557,6 +586,47 @@ func (r *refiner) splitInward(s, e int32, p [2]float64) bool {
 	return true
 }
 
+// onlyKept reports whether every sub-segment in r.enc lies on a kept input
+// segment (a circumcentre that encroaches only those is inserted).
+func (r *refiner) onlyKept() bool {
+	if r.keep == nil {
+		return false
+	}
+	for _, s := range r.enc {
+		if !r.keep[r.m.sorig[s]] {
+			return false
+		}
+	}
+	return true
+}
+
+// offCentre is the off-centre of triangle t (Üngör 2009, Comput. Geom. 42):
+// the point on the perpendicular bisector of its shortest edge, towards
+// the circumcentre c, at which that edge and the point make a triangle
+// whose apex angle is twice the angle bound, or c if that is nearer. It
+// lies inside t's circumcircle, so inserting it removes t, and it is much
+// nearer than c for a flat triangle, whose circumcentre lies far off.
+func (r *refiner) offCentre(t int32, c [2]float64) [2]float64 {
+	m := r.m
+	var p, q [2]float64
+	best := math.Inf(1)
+	for k := int32(0); k < 3; k++ {
+		a, b := m.xy[m.tv[3*t+k]], m.xy[m.tv[3*t+next3(k)]]
+		if l := plane.Dist(a, b); l < best {
+			best, p, q = l, a, b
+		}
+	}
+	mid := [2]float64{0.5 * (p[0] + q[0]), 0.5 * (p[1] + q[1])}
+	d := plane.Dist(mid, c)
+	// tan θ = sin θ / cos θ with sin² θ = r.sin2
+	height := 0.5 * best * math.Sqrt((1-r.sin2)/r.sin2)
+	if d <= height {
+		return c
+	}
+	f := height / d
+	return [2]float64{mid[0] + f*(c[0]-mid[0]), mid[1] + f*(c[1]-mid[1])}
+}
+
 // circumcentre of triangle t, computed relative to its first vertex.
 func (m *tmesh) circumcentre(t int32) [2]float64 {
 	a, b, c := m.xy[m.tv[3*t]], m.xy[m.tv[3*t+1]], m.xy[m.tv[3*t+2]]
@@ -579,11 +649,20 @@ func (r *refiner) splitTri(t int32) {
 	kind, ref := m.locate(c, t, true)
 	switch kind {
 	case locSeg:
-		if s := m.ts[ref]; plane.Dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+		s := m.ts[ref]
+		if !r.unsplittable(s) {
 			r.pushSeg(s)
 			r.pushTri(t)
+			return
 		}
-		return
+		if r.keep == nil || !r.keep[m.sorig[s]] {
+			return
+		}
+		// Beyond a kept segment: try the off-centre instead.
+		c = r.offCentre(t, c)
+		if kind, ref = m.locate(c, t, true); kind != locIn && kind != locEdge {
+			return
+		}
 	case locVert, locOut:
 		return
 	}
@@ -629,15 +708,18 @@ func (r *refiner) splitTri(t int32) {
 	if len(r.enc) > 0 {
 		pushed := false
 		for _, s := range r.enc {
-			if plane.Dist(m.xy[m.sa[s]], m.xy[m.sb[s]]) >= r.minLen {
+			if !r.unsplittable(s) {
 				r.pushSeg(s)
 				pushed = true
 			}
 		}
 		if pushed {
 			r.pushTri(t)
+			return
 		}
-		return
+		if !r.onlyKept() {
+			return
+		}
 	}
 	v := m.addVertex(c, vFree)
 	if kind == locIn {

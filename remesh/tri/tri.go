@@ -94,6 +94,16 @@ type Options struct {
 	// closer to the chord than the curve: rare when chords keep a clearance
 	// of several sagittas to other features).
 	Split func(mark int, a, b [2]float64) [2]float64
+	// Keep, if not nil, holds one flag per input segment: the segments
+	// flagged are never split, so no vertex is inserted on them and what is
+	// meshed on their other side (an existing mesh the triangulation must
+	// conform to) stays valid. Ruppert's termination argument needs every
+	// encroached segment split, so next to a kept segment the refiner does
+	// what it still can: a circumcentre that only encroaches kept segments
+	// is inserted, a triangle whose circumcentre lies beyond a kept segment
+	// is left as it is. The angle bound may then fail next to kept segments;
+	// Quality reports it.
+	Keep []bool
 }
 
 // Mesh is a triangle mesh.
@@ -157,6 +167,9 @@ func Triangulate(in *Input, opt *Options) (*Mesh, error) {
 func triangulate(in *Input, opt *Options) (*Mesh, *refiner, error) {
 	if err := opt.Validate(); err != nil {
 		return nil, nil, err
+	}
+	if opt != nil && opt.Keep != nil && in != nil && len(opt.Keep) != len(in.Segments) {
+		return nil, nil, fmt.Errorf("tri: %d keep flags for %d segments (give one per segment, or none)", len(opt.Keep), len(in.Segments))
 	}
 	m, err := prepare(in)
 	if err != nil {
