@@ -160,6 +160,7 @@ func buildRun(c *caseFile, src *caseSource) (*runSetup, error) {
 	cfg.Transfer = transfer.DefaultOptions()
 	cfg.Transfer.F0, cfg.Transfer.FBreak = c.Material.F0, c.Material.breakPorosity()
 	cfg.Transfer.Axisymmetric = d.Axisymmetric
+	cfg.Local = c.Adapt.Local
 	if cfg.Adapt {
 		for _, v := range []interface{ Validate() error }{&cfg.Trigger, &cfg.Follow, &cfg.Carve} {
 			if err := v.Validate(); err != nil {

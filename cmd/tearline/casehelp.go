@@ -92,7 +92,9 @@ fields_every ({fields_every} steps), checkpoint_minutes ({checkpoint_minutes})
 [adapt]
 enabled (true when the geometry has a crack tip), margin ({margin}ℓ), ahead ({ahead}ℓ),
 wake ({wake} × h_fine), alert_plastic_strain ({alert_plastic_strain}), max_remeshes (0 = no limit),
-coarsen_wake ({coarsen_wake}), simplify ({simplify} × local size)
+coarsen_wake ({coarsen_wake}), simplify ({simplify} × local size),
+local (false): rebuild only a patch around the changes, keeping the rest of the mesh and
+its state verbatim (remesh.csv column verbatim_share)
 `
 
 // caseHelp returns the case-file help with the defaults the case takes

@@ -107,6 +107,9 @@ type adaptSection struct {
 	MaxRuns  int     `toml:"max_remeshes"`
 	Coarsen  *bool   `toml:"coarsen_wake"`
 	Simplify float64 `toml:"simplify"` // crack-face simplification tolerance, × local size
+	// Local: a remesh rebuilds only a patch around the changes and keeps
+	// the rest of the mesh and its state verbatim (remesh.CycleConfig.Local).
+	Local bool `toml:"local"`
 }
 
 // choice checks that value is one of allowed.
