@@ -87,10 +87,10 @@ type Growth struct {
 	DA     float64 // crack extension Δa along the path from the initial tip
 	DAProj float64 // Δa projected on the initial crack direction
 	// DAFront is Δa to the damage front interpolated inside the elements:
-	// the coordinate along Path, extended beyond its end by its last leg,
-	// of the farthest point of the contour f = f_tip (see frontExtension).
-	// It moves continuously as porosity grows between nodes; 0 when not
-	// Grown.
+	// Path's length to the start A of its last leg plus the distance from
+	// A to the point of the contour f = f_tip seen head-on from A (see
+	// frontExtension). It moves continuously as porosity grows between
+	// nodes; 0 when not Grown.
 	DAFront float64
 	// Path is the crack path from the initial tip to X (a polyline with
 	// the mesh zigzag removed), whose length is DA.

@@ -17,7 +17,11 @@ import (
 // within near of the path's end X (the reach the path search bridges, so
 // only this tip's front counts) and seen from A within 30° of the last leg
 // A→X, the farthest wins; with none, Δa is the path length. A front with
-// corners inside that cone is measured to its farthest corner.
+// corners inside that cone is measured to its farthest corner. The cone is
+// this package's choice: wide enough for a last leg that ends on the side
+// of a round front (the tip search's choice wanders there), narrow enough
+// that a long flat front is not measured to its far ends, where the
+// distance from A also stops growing.
 //
 // Why this point: it depends on A and the contour only, not on where along
 // the front the path search stopped. A flat front is measured by its
@@ -48,10 +52,10 @@ func frontExtension(lines [][][2]float64, path [][2]float64, near float64) float
 	return sA + best
 }
 
-// headOn returns the largest distance from a of the points of polyline l
-// within 30° of the direction a→x where the distance from a is stationary along l (see
-// frontExtension); −Inf when there are none. A closed line repeats its
-// first point at the end.
+// headOn returns the largest distance from a of the points of polyline
+// line, within 30° of the direction a→x, where the distance from a is
+// stationary along the line (see frontExtension); −Inf when there are
+// none. A closed line repeats its first point at the end.
 func headOn(line [][2]float64, a, x [2]float64) float64 {
 	cosCone := math.Sqrt(3) / 2 // cos 30°
 	ux := [2]float64{x[0] - a[0], x[1] - a[1]}
