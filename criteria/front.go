@@ -86,6 +86,12 @@ type Growth struct {
 	Seed   int     // index of the initial tip in FrontOptions.Tips
 	DA     float64 // crack extension Δa along the path from the initial tip
 	DAProj float64 // Δa projected on the initial crack direction
+	// DAFront is Δa to the damage front interpolated inside the elements:
+	// Path's length to the start A of its last leg plus the distance from
+	// A to the point of the contour f = f_tip seen head-on from A (see
+	// frontExtension). It moves continuously as porosity grows between
+	// nodes; 0 when not Grown.
+	DAFront float64
 	// Path is the crack path from the initial tip to X (a polyline with
 	// the mesh zigzag removed), whose length is DA.
 	Path [][2]float64
@@ -188,6 +194,8 @@ func RecoverNodal(m *fem.Mesh, gp *fem.GaussPoints) ([]float64, error) {
 // path wins. Δa is its length — the shortest route through the cracked
 // material, so a turning path cuts its inside corner by up to half the band
 // width — and DAProj = (X − X₀)·d₀ its projection on the initial direction.
+// DAFront measures the same path to the contour f = f_tip instead of to the
+// chosen point X (frontExtension).
 //
 // Cost: about 0.13 s for 10⁵ elements (BenchmarkLocateFront).
 func LocateFront(m *fem.Mesh, gp *fem.GaussPoints, opt FrontOptions) (*Front, error) {
@@ -202,7 +210,11 @@ func LocateFront(m *fem.Mesh, gp *fem.GaussPoints, opt FrontOptions) (*Front, er
 	fr := &Front{Level: level, Nodal: fn}
 	fr.Lines = contour(m, fn, level)
 	sortLines(fr.Lines)
-	fr.Tips = locateTips(m, fn, ftip, opt)
+	tipLines := fr.Lines
+	if ftip != level {
+		tipLines = contour(m, fn, ftip)
+	}
+	fr.Tips = locateTips(m, fn, ftip, opt, tipLines)
 	return fr, nil
 }
 
@@ -317,8 +329,9 @@ func (p *pq) Pop() interface{} {
 	return it
 }
 
-// locateTips runs the multi-source shortest-path search and picks the tips.
-func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Growth {
+// locateTips runs the multi-source shortest-path search and picks the tips;
+// lines are the contour f = f_tip, which set each tip's DAFront.
+func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions, lines [][][2]float64) []Growth {
 	g := newSubEdgeGraph(m)
 	used := usedNodes(m)
 	// Lengths below tol (relative to the mesh size) are round-off: a node of
@@ -340,6 +353,7 @@ func locateTips(m *fem.Mesh, f []float64, ftip float64, opt FrontOptions) []Grow
 		best.DAProj = along(opt.Tips[s], best.X)
 		if best.DA > tol {
 			best.Dir = pathDirection(best.Path, best.DA, opt.Tips[s].Dir)
+			best.DAFront = frontExtension(lines, best.Path, paths.maxGap[s])
 			tips[s] = best
 		}
 	}

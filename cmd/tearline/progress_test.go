@@ -85,8 +85,8 @@ func TestRingsInProcessZone(t *testing.T) {
 
 // TestProgressLine: the progress line of a run gives Δa, J and the force
 // in the case's units and the time to go toward stop.t once a rate is
-// known; history.csv ends with J_domain_flag, 0 for an elastic body (no
-// process zone).
+// known; history.csv's J_domain_flag is 0 for an elastic body (no process
+// zone), and its last column da_front is empty (no damage front).
 func TestProgressLine(t *testing.T) {
 	for _, c := range []struct {
 		system string
@@ -119,12 +119,13 @@ func TestProgressLine(t *testing.T) {
 			}
 		}
 		header, rows := readCSV(t, filepath.Join(dir, "history.csv"))
-		if header[len(header)-1] != "J_domain_flag" {
-			t.Fatalf("history.csv ends with %q, want J_domain_flag", header[len(header)-1])
+		n := len(header)
+		if header[n-2] != "J_domain_flag" || header[n-1] != "da_front" {
+			t.Fatalf("history.csv ends with %q, want J_domain_flag, da_front", header[n-2:])
 		}
 		for _, r := range rows {
-			if r[len(r)-1] != "0" {
-				t.Errorf("%s: J_domain_flag %q for an elastic body, want 0", c.system, r[len(r)-1])
+			if r[n-2] != "0" || r[n-1] != "" {
+				t.Errorf("%s: J_domain_flag %q, da_front %q for an elastic body, want 0 and empty", c.system, r[n-2], r[n-1])
 			}
 		}
 	}

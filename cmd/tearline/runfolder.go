@@ -24,7 +24,7 @@ var historyColumns = []string{
 	"dofs", "elements", "remeshes", "iters", "wall_s", "rss_mb",
 	"J_E1820", "tearing_modulus", "max_porosity",
 	"cutbacks", "load_factor", "gauge",
-	"J_domain_flag",
+	"J_domain_flag", "da_front",
 }
 
 // historyRow is one converged step. NaN marks a quantity that does not
@@ -43,6 +43,9 @@ type historyRow struct {
 	// JDomainFlag is 1 when the rings of J_domain hold process-zone
 	// material (ringsInProcessZone), 0 when not, NaN without a domain J.
 	JDomainFlag float64
+	// DaFront is Δa measured to the damage front interpolated inside the
+	// elements (criteria.Growth.DAFront), the largest over the tips.
+	DaFront float64
 }
 
 func (r historyRow) fields() []string {
@@ -55,7 +58,8 @@ func (r historyRow) fields() []string {
 	i := strconv.Itoa
 	return []string{i(r.Step), f(r.T), f(r.Control), f(r.Force), f(r.JFar), f(r.JDomain), f(r.Da), f(r.DaProj),
 		f(r.CTOD), i(r.Dofs), i(r.Elements), i(r.Remeshes), i(r.Iters), f(r.Wall), f(r.RSS), f(r.JE1820),
-		f(r.Tearing), f(r.MaxPorosity), i(r.Cutbacks), f(r.LoadFactor), f(r.Gauge), f(r.JDomainFlag)}
+		f(r.Tearing), f(r.MaxPorosity), i(r.Cutbacks), f(r.LoadFactor), f(r.Gauge), f(r.JDomainFlag),
+		f(r.DaFront)}
 }
 
 // readHistory reads the first n data rows of history.csv.
@@ -81,7 +85,9 @@ func readHistory(path string, n int) ([]historyRow, error) {
 
 func parseHistoryRow(line string) (historyRow, error) {
 	f := strings.Split(line, ",")
-	if len(f) == len(historyColumns)-1 { // a run folder from before J_domain_flag
+	// A run folder from before J_domain_flag or da_front lacks the last
+	// columns: they are empty.
+	for n := len(historyColumns) - len(f); n > 0 && n <= 2; n-- {
 		f = append(f, "")
 	}
 	if len(f) != len(historyColumns) {
@@ -102,7 +108,7 @@ func parseHistoryRow(line string) (historyRow, error) {
 		JDomain: num(f[5]), Da: num(f[6]), DaProj: num(f[7]), CTOD: num(f[8]), Dofs: in(f[9]), Elements: in(f[10]),
 		Remeshes: in(f[11]), Iters: in(f[12]), Wall: num(f[13]), RSS: num(f[14]), JE1820: num(f[15]),
 		Tearing: num(f[16]), MaxPorosity: num(f[17]), Cutbacks: in(f[18]), LoadFactor: num(f[19]), Gauge: num(f[20]),
-		JDomainFlag: num(f[21])}, nil
+		JDomainFlag: num(f[21]), DaFront: num(f[22])}, nil
 }
 
 // csvTable appends rows to a CSV file, flushing and syncing each row so that
