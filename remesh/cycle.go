@@ -91,12 +91,16 @@ type JConfig struct {
 // StepRecord is what the cycle reports after each converged step. NaN marks
 // a quantity that does not apply.
 type StepRecord struct {
-	Step              int
-	T, Load           float64 // pseudo-time and load factor (equal unless under a Control)
-	Control, Force    float64
-	JFar, JDomain     float64
-	JRings            []float64
-	Da, DaProj, CTOD  float64
+	Step             int
+	T, Load          float64 // pseudo-time and load factor (equal unless under a Control)
+	Control, Force   float64
+	JFar, JDomain    float64
+	JRings           []float64
+	Da, DaProj, CTOD float64
+	// DaFront is Δa to the damage front inside the elements
+	// (criteria.Growth.DAFront) at this step, the largest over the tips;
+	// NaN without a front. Unlike Da it is not a running maximum.
+	DaFront           float64
 	Dofs, Elements    int
 	Remeshes, Iters   int
 	Cutbacks          int
@@ -183,6 +187,7 @@ type Cycle struct {
 	steps, remeshes int
 	peakDofs        int
 	da, daProj      float64
+	daFront         float64 // this step's Δa to the front inside the elements (StepRecord.DaFront)
 	// wall is the wall time of the run so far (carried across resumes).
 	wall time.Duration
 
@@ -480,7 +485,7 @@ func (c *Cycle) record(st solver.Step, gp *fem.GaussPoints) (*StepRecord, error)
 	if len(c.seeds) == 0 {
 		return rec, nil
 	}
-	rec.Da, rec.DaProj = c.da, c.daProj
+	rec.Da, rec.DaProj, rec.DaFront = c.da, c.daProj, c.daFront
 	rec.TipX = c.tips[0].X
 	if c.cfg.J != nil {
 		js, err := c.domainJ(gp)
@@ -520,10 +525,13 @@ func (c *Cycle) locateFront(gp *fem.GaussPoints) (*criteria.Front, error) {
 // follow moves the crack tips to the located front; the run's Δa is that
 // of the tip that has grown furthest.
 func (c *Cycle) follow(front *criteria.Front) {
+	c.daFront = math.NaN()
 	if front == nil {
 		return
 	}
+	c.daFront = 0
 	for i, t := range front.Tips {
+		c.daFront = math.Max(c.daFront, t.DAFront)
 		if t.DA >= c.da {
 			c.da, c.daProj = t.DA, t.DAProj
 		}

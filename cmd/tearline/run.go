@@ -306,7 +306,7 @@ func (ob *observer) Step(r *remesh.StepRecord, view remesh.View) error {
 		Da: r.Da, DaProj: r.DaProj, CTOD: r.CTOD, Dofs: r.Dofs, Elements: r.Elements, Remeshes: r.Remeshes,
 		Iters: r.Iters, Wall: r.CumWall.Seconds(), RSS: peakRSSMB(), JE1820: math.NaN(), Tearing: math.NaN(),
 		MaxPorosity: r.MaxPorosity, Cutbacks: r.Cutbacks, LoadFactor: r.Load, Gauge: r.Gauge,
-		JDomainFlag: ob.jDomainFlag(r, view), DaFront: ob.daFront(view)}
+		JDomainFlag: ob.jDomainFlag(r, view), DaFront: r.DaFront}
 	if !view.Progress().Tracked {
 		row.Da, row.DaProj = math.NaN(), math.NaN()
 	}
@@ -460,33 +460,6 @@ func (ob *observer) jDomainFlag(r *remesh.StepRecord, view remesh.View) float64 
 		return 1
 	}
 	return 0
-}
-
-// daFront is Δa measured to the damage front (criteria.Growth.DAFront) of
-// the committed state, the largest over the tips; NaN without a front (no
-// crack tip, or a material without porosity). It is the front of this
-// step, not a running maximum as da is. The front is located again from
-// the domain's initial tips, as the cycle locates it; a front the cycle
-// could not locate has stopped the run before this step is recorded.
-func (ob *observer) daFront(view remesh.View) float64 {
-	d := ob.rs.cfg.Domain
-	if !(ob.rs.cfg.Fc > 0) || d == nil || len(d.Tips()) == 0 {
-		return math.NaN()
-	}
-	var tips []criteria.Tip
-	for _, name := range d.Tips() {
-		pt := d.Points[name]
-		tips = append(tips, criteria.Tip{Name: name, X: pt.X, Dir: pt.Dir})
-	}
-	fr, err := criteria.LocateFront(view.Mesh(), view.GaussPoints(), criteria.FrontOptions{Fc: ob.rs.cfg.Fc, Tips: tips})
-	if err != nil {
-		return math.NaN()
-	}
-	best := 0.0
-	for _, t := range fr.Tips {
-		best = math.Max(best, t.DAFront)
-	}
-	return best
 }
 
 // progress prints one line per step: rewritten in place on a terminal,
